@@ -1,0 +1,32 @@
+import Database from 'better-sqlite3'
+import { drizzle, type BetterSQLite3Database } from 'drizzle-orm/better-sqlite3'
+import { migrate } from 'drizzle-orm/better-sqlite3/migrator'
+import { mkdirSync } from 'node:fs'
+import { dirname, resolve } from 'node:path'
+import * as schema from './schema'
+
+export type Db = BetterSQLite3Database<typeof schema> & { $client: Database.Database }
+
+const migrationsFolder = resolve(process.env.MIGRATIONS_PATH ?? 'drizzle')
+
+/** Opens (creating if needed) the SQLite file, sets the pragmas the app relies on, and migrates. */
+export function createDb(path: string, { runMigrations = true } = {}): Db {
+  if (path !== ':memory:') mkdirSync(dirname(path), { recursive: true })
+  const sqlite = new Database(path)
+  sqlite.pragma('journal_mode = WAL')
+  sqlite.pragma('foreign_keys = ON')
+  sqlite.pragma('busy_timeout = 5000')
+  // WAL makes NORMAL durable against application crashes; only power loss can drop the last commit.
+  sqlite.pragma('synchronous = NORMAL')
+  const db = drizzle(sqlite, { schema }) as Db
+  if (runMigrations) migrate(db, { migrationsFolder })
+  return db
+}
+
+const globalForDb = globalThis as unknown as { __ductkeeperDb?: Db }
+
+/** The process-wide database, opened on first use (dev-safe: survives module reloads). */
+export function getDb(): Db {
+  globalForDb.__ductkeeperDb ??= createDb(process.env.DATABASE_PATH ?? 'data/ductkeeper.db')
+  return globalForDb.__ductkeeperDb
+}

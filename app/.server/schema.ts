@@ -1,0 +1,431 @@
+import { sql } from 'drizzle-orm'
+import { index, integer, primaryKey, real, sqliteTable, text, uniqueIndex } from 'drizzle-orm/sqlite-core'
+
+// Dates of work (tests, visits) are calendar days as 'YYYY-MM-DD' text in the site's own time zone;
+// instants (events, sessions, audit) are ISO-8601 UTC text. Both sort correctly as text.
+const id = () => integer('id').primaryKey({ autoIncrement: true })
+const createdAt = () =>
+  text('created_at')
+    .notNull()
+    .default(sql`(strftime('%Y-%m-%dT%H:%M:%fZ','now'))`)
+
+export const monitoringCompanies = sqliteTable('monitoring_companies', {
+  id: id(),
+  name: text('name').notNull(),
+  phone: text('phone').notNull(),
+  email: text('email'),
+  // How the central station wants to hear about work before it starts.
+  notifyMethod: text('notify_method', { enum: ['phone', 'email', 'portal'] }).notNull(),
+  notifyLeadMinutes: integer('notify_lead_minutes').notNull().default(15),
+  hours: text('hours').notNull().default('24/7'),
+  notes: text('notes'),
+  createdAt: createdAt(),
+})
+
+export const customers = sqliteTable(
+  'customers',
+  {
+    id: id(),
+    name: text('name').notNull(),
+    kind: text('kind', { enum: ['restaurant', 'retail', 'office', 'school', 'healthcare'] }).notNull(),
+    contactName: text('contact_name'),
+    contactEmail: text('contact_email'),
+    contactPhone: text('contact_phone'),
+    createdAt: createdAt(),
+  },
+  (t) => [index('customers_name_idx').on(t.name)],
+)
+
+export const sites = sqliteTable(
+  'sites',
+  {
+    id: id(),
+    customerId: integer('customer_id')
+      .notNull()
+      .references(() => customers.id),
+    name: text('name').notNull(),
+    street: text('street').notNull(),
+    city: text('city').notNull(),
+    // ISO 3166-2 subdivision such as 'US-OR': picks the public-holiday calendar for the site.
+    region: text('region').notNull(),
+    postalCode: text('postal_code').notNull(),
+    timeZone: text('time_zone').notNull(),
+    jurisdiction: text('jurisdiction').notNull(),
+    ahjName: text('ahj_name').notNull(),
+    ahjContact: text('ahj_contact'),
+    codeBasis: text('code_basis', { enum: ['nfpa90a', 'imc'] }).notNull(),
+    monitoringCompanyId: integer('monitoring_company_id').references(() => monitoringCompanies.id),
+    monitoringAccount: text('monitoring_account'),
+    // The reporting delay agreed with the monitoring company, in seconds (0 = report at once).
+    delayPolicySeconds: integer('delay_policy_seconds').notNull().default(0),
+    accessNotes: text('access_notes'),
+    createdAt: createdAt(),
+  },
+  (t) => [
+    index('sites_customer_idx').on(t.customerId, t.name),
+    index('sites_region_idx').on(t.region),
+    index('sites_monitoring_idx').on(t.monitoringCompanyId),
+  ],
+)
+
+export const units = sqliteTable(
+  'units',
+  {
+    id: id(),
+    siteId: integer('site_id')
+      .notNull()
+      .references(() => sites.id),
+    tag: text('tag').notNull(),
+    kind: text('kind', { enum: ['rtu', 'ahu', 'mau', 'erv', 'fcu'] }).notNull(),
+    location: text('location'),
+    shutdownInput: text('shutdown_input', { enum: ['break-to-stop', 'make-to-stop'] }).notNull(),
+    supplyCfm: integer('supply_cfm').notNull(),
+    returnCfm: integer('return_cfm').notNull(),
+    ductShape: text('duct_shape', { enum: ['rectangular', 'round'] }).notNull(),
+    ductWidthIn: real('duct_width_in'),
+    ductHeightIn: real('duct_height_in'),
+    ductDiameterIn: real('duct_diameter_in'),
+    storeysServed: integer('storeys_served').notNull().default(1),
+    sharedPlenum: integer('shared_plenum', { mode: 'boolean' }).notNull().default(false),
+    areaDetection: integer('area_detection', { mode: 'boolean' }).notNull().default(false),
+    transformerVa: integer('transformer_va').notNull().default(40),
+    createdAt: createdAt(),
+  },
+  (t) => [index('units_site_idx').on(t.siteId, t.tag)],
+)
+
+// A listing: what one make of module is rated for. Values are set per model by the office from the
+// device's own instructions; the demo carries invented models.
+export const detectorModels = sqliteTable('detector_models', {
+  id: id(),
+  name: text('name').notNull().unique(),
+  supervisoryLabelledIn: text('supervisory_labelled_in', { enum: ['de-energized', 'normal'] })
+    .notNull()
+    .default('de-energized'),
+  auxContacts: integer('aux_contacts').notNull().default(2),
+  standbyVa: real('standby_va').notNull(),
+  alarmVa: real('alarm_va').notNull(),
+  velocityMinFpm: integer('velocity_min_fpm').notNull(),
+  velocityMaxFpm: integer('velocity_max_fpm').notNull(),
+  pressureMinInWc: real('pressure_min_in_wc').notNull(),
+  pressureMaxInWc: real('pressure_max_in_wc').notNull(),
+})
+
+export const detectorStates = ['normal', 'alarm', 'trouble', 'supervisory', 'out-of-service'] as const
+export const environments = ['clean', 'dusty', 'kitchen', 'humid'] as const
+export const dueStatuses = ['ok', 'due-soon', 'overdue'] as const
+
+export const detectors = sqliteTable(
+  'detectors',
+  {
+    id: id(),
+    unitId: integer('unit_id')
+      .notNull()
+      .references(() => units.id),
+    // Copied from the unit so the console can filter a fleet by site or customer with one index.
+    siteId: integer('site_id')
+      .notNull()
+      .references(() => sites.id),
+    customerId: integer('customer_id')
+      .notNull()
+      .references(() => customers.id),
+    modelId: integer('model_id')
+      .notNull()
+      .references(() => detectorModels.id),
+    tag: text('tag').notNull(),
+    serial: text('serial'),
+    position: text('position', { enum: ['supply', 'return'] }).notNull(),
+    headsFitted: integer('heads_fitted').notNull().default(1),
+    housing: text('housing', { enum: ['standard', 'nema4', 'nema4x'] }).notNull(),
+    environment: text('environment', { enum: environments }).notNull(),
+    // Set on the module's switches; null when nobody has recorded it.
+    delaySeconds: integer('delay_seconds'),
+    delayObservedOn: text('delay_observed_on'),
+    installedOn: text('installed_on').notNull(),
+    eolOhms: integer('eol_ohms').notNull(),
+    eolPlacement: text('eol_placement', { enum: ['through-supervisory', 'across-pair'] }).notNull(),
+    alarmTerminal: text('alarm_terminal', { enum: ['NO', 'NC'] }).notNull(),
+    supervisoryTerminal: text('supervisory_terminal', { enum: ['NO', 'NC'] }).notNull(),
+    conductorAwg: integer('conductor_awg').notNull(),
+    conductorStranded: integer('conductor_stranded', { mode: 'boolean' }).notNull(),
+    runFeet: integer('run_feet').notNull(),
+    testStation: text('test_station', { enum: ['none', 'key', 'magnet'] }).notNull().default('none'),
+    testStationFeet: integer('test_station_feet'),
+    velocityMinFpm: integer('velocity_min_fpm').notNull(),
+    velocityMaxFpm: integer('velocity_max_fpm').notNull(),
+    pressureMinInWc: real('pressure_min_in_wc').notNull(),
+    pressureMaxInWc: real('pressure_max_in_wc').notNull(),
+    state: text('state', { enum: detectorStates }).notNull().default('normal'),
+    lastVisualOn: text('last_visual_on'),
+    lastFunctionalOn: text('last_functional_on'),
+    lastSensitivityOn: text('last_sensitivity_on'),
+    // Sensitivity tests passed in range in a row: two or more allow the longer interval.
+    sensitivityStreak: integer('sensitivity_streak').notNull().default(0),
+    lastCleanedOn: text('last_cleaned_on'),
+    cleaningIntervalDays: integer('cleaning_interval_days'),
+    lastResult: text('last_result', { enum: ['pass', 'fail'] }),
+    // Kept in step by the writes (from the trade engine) so the fleet can be filtered and sorted in SQL.
+    nextDueOn: text('next_due_on'),
+    dueStatus: text('due_status', { enum: dueStatuses }).notNull().default('ok'),
+    delayAgreement: text('delay_agreement', { enum: ['agree', 'disagree', 'unknown'] })
+      .notNull()
+      .default('unknown'),
+    riskScore: integer('risk_score').notNull().default(0),
+    troubles30d: integer('troubles_30d').notNull().default(0),
+    version: integer('version').notNull().default(1),
+    updatedAt: text('updated_at')
+      .notNull()
+      .default(sql`(strftime('%Y-%m-%dT%H:%M:%fZ','now'))`),
+  },
+  (t) => [
+    index('detectors_unit_idx').on(t.unitId),
+    index('detectors_site_idx').on(t.siteId, t.tag),
+    index('detectors_customer_idx').on(t.customerId),
+    index('detectors_state_idx').on(t.state, t.riskScore),
+    index('detectors_due_idx').on(t.dueStatus, t.nextDueOn),
+    index('detectors_next_due_idx').on(t.nextDueOn),
+    index('detectors_risk_idx').on(t.riskScore),
+    index('detectors_env_idx').on(t.environment, t.housing),
+    index('detectors_delay_idx').on(t.delayAgreement),
+    index('detectors_tag_idx').on(t.tag),
+  ],
+)
+
+export const users = sqliteTable('users', {
+  id: id(),
+  email: text('email').notNull().unique(),
+  name: text('name').notNull(),
+  role: text('role')
+    .notNull()
+    .references(() => roles.key),
+  active: integer('active', { mode: 'boolean' }).notNull().default(true),
+  createdAt: createdAt(),
+})
+
+export const roles = sqliteTable('roles', {
+  key: text('key').primaryKey(),
+  label: text('label').notNull(),
+  description: text('description').notNull(),
+})
+
+export const visits = sqliteTable(
+  'visits',
+  {
+    id: id(),
+    siteId: integer('site_id')
+      .notNull()
+      .references(() => sites.id),
+    kind: text('kind', { enum: ['inspection', 'test', 'cleaning', 'repair', 'commissioning'] }).notNull(),
+    scheduledOn: text('scheduled_on').notNull(),
+    technicianId: integer('technician_id').references(() => users.id),
+    status: text('status', { enum: ['planned', 'notified', 'in-progress', 'done', 'cancelled'] })
+      .notNull()
+      .default('planned'),
+    notes: text('notes'),
+    createdBy: integer('created_by').references(() => users.id),
+    version: integer('version').notNull().default(1),
+    createdAt: createdAt(),
+  },
+  (t) => [
+    index('visits_site_idx').on(t.siteId, t.scheduledOn),
+    index('visits_date_idx').on(t.scheduledOn, t.status),
+    index('visits_tech_idx').on(t.technicianId, t.scheduledOn),
+  ],
+)
+
+export const visitDetectors = sqliteTable(
+  'visit_detectors',
+  {
+    visitId: integer('visit_id')
+      .notNull()
+      .references(() => visits.id, { onDelete: 'cascade' }),
+    detectorId: integer('detector_id')
+      .notNull()
+      .references(() => detectors.id),
+    tasks: text('tasks').notNull(), // comma list: visual,functional,sensitivity,cleaning
+    result: text('result', { enum: ['pending', 'pass', 'fail', 'skipped'] })
+      .notNull()
+      .default('pending'),
+    notes: text('notes'),
+    completedAt: text('completed_at'),
+  },
+  (t) => [primaryKey({ columns: [t.visitId, t.detectorId] }), index('visit_detectors_detector_idx').on(t.detectorId)],
+)
+
+export const readings = sqliteTable(
+  'readings',
+  {
+    id: id(),
+    detectorId: integer('detector_id')
+      .notNull()
+      .references(() => detectors.id),
+    visitId: integer('visit_id').references(() => visits.id),
+    takenAt: text('taken_at').notNull(),
+    // loop-* in ohms (open = over-range), input-* in volts AC, velocity in ft/min,
+    // pressure in inches of water column, sensitivity in %/ft obscuration.
+    kind: text('kind', {
+      enum: [
+        'loop-normal',
+        'loop-alarm',
+        'loop-trouble',
+        'loop-unpowered',
+        'input-normal',
+        'input-alarm',
+        'velocity',
+        'pressure',
+        'sensitivity',
+      ],
+    }).notNull(),
+    value: real('value'),
+    open: integer('open', { mode: 'boolean' }).notNull().default(false),
+    takenBy: integer('taken_by').references(() => users.id),
+  },
+  (t) => [index('readings_detector_idx').on(t.detectorId, t.takenAt)],
+)
+
+export const notifications = sqliteTable(
+  'notifications',
+  {
+    id: id(),
+    siteId: integer('site_id')
+      .notNull()
+      .references(() => sites.id),
+    visitId: integer('visit_id').references(() => visits.id),
+    monitoringCompanyId: integer('monitoring_company_id').references(() => monitoringCompanies.id),
+    notifiedAt: text('notified_at').notNull(),
+    notifiedBy: integer('notified_by').references(() => users.id),
+    method: text('method', { enum: ['phone', 'email', 'portal'] }).notNull(),
+    spokeWith: text('spoke_with').notNull(),
+    confirmation: text('confirmation'),
+    inTestFrom: text('in_test_from').notNull(),
+    inTestUntil: text('in_test_until').notNull(),
+    siteContactTold: text('site_contact_told'),
+    clearedAt: text('cleared_at'),
+  },
+  (t) => [index('notifications_site_idx').on(t.siteId, t.notifiedAt), index('notifications_visit_idx').on(t.visitId)],
+)
+
+export const eventKinds = [
+  'alarm',
+  'trouble',
+  'supervisory',
+  'restore',
+  'test',
+  'reset',
+  'cleaning',
+  'notice',
+  'change',
+] as const
+
+export const events = sqliteTable(
+  'events',
+  {
+    id: id(),
+    siteId: integer('site_id')
+      .notNull()
+      .references(() => sites.id),
+    detectorId: integer('detector_id').references(() => detectors.id),
+    occurredAt: text('occurred_at').notNull(),
+    kind: text('kind', { enum: eventKinds }).notNull(),
+    detail: text('detail'),
+    userId: integer('user_id').references(() => users.id),
+  },
+  (t) => [
+    index('events_detector_idx').on(t.detectorId, t.occurredAt),
+    index('events_site_idx').on(t.siteId, t.occurredAt),
+    index('events_kind_idx').on(t.kind, t.occurredAt),
+    index('events_time_idx').on(t.occurredAt),
+  ],
+)
+
+export const attachments = sqliteTable(
+  'attachments',
+  {
+    id: id(),
+    detectorId: integer('detector_id').references(() => detectors.id),
+    visitId: integer('visit_id').references(() => visits.id),
+    fileName: text('file_name').notNull(),
+    contentType: text('content_type').notNull(),
+    sizeBytes: integer('size_bytes').notNull(),
+    storageKey: text('storage_key').notNull().unique(),
+    uploadedBy: integer('uploaded_by').references(() => users.id),
+    uploadedAt: createdAt(),
+  },
+  (t) => [index('attachments_detector_idx').on(t.detectorId), index('attachments_visit_idx').on(t.visitId)],
+)
+
+export const sessions = sqliteTable(
+  'sessions',
+  {
+    id: text('id').primaryKey(),
+    userId: integer('user_id')
+      .notNull()
+      .references(() => users.id),
+    createdAt: createdAt(),
+    expiresAt: text('expires_at').notNull(),
+    lastSeenAt: text('last_seen_at').notNull(),
+    revokedAt: text('revoked_at'),
+    userAgent: text('user_agent'),
+  },
+  (t) => [index('sessions_user_idx').on(t.userId)],
+)
+
+export const apiTokens = sqliteTable(
+  'api_tokens',
+  {
+    id: id(),
+    userId: integer('user_id')
+      .notNull()
+      .references(() => users.id),
+    name: text('name').notNull(),
+    // SHA-256 of the token text; the text itself is shown once and never stored.
+    tokenHash: text('token_hash').notNull(),
+    prefix: text('prefix').notNull(),
+    createdAt: createdAt(),
+    expiresAt: text('expires_at').notNull(),
+    lastUsedAt: text('last_used_at'),
+    revokedAt: text('revoked_at'),
+  },
+  (t) => [uniqueIndex('api_tokens_hash_idx').on(t.tokenHash), index('api_tokens_user_idx').on(t.userId)],
+)
+
+export const auditLog = sqliteTable(
+  'audit_log',
+  {
+    id: id(),
+    at: createdAt(),
+    actorId: integer('actor_id').references(() => users.id),
+    action: text('action').notNull(),
+    entity: text('entity').notNull(),
+    entityId: text('entity_id'),
+    before: text('before', { mode: 'json' }),
+    after: text('after', { mode: 'json' }),
+  },
+  (t) => [index('audit_entity_idx').on(t.entity, t.entityId), index('audit_at_idx').on(t.at)],
+)
+
+export const emailOutbox = sqliteTable(
+  'email_outbox',
+  {
+    id: id(),
+    toAddress: text('to_address').notNull(),
+    subject: text('subject').notNull(),
+    html: text('html').notNull(),
+    text: text('text').notNull(),
+    status: text('status', { enum: ['queued', 'sent', 'failed'] })
+      .notNull()
+      .default('queued'),
+    attempts: integer('attempts').notNull().default(0),
+    providerId: text('provider_id'),
+    error: text('error'),
+    createdAt: createdAt(),
+    sentAt: text('sent_at'),
+  },
+  (t) => [index('email_outbox_status_idx').on(t.status, t.createdAt)],
+)
+
+// Row totals kept in step by triggers, so a page never recounts millions of rows.
+export const tableCounts = sqliteTable('table_counts', {
+  name: text('name').primaryKey(),
+  rows: integer('rows').notNull().default(0),
+})

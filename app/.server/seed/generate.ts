@@ -1,0 +1,337 @@
+import type Database from 'better-sqlite3'
+import { addDays, addMonths, daysBetween, type IsoDate } from '~/domain/dates'
+import { auditDelay } from '~/domain/delay-audit'
+import { CLEANING_INTERVAL_DAYS, summarizeDue, type Environment } from '~/domain/schedule'
+import {
+  CITIES,
+  DEMO_USERS,
+  DETECTOR_MODELS,
+  MONITORING_COMPANIES,
+  NAME_FIRST,
+  NAME_SECOND,
+  NAMED_CUSTOMERS,
+  ROLES,
+  SITE_SUFFIX,
+  STREET_KINDS,
+  STREETS,
+  TECH_NOTES,
+} from './names'
+import { withBulkLoad } from './bulk'
+import { derivedFields } from './derive'
+
+export type Scale = 'small' | 'demo' | 'stress'
+
+export const SCALES: Record<Scale, { detectors: number; eventsPerDetector: number; customers: number }> = {
+  small: { detectors: 200, eventsPerDetector: 10, customers: 5 },
+  demo: { detectors: 10_500, eventsPerDetector: 26, customers: 40 },
+  stress: { detectors: 101_000, eventsPerDetector: 21, customers: 320 },
+}
+
+/** mulberry32: a small, fast, seeded generator, so the same scale always yields the same data. */
+function rng(seed: number) {
+  let a = seed >>> 0
+  const next = () => {
+    a = (a + 0x6d2b79f5) >>> 0
+    let t = a
+    t = Math.imul(t ^ (t >>> 15), t | 1)
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61)
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296
+  }
+  return {
+    next,
+    int: (min: number, max: number) => min + Math.floor(next() * (max - min + 1)),
+    pick: <T>(list: readonly T[]): T => list[Math.floor(next() * list.length)],
+    chance: (p: number) => next() < p,
+  }
+}
+
+export interface SeedCounts {
+  customers: number
+  sites: number
+  units: number
+  detectors: number
+  events: number
+  readings: number
+  visits: number
+}
+
+const EOL_BY_MONITOR = [15_000, 4_700, 3_900, 10_000]
+const DELAY_POLICIES = [0, 0, 180, 300]
+
+/**
+ * Fills an empty, migrated database with the demo scenario. Deterministic for a given scale and
+ * `today`. Writes through prepared statements in one transaction per table group for speed.
+ */
+export function seed(sqlite: Database.Database, scale: Scale, today: IsoDate): SeedCounts {
+  const cfg = SCALES[scale]
+  const r = rng(0xd5c7 + cfg.detectors)
+  const counts: SeedCounts = { customers: 0, sites: 0, units: 0, detectors: 0, events: 0, readings: 0, visits: 0 }
+  const now = `${today}T12:00:00.000Z`
+
+  const ins = (table: string, cols: string[]) =>
+    sqlite.prepare(`insert into ${table} (${cols.join(',')}) values (${cols.map(() => '?').join(',')})`)
+
+  const insRole = ins('roles', ['key', 'label', 'description'])
+  const insUser = ins('users', ['id', 'email', 'name', 'role', 'active', 'created_at'])
+  const insMonitor = ins('monitoring_companies', ['id', 'name', 'phone', 'email', 'notify_method', 'notify_lead_minutes', 'hours', 'created_at'])
+  const insModel = ins('detector_models', ['id', 'name', 'supervisory_labelled_in', 'aux_contacts', 'standby_va', 'alarm_va', 'velocity_min_fpm', 'velocity_max_fpm', 'pressure_min_in_wc', 'pressure_max_in_wc'])
+  const insCustomer = ins('customers', ['id', 'name', 'kind', 'contact_name', 'contact_email', 'contact_phone', 'created_at'])
+  const insSite = ins('sites', ['id', 'customer_id', 'name', 'street', 'city', 'region', 'postal_code', 'time_zone', 'jurisdiction', 'ahj_name', 'ahj_contact', 'code_basis', 'monitoring_company_id', 'monitoring_account', 'delay_policy_seconds', 'access_notes', 'created_at'])
+  const insUnit = ins('units', ['id', 'site_id', 'tag', 'kind', 'location', 'shutdown_input', 'supply_cfm', 'return_cfm', 'duct_shape', 'duct_width_in', 'duct_height_in', 'duct_diameter_in', 'storeys_served', 'shared_plenum', 'area_detection', 'transformer_va', 'created_at'])
+  const detectorCols = ['id', 'unit_id', 'site_id', 'customer_id', 'model_id', 'tag', 'serial', 'position', 'heads_fitted', 'housing', 'environment', 'delay_seconds', 'delay_observed_on', 'installed_on', 'eol_ohms', 'eol_placement', 'alarm_terminal', 'supervisory_terminal', 'conductor_awg', 'conductor_stranded', 'run_feet', 'test_station', 'test_station_feet', 'velocity_min_fpm', 'velocity_max_fpm', 'pressure_min_in_wc', 'pressure_max_in_wc', 'state', 'last_visual_on', 'last_functional_on', 'last_sensitivity_on', 'sensitivity_streak', 'last_cleaned_on', 'last_result', 'next_due_on', 'due_status', 'delay_agreement', 'risk_score', 'troubles_30d', 'updated_at']
+  const insDetector = ins('detectors', detectorCols)
+  const insEvent = ins('events', ['site_id', 'detector_id', 'occurred_at', 'kind', 'detail', 'user_id'])
+  const insReading = ins('readings', ['detector_id', 'visit_id', 'taken_at', 'kind', 'value', 'open', 'taken_by'])
+  const insVisit = ins('visits', ['id', 'site_id', 'kind', 'scheduled_on', 'technician_id', 'status', 'notes', 'created_by', 'created_at'])
+  const insVisitDetector = ins('visit_detectors', ['visit_id', 'detector_id', 'tasks', 'result', 'notes', 'completed_at'])
+  const insNotice = ins('notifications', ['site_id', 'visit_id', 'monitoring_company_id', 'notified_at', 'notified_by', 'method', 'spoke_with', 'confirmation', 'in_test_from', 'in_test_until', 'site_contact_told', 'cleared_at'])
+
+  const techIds = DEMO_USERS.map((u, i) => ({ ...u, id: i + 1 }))
+    .filter((u) => u.role === 'technician')
+    .map((u) => u.id)
+  const officeId = DEMO_USERS.findIndex((u) => u.role === 'office') + 1
+
+  sqlite.transaction(() => {
+    for (const role of ROLES) insRole.run(role.key, role.label, role.description)
+    DEMO_USERS.forEach((u, i) => insUser.run(i + 1, u.email, u.name, u.role, 1, now))
+    MONITORING_COMPANIES.forEach((m, i) => insMonitor.run(i + 1, m.name, m.phone, m.email, m.method, m.lead, '24/7', now))
+    DETECTOR_MODELS.forEach((m, i) =>
+      insModel.run(i + 1, m.name, m.labelled, 2, m.standby, m.alarm, m.vmin, m.vmax, m.pmin, m.pmax),
+    )
+  })()
+
+  // Customers: the named ones first, then generated chains up to the scale's count.
+  const customerList: Array<{ id: number; name: string; kind: string; prefix: string }> = []
+  for (let i = 0; i < cfg.customers; i++) {
+    const named = NAMED_CUSTOMERS[i]
+    if (named) {
+      customerList.push({ id: i + 1, name: named.name, kind: named.kind, prefix: named.sitePrefix })
+    } else {
+      const kind = r.pick(['restaurant', 'restaurant', 'retail', 'office', 'school', 'healthcare'])
+      const first = NAME_FIRST[i % NAME_FIRST.length]
+      const tail = NAME_SECOND[kind][Math.floor(i / NAME_FIRST.length) % NAME_SECOND[kind].length]
+      const round = Math.floor(i / (NAME_FIRST.length * 3))
+      const name = `${first} ${tail}${round > 0 ? ` ${['', 'West', 'East', 'Group', 'Holdings'][round % 5]}` : ''}`.trim()
+      customerList.push({ id: i + 1, name, kind, prefix: first })
+    }
+  }
+
+  let siteId = 0
+  const siteNames = new Set<string>()
+  let unitId = 0
+  let detectorId = 0
+  let visitId = 0
+  const eventsPer = cfg.eventsPerDetector
+
+  const writeFleet = sqlite.transaction(() => {
+    for (const c of customerList) {
+      insCustomer.run(c.id, c.name, c.kind, `${r.pick(['Dana', 'Lee', 'Sam', 'Robin', 'Jordan', 'Avery'])} ${r.pick(['Hale', 'Moreno', 'Baptiste', 'Lindqvist', 'Okafor'])}`, `facilities@${c.prefix.toLowerCase().replace(/[^a-z]+/g, '')}.test`, `555-01${String(r.int(0, 99)).padStart(2, '0')}`, now)
+      counts.customers++
+    }
+    // Chains get many sites; the first customers get the most so the demo has a few big programs.
+    const weights = customerList.map((_, i) => 1 / (1 + i * 0.15))
+    const weightSum = weights.reduce((a, b) => a + b, 0)
+    let ci = 0
+    while (detectorId < cfg.detectors) {
+      // Walk customers by weight so big chains collect more sites.
+      const c = customerList[ci]
+      ci = (ci + 1) % customerList.length
+      const siteShare = weights[customerList.indexOf(c)] / weightSum
+      if (!r.chance(Math.min(1, siteShare * customerList.length))) continue
+      const place = r.pick(CITIES)
+      siteId++
+      const monitor = ((siteId * 7) % MONITORING_COMPANIES.length) + 1
+      const policy = DELAY_POLICIES[(monitor + siteId) % DELAY_POLICIES.length]
+      const suffix = r.pick(SITE_SUFFIX[c.kind])
+      const streetName = `${r.pick(STREETS)} ${r.pick(STREET_KINDS)}`
+      const street = `${r.int(100, 9899)} ${streetName}`
+      let siteName = `${c.prefix} ${place.city}${suffix ? ` ${suffix}` : ''}`
+      if (siteNames.has(siteName)) siteName = `${c.prefix} ${streetName}, ${place.city}${suffix ? ` ${suffix}` : ''}`
+      if (siteNames.has(siteName)) siteName = `${siteName} (${street.split(' ')[0]})`
+      siteNames.add(siteName)
+      const codeBasis = CITIES.indexOf(place) % 3 === 0 ? 'nfpa90a' : 'imc'
+      insSite.run(siteId, c.id, siteName, street, place.city, place.region, `${place.zip}${String(r.int(100, 999))}`, place.tz, `City of ${place.city}`, `${place.city} Fire Prevention Bureau`, `fireprevention@${place.city.toLowerCase().replace(/[^a-z]+/g, '')}.test`, codeBasis, monitor, `AC-${String(100000 + siteId * 37).slice(-6)}`, policy, r.chance(0.4) ? r.pick(['Roof hatch key at front desk.', 'Ladder on site; call manager on arrival.', 'After 14:00 only: kitchen busy at lunch.', 'Escort required in patient areas.']) : null, now)
+      counts.sites++
+
+      const unitCount = c.kind === 'restaurant' ? r.int(2, 4) : c.kind === 'retail' ? r.int(3, 9) : r.int(2, 7)
+      for (let u = 1; u <= unitCount && detectorId < cfg.detectors; u++) {
+        unitId++
+        const isAhu = c.kind !== 'restaurant' && r.chance(0.35)
+        const supply = isAhu ? r.int(8, 60) * 500 : r.int(3, 25) * 400
+        const ret = Math.round(supply * (0.8 + r.next() * 0.15))
+        const round = r.chance(0.2)
+        // Size the duct for roughly 700–2,300 fpm, with a few outside any listing.
+        const targetFpm = r.chance(0.04) ? r.int(150, 280) : r.int(700, 2300)
+        const areaIn2 = (supply / targetFpm) * 144
+        const width = Math.max(8, Math.round(Math.sqrt(areaIn2 * 1.5) / 2) * 2)
+        const height = Math.max(6, Math.round(areaIn2 / width / 2) * 2)
+        const diameter = Math.max(8, Math.round(Math.sqrt((areaIn2 * 4) / Math.PI)))
+        const storeys = c.kind === 'office' && isAhu ? r.int(1, 6) : 1
+        insUnit.run(unitId, siteId, `${isAhu ? 'AHU' : 'RTU'}-${u}`, isAhu ? 'ahu' : r.chance(0.1) ? 'mau' : 'rtu', isAhu ? r.pick(['Mechanical room', 'Penthouse', 'Level 2 plant']) : r.pick(['Roof, north', 'Roof, south', 'Roof over kitchen', 'Roof, east']), r.chance(0.7) ? 'break-to-stop' : 'make-to-stop', supply, ret, round ? 'round' : 'rectangular', round ? null : width, round ? null : height, round ? diameter : null, storeys, r.chance(0.1) ? 1 : 0, r.chance(0.15) ? 1 : 0, r.pick([40, 40, 40, 50, 75]), now)
+        counts.units++
+
+        const positions: Array<'supply' | 'return'> = r.chance(0.55) ? ['supply', 'return'] : [r.chance(0.6) ? 'supply' : 'return']
+        for (const position of positions) {
+          if (detectorId >= cfg.detectors) break
+          detectorId++
+          writeDetector(detectorId, { siteId, unitId, customerId: c.id, kind: c.kind, position, monitor, policy, unitTag: `${isAhu ? 'AHU' : 'RTU'}-${u}` })
+        }
+      }
+      writeVisits(siteId, monitor)
+    }
+  })
+
+  function writeDetector(
+    id: number,
+    o: { siteId: number; unitId: number; customerId: number; kind: string; position: 'supply' | 'return'; monitor: number; policy: number; unitTag: string },
+  ) {
+    const modelIdx = r.chance(0.08) ? 2 : r.chance(0.3) ? 1 : 0
+    const model = DETECTOR_MODELS[modelIdx]
+    const env: Environment =
+      o.kind === 'restaurant' && r.chance(0.45)
+        ? 'kitchen'
+        : o.kind === 'healthcare' || r.chance(0.1)
+          ? r.chance(0.5) ? 'humid' : 'clean'
+          : o.kind === 'retail' && r.chance(0.25)
+            ? 'dusty'
+            : 'clean'
+    const housing = env === 'humid' ? (r.chance(0.55) ? 'nema4x' : 'standard') : r.chance(0.04) ? 'nema4' : 'standard'
+    const installedOn = addDays(today, -r.int(400, 6000))
+    const skipped = r.chance(0.12) // tests skipped: the common way a miswire goes uncaught
+    const lastFunctional = skipped ? (r.chance(0.3) ? null : addDays(today, -r.int(380, 900))) : addDays(today, -r.int(5, 360))
+    const lastVisual = lastFunctional && !skipped ? addDays(today, -r.int(5, 186)) : lastFunctional
+    const yearsInService = daysBetween(installedOn, today) / 365
+    const streak = yearsInService > 5 ? r.int(2, 4) : yearsInService > 3 ? r.int(1, 2) : yearsInService > 1.2 ? 1 : 0
+    const lastSensitivity = streak === 0 ? null : addDays(today, -r.int(30, streak >= 3 ? 1500 : 700))
+    const lastCleaned = skipped ? lastFunctional : addDays(today, -r.int(5, Math.round(CLEANING_INTERVAL_DAYS[env] * 1.04)))
+    const clampToInstall = (d: IsoDate | null) => (d && d < installedOn ? installedOn : d)
+
+    // About one in twenty-five carries an installation miswire.
+    const miswire = r.chance(0.04) ? r.pick(['alarm-nc', 'eol-across', 'sup-wrong', 'eol-missing', 'eol-wrong'] as const) : null
+    const eol = EOL_BY_MONITOR[o.monitor - 1]
+    const awg = r.pick([18, 18, 16, 14])
+    const stranded = r.chance(0.7)
+    const runFeet = r.int(40, 900)
+    const delay = r.chance(0.1) ? null : r.chance(0.08) ? DELAY_POLICIES[(o.monitor + 1) % 4] === o.policy ? (o.policy === 0 ? 180 : 0) : DELAY_POLICIES[(o.monitor + 1) % 4] : o.policy
+    const troubles30 = env === 'humid' && housing === 'standard' ? r.int(0, 4) : r.chance(0.03) ? r.int(1, 3) : 0
+    const state = troubles30 > 2 || r.chance(0.025) ? 'trouble' : r.chance(0.003) ? 'supervisory' : r.chance(0.004) ? 'out-of-service' : 'normal'
+    const lastResult = lastFunctional ? (miswire && !skipped ? 'fail' : r.chance(0.03) ? 'fail' : 'pass') : null
+
+    const sched = {
+      installedOn,
+      environment: env,
+      lastVisualOn: clampToInstall(lastVisual),
+      lastFunctionalOn: clampToInstall(lastFunctional),
+      lastSensitivityOn: clampToInstall(lastSensitivity),
+      sensitivityStreak: streak,
+      lastCleanedOn: clampToInstall(lastCleaned),
+    }
+    const due = summarizeDue(sched, today)
+    const audit = auditDelay({ delaySeconds: delay, policySeconds: o.policy })
+    const derived = derivedFields({ state, dueStatus: due.dueStatus, nextDueOn: due.nextDueOn, today, lastResult, troubles30, environment: env, housing, delayAgreement: audit.agreement })
+
+    insDetector.run(
+      id, o.unitId, o.siteId, o.customerId, modelIdx + 1,
+      `${o.unitTag}-${o.position === 'supply' ? 'S' : 'R'}`, `DK${String(1_000_000 + id * 13).slice(-7)}`,
+      o.position, modelIdx === 1 ? 2 : 1, housing, env, delay, delay === null ? null : sched.lastVisualOn, installedOn,
+      miswire === 'eol-wrong' ? (eol === 15_000 ? 4_700 : 15_000) : eol,
+      miswire === 'eol-across' ? 'across-pair' : 'through-supervisory',
+      miswire === 'alarm-nc' ? 'NC' : 'NO',
+      // The supervisory contact is used on the terminal that is closed in normal: "NO" where the
+      // module labels it de-energized, "NC" where it labels it in normal.
+      (model.labelled === 'de-energized') === (miswire !== 'sup-wrong') ? 'NO' : 'NC',
+      awg, stranded ? 1 : 0, runFeet, r.chance(0.3) ? (r.chance(0.5) ? 'key' : 'magnet') : 'none', r.chance(0.3) ? r.int(20, 300) : null,
+      model.vmin, model.vmax, model.pmin, model.pmax, state,
+      sched.lastVisualOn, sched.lastFunctionalOn, sched.lastSensitivityOn, streak, sched.lastCleanedOn, lastResult,
+      due.nextDueOn, due.dueStatus, audit.agreement, derived.riskScore, troubles30, now,
+    )
+    counts.detectors++
+
+    if (sched.lastFunctionalOn) writeReadings(id, sched.lastFunctionalOn, { eol, awg, stranded, runFeet, miswire, miswireActual: miswire === 'eol-missing' })
+    writeEvents(id, o.siteId, installedOn, troubles30, state)
+  }
+
+  function writeReadings(
+    id: number,
+    on: IsoDate,
+    o: { eol: number; awg: number; stranded: boolean; runFeet: number; miswire: string | null; miswireActual: boolean },
+  ) {
+    // NEC Chapter 9 Table 8 at 75 °C, ohms per 1,000 ft.
+    const perKft: Record<number, [number, number]> = { 18: [7.77, 7.95], 16: [4.89, 4.99], 14: [3.07, 3.14], 12: [1.93, 1.98] }
+    const line = (2 * o.runFeet * perKft[o.awg][o.stranded ? 1 : 0]) / 1000
+    const jitter = () => 1 + (r.next() - 0.5) * 0.04
+    const at = `${on}T${String(r.int(8, 15)).padStart(2, '0')}:${String(r.int(0, 59)).padStart(2, '0')}:00.000Z`
+    const eol = o.miswire === 'eol-wrong' ? (o.eol === 15_000 ? 4_700 : 15_000) : o.eol
+    let normal: number | null = Math.round((eol + line) * jitter())
+    let alarm: number | null = Math.round(line * jitter() * 10) / 10
+    let trouble: number | null = null
+    if (o.miswire === 'alarm-nc') [normal, alarm] = [alarm, normal]
+    if (o.miswire === 'eol-across') trouble = normal
+    if (o.miswire === 'sup-wrong') [normal, trouble] = [null, normal]
+    if (o.miswireActual) normal = null
+    const tech = r.pick(techIds)
+    const put = (kind: string, value: number | null) => {
+      insReading.run(id, null, at, kind, value, value === null ? 1 : 0, tech)
+      counts.readings++
+    }
+    put('loop-normal', normal)
+    put('loop-alarm', alarm)
+    put('loop-trouble', trouble)
+    put('velocity', r.int(450, 2600))
+    put('pressure', Math.round((0.05 + r.next() * 0.6) * 100) / 100)
+  }
+
+  const troubleDetails = ['Dirty head reported', 'Cover tamper opened', 'Loss of power at module', 'Water in sampling tube', 'Head missing']
+  function writeEvents(detector: number, site: number, installedOn: IsoDate, troubles30: number, state: string) {
+    const horizon = Math.min(1800, daysBetween(installedOn, today))
+    const n = eventsPer
+    for (let i = 0; i < n; i++) {
+      const daysAgo = r.int(31, horizon)
+      const t = `${addDays(today, -daysAgo)}T${String(r.int(0, 23)).padStart(2, '0')}:${String(r.int(0, 59)).padStart(2, '0')}:${String(r.int(0, 59)).padStart(2, '0')}.000Z`
+      const roll = r.next()
+      const kind = roll < 0.22 ? 'test' : roll < 0.36 ? 'cleaning' : roll < 0.56 ? 'trouble' : roll < 0.74 ? 'restore' : roll < 0.86 ? 'notice' : roll < 0.93 ? 'reset' : roll < 0.97 ? 'change' : roll < 0.99 ? 'supervisory' : 'alarm'
+      const detail =
+        kind === 'trouble' ? r.pick(troubleDetails)
+        : kind === 'test' ? r.chance(0.95) ? 'Functional test passed; unit shut down' : 'Functional test failed'
+        : kind === 'cleaning' ? r.pick(TECH_NOTES)
+        : kind === 'notice' ? 'Monitoring company told; system in test'
+        : kind === 'alarm' ? 'Alarm at panel; cleared, no fire found'
+        : kind === 'change' ? 'Record updated'
+        : null
+      insEvent.run(site, detector, t, kind, detail, kind === 'test' || kind === 'cleaning' || kind === 'notice' ? r.pick(techIds) : null)
+      counts.events++
+    }
+    // Recent troubles feed the triage's repeated-trouble reason.
+    for (let i = 0; i < troubles30; i++) {
+      insEvent.run(site, detector, `${addDays(today, -r.int(1, 29))}T0${r.int(0, 9)}:15:00.000Z`, 'trouble', r.pick(troubleDetails), null)
+      counts.events++
+    }
+    if (state === 'trouble' && troubles30 === 0) {
+      insEvent.run(site, detector, `${addDays(today, -r.int(0, 6))}T07:40:00.000Z`, 'trouble', r.pick(troubleDetails), null)
+      counts.events++
+    }
+  }
+
+  function writeVisits(site: number, monitor: number) {
+    const m = MONITORING_COMPANIES[monitor - 1]
+    // The last annual visit, done, with its notification on record.
+    const past = addDays(today, -r.int(20, 330))
+    visitId++
+    const tech = r.pick(techIds)
+    insVisit.run(visitId, site, 'test', past, tech, 'done', 'Annual functional test and cleaning.', officeId, `${addDays(past, -14)}T15:00:00.000Z`)
+    insNotice.run(site, visitId, monitor, `${past}T08:05:00.000Z`, tech, m.method, r.pick(['Operator 14', 'Dispatcher Ruiz', 'Desk K. Amani', 'Operator 7']), `CF${String(site * 91 + 10000).slice(-5)}`, `${past}T08:10:00.000Z`, `${past}T12:10:00.000Z`, 'Store manager on duty', `${past}T12:02:00.000Z`)
+    counts.visits++
+    // An upcoming visit for part of the sites, covering their detectors that fall due soon.
+    if (r.chance(0.35)) {
+      const when = addDays(today, r.int(1, 45))
+      visitId++
+      insVisit.run(visitId, site, r.chance(0.3) ? 'cleaning' : 'test', when, r.chance(0.85) ? r.pick(techIds) : null, 'planned', null, officeId, now)
+      const rows = sqlite.prepare('select id from detectors where site_id = ? and next_due_on <= ?').all(site, addDays(when, 30)) as Array<{ id: number }>
+      for (const row of rows) insVisitDetector.run(visitId, row.id, 'visual,functional,cleaning', 'pending', null, null)
+      counts.visits++
+    }
+  }
+
+  withBulkLoad(sqlite, ['events', 'readings', 'visit_detectors', 'notifications'], writeFleet)
+  return counts
+}

@@ -1,0 +1,49 @@
+// Calendar days as 'YYYY-MM-DD', computed in UTC so the server's own time zone never shifts a date.
+export type IsoDate = string
+
+const DAY_MS = 86_400_000
+
+export function toUtc(date: IsoDate): number {
+  const [y, m, d] = date.split('-').map(Number)
+  return Date.UTC(y, m - 1, d)
+}
+
+export function fromUtc(ms: number): IsoDate {
+  return new Date(ms).toISOString().slice(0, 10)
+}
+
+export function addDays(date: IsoDate, days: number): IsoDate {
+  return fromUtc(toUtc(date) + days * DAY_MS)
+}
+
+/** Adds calendar months, clamping to the month's last day (Jan 31 + 1 month = Feb 28/29). */
+export function addMonths(date: IsoDate, months: number): IsoDate {
+  const [y, m, d] = date.split('-').map(Number)
+  const first = new Date(Date.UTC(y, m - 1 + months, 1))
+  const lastDay = new Date(Date.UTC(first.getUTCFullYear(), first.getUTCMonth() + 1, 0)).getUTCDate()
+  first.setUTCDate(Math.min(d, lastDay))
+  return fromUtc(first.getTime())
+}
+
+export function addYears(date: IsoDate, years: number): IsoDate {
+  return addMonths(date, years * 12)
+}
+
+/** Whole days from a to b (positive when b is later). */
+export function daysBetween(a: IsoDate, b: IsoDate): number {
+  return Math.round((toUtc(b) - toUtc(a)) / DAY_MS)
+}
+
+/** Day of week, 0 = Sunday. */
+export function weekday(date: IsoDate): number {
+  return new Date(toUtc(date)).getUTCDay()
+}
+
+export function isIsoDate(value: string): boolean {
+  return /^\d{4}-\d{2}-\d{2}$/.test(value) && fromUtc(toUtc(value)) === value
+}
+
+/** Today's calendar date in an IANA time zone. */
+export function todayIn(timeZone: string, now: Date = new Date()): IsoDate {
+  return new Intl.DateTimeFormat('en-CA', { timeZone, year: 'numeric', month: '2-digit', day: '2-digit' }).format(now)
+}

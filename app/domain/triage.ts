@@ -1,0 +1,62 @@
+import type { DelayAgreement } from './delay-audit'
+import type { DueStatus, Environment } from './schedule'
+
+export type TriageReasonCode =
+  | 'in-trouble'
+  | 'in-alarm'
+  | 'out-of-service'
+  | 'overdue'
+  | 'failed-test'
+  | 'failed-diagnosis'
+  | 'repeated-troubles'
+  | 'humid-unrated'
+  | 'delay-disagrees'
+  | 'delay-unknown'
+
+export interface TriageInput {
+  state: 'normal' | 'alarm' | 'trouble' | 'supervisory' | 'out-of-service'
+  dueStatus: DueStatus
+  /** Days the earliest task is past due (≤ 0 when not overdue). */
+  daysOverdue: number
+  lastResult: 'pass' | 'fail' | null
+  /** The last loop or interlock diagnosis failed. */
+  diagnosisFailed: boolean
+  troubles30d: number
+  environment: Environment
+  housing: 'standard' | 'nema4' | 'nema4x'
+  delayAgreement: DelayAgreement
+}
+
+export interface TriageReason {
+  code: TriageReasonCode
+  points: number
+  text: string
+}
+
+// Weights are the product's own call, set so that a live trouble outranks paperwork and an
+// unreported fault outranks a late test; each reason shows its points so the order explains itself.
+export function triage(input: TriageInput): { score: number; reasons: TriageReason[] } {
+  const reasons: TriageReason[] = []
+  const add = (code: TriageReasonCode, points: number, text: string) => reasons.push({ code, points, text })
+
+  if (input.state === 'trouble') add('in-trouble', 40, 'In trouble at the panel now')
+  if (input.state === 'alarm' || input.state === 'supervisory') add('in-alarm', 45, `Showing ${input.state} now`)
+  if (input.state === 'out-of-service') add('out-of-service', 35, 'Out of service: the duct is not protected')
+  if (input.dueStatus === 'overdue') {
+    const months = Math.max(0, Math.floor(input.daysOverdue / 30))
+    add('overdue', Math.min(30, 10 + months * 2), `Overdue by ${input.daysOverdue} day${input.daysOverdue === 1 ? '' : 's'}`)
+  }
+  if (input.lastResult === 'fail') add('failed-test', 25, 'Failed its last test')
+  if (input.diagnosisFailed) add('failed-diagnosis', 25, 'Last readings point at a wiring fault')
+  if (input.troubles30d >= 2) {
+    add('repeated-troubles', Math.min(20, 5 * input.troubles30d), `${input.troubles30d} troubles in the last 30 days`)
+  }
+  if (input.environment === 'humid' && input.housing === 'standard') {
+    add('humid-unrated', 10, 'Humid location without a water-resistant housing')
+  }
+  if (input.delayAgreement === 'disagree') add('delay-disagrees', 10, 'Reporting delay differs from site policy')
+  if (input.delayAgreement === 'unknown') add('delay-unknown', 3, 'Reporting delay not recorded')
+
+  reasons.sort((a, b) => b.points - a.points || a.code.localeCompare(b.code))
+  return { score: reasons.reduce((sum, r) => sum + r.points, 0), reasons }
+}

@@ -1,0 +1,45 @@
+// npm start: migrate, seed the demo scale into an empty database, build if the sources changed,
+// start the local fakes, then serve. One command from a fresh clone to a working console.
+import { spawn, spawnSync } from 'node:child_process'
+import { existsSync, readdirSync, statSync } from 'node:fs'
+import { join } from 'node:path'
+import { createDb } from '~/.server/db'
+import { seed } from '~/.server/seed/generate'
+import { officeToday } from '~/.server/today'
+
+const dbPath = (process.env.DATABASE_PATH ??= 'data/ductkeeper.db')
+const port = (process.env.PORT ??= '3000')
+
+const db = createDb(dbPath)
+const { n } = db.$client.prepare('select count(*) as n from customers').get() as { n: number }
+if (n === 0) {
+  const started = performance.now()
+  console.log(`Seeding the demo scenario into ${dbPath} …`)
+  const counts = seed(db.$client, 'demo', officeToday())
+  console.log(`Seeded in ${((performance.now() - started) / 1000).toFixed(1)} s:`, counts)
+}
+db.$client.close()
+
+function newestMtime(dir: string): number {
+  let newest = 0
+  for (const entry of readdirSync(dir, { withFileTypes: true })) {
+    const path = join(dir, entry.name)
+    newest = Math.max(newest, entry.isDirectory() ? newestMtime(path) : statSync(path).mtimeMs)
+  }
+  return newest
+}
+
+const serverBuild = 'build/server/index.js'
+const sources = Math.max(newestMtime('app'), newestMtime('public'), statSync('package.json').mtimeMs)
+if (!existsSync(serverBuild) || statSync(serverBuild).mtimeMs < sources) {
+  console.log('Building …')
+  const build = spawnSync('node_modules/.bin/react-router', ['build'], { stdio: 'inherit' })
+  if (build.status !== 0) process.exit(build.status ?? 1)
+}
+
+const server = spawn('node_modules/.bin/react-router-serve', [serverBuild], {
+  stdio: 'inherit',
+  env: { ...process.env, NODE_ENV: process.env.NODE_ENV ?? 'production', PORT: port },
+})
+for (const signal of ['SIGINT', 'SIGTERM'] as const) process.on(signal, () => server.kill(signal))
+server.on('exit', (code) => process.exit(code ?? 0))

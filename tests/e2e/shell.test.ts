@@ -1,0 +1,55 @@
+import type { Browser } from 'playwright-core'
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { launchBrowser } from '#tests/setup/browser'
+import { startServer } from '#tests/setup/server'
+import { seededDb } from '#tests/setup/temp-db'
+
+describe('app shell in Chromium', () => {
+  let server: Awaited<ReturnType<typeof startServer>>
+  let data: ReturnType<typeof seededDb>
+  let browser: Browser
+  beforeAll(async () => {
+    data = seededDb('small')
+    server = await startServer(data.path)
+    browser = await launchBrowser()
+  })
+  afterAll(async () => {
+    await browser?.close()
+    await server?.stop()
+    data?.cleanup()
+  })
+
+  it('renders the overview with real figures in the shipped fonts', async () => {
+    const page = await browser.newPage()
+    const errors: string[] = []
+    page.on('console', (m) => m.type() === 'error' && errors.push(m.text()))
+    const fontRequests: string[] = []
+    page.on('request', (r) => r.url().match(/\.woff2?$/) && fontRequests.push(r.url()))
+    await page.goto(server.url, { waitUntil: 'networkidle' })
+
+    await expect(page.getByRole('heading', { name: 'Overview', level: 1 }).isVisible()).resolves.toBe(true)
+    await expect(page.getByRole('navigation', { name: 'Sections' }).isVisible()).resolves.toBe(true)
+    const detectors = data.db.$client.prepare('select count(*) as n from detectors').get() as { n: number }
+    const figure = page.locator('section[aria-label="Fleet"] div', { hasText: /^Detectors/ }).first()
+    await expect(figure.innerText()).resolves.toContain(String(detectors.n))
+    await expect(page.getByRole('note', { name: 'Safety caution' }).isVisible()).resolves.toBe(true)
+
+    // The fonts came from the app itself, not a font service, and are in use.
+    const fonts = await page.evaluate(async () => {
+      await document.fonts.ready
+      return {
+        inter: document.fonts.check('16px "Inter Variable"'),
+        mono: document.fonts.check('16px "JetBrains Mono"'),
+        loaded: [...document.fonts].filter((f) => f.status === 'loaded').map((f) => f.family),
+        body: getComputedStyle(document.body).fontFamily,
+      }
+    })
+    expect(fonts.body).toContain('Inter Variable')
+    expect(fonts.loaded).toEqual(expect.arrayContaining(['Inter Variable', 'JetBrains Mono']))
+    expect(fonts.inter && fonts.mono).toBe(true)
+    expect(fontRequests.length).toBeGreaterThan(0)
+    for (const url of fontRequests) expect(url.startsWith(server.url)).toBe(true)
+    expect(errors).toEqual([])
+    await page.close()
+  })
+})

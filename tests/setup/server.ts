@@ -1,0 +1,49 @@
+import { spawn } from 'node:child_process'
+import { createServer } from 'node:net'
+
+export async function freePort(): Promise<number> {
+  return new Promise((resolve, reject) => {
+    const srv = createServer()
+    srv.unref()
+    srv.on('error', reject)
+    srv.listen(0, '127.0.0.1', () => {
+      const { port } = srv.address() as { port: number }
+      srv.close(() => resolve(port))
+    })
+  })
+}
+
+/** Starts the built server on a loopback port against the given database; resolves once /healthz answers. */
+export async function startServer(databasePath: string, extraEnv: Record<string, string> = {}) {
+  const port = await freePort()
+  const child = spawn('node_modules/.bin/react-router-serve', ['build/server/index.js'], {
+    env: { ...process.env, NODE_ENV: 'production', DATABASE_PATH: databasePath, PORT: String(port), HOST: '127.0.0.1', ...extraEnv },
+    stdio: ['ignore', 'pipe', 'pipe'],
+  })
+  let output = ''
+  child.stdout.on('data', (d) => (output += d))
+  child.stderr.on('data', (d) => (output += d))
+  const url = `http://127.0.0.1:${port}`
+  const deadline = Date.now() + 20_000
+  for (;;) {
+    if (child.exitCode !== null) throw new Error(`server exited early:\n${output}`)
+    try {
+      const res = await fetch(`${url}/healthz`)
+      if (res.ok) break
+    } catch {
+      // not listening yet
+    }
+    if (Date.now() > deadline) throw new Error(`server did not answer /healthz in 20 s:\n${output}`)
+    await new Promise((r) => setTimeout(r, 100))
+  }
+  return {
+    url,
+    output: () => output,
+    stop: () =>
+      new Promise<void>((resolve) => {
+        if (child.exitCode !== null) return resolve()
+        child.once('exit', () => resolve())
+        child.kill('SIGTERM')
+      }),
+  }
+}
