@@ -1,8 +1,10 @@
 // npm start: migrate, seed the demo scale into an empty database, build if the sources changed,
 // start the local fakes, then serve. One command from a fresh clone to a working console.
 import { spawn, spawnSync } from 'node:child_process'
-import { existsSync, readdirSync, statSync } from 'node:fs'
-import { join } from 'node:path'
+import { randomBytes } from 'node:crypto'
+import { existsSync, readdirSync, readFileSync, statSync, writeFileSync } from 'node:fs'
+import { dirname, join } from 'node:path'
+import { DEMO_DIRECTORY, startIdentityProvider } from '../mocks/identity-provider'
 import { createDb } from '~/.server/db'
 import { seed } from '~/.server/seed/generate'
 import { officeToday } from '~/.server/today'
@@ -37,9 +39,34 @@ if (!existsSync(serverBuild) || statSync(serverBuild).mtimeMs < sources) {
   if (build.status !== 0) process.exit(build.status ?? 1)
 }
 
+// The server refuses to run in production without a signing secret; for the local demo one is made
+// once and kept beside the database.
+if (!process.env.SESSION_SECRET) {
+  const file = join(dirname(dbPath), '.session-secret')
+  if (!existsSync(file)) writeFileSync(file, randomBytes(48).toString('base64url'), { mode: 0o600 })
+  process.env.SESSION_SECRET = readFileSync(file, 'utf8').trim()
+}
+
+// With no identity provider configured, run the local stand-in so people can sign in.
+let idp: Awaited<ReturnType<typeof startIdentityProvider>> | null = null
+if (!process.env.OIDC_ISSUER && !process.env.OIDC_AUTHORIZATION_ENDPOINT) {
+  idp = await startIdentityProvider({
+    port: Number(process.env.IDP_PORT ?? 4010),
+    clientId: process.env.OIDC_CLIENT_ID ?? 'ductkeeper-local',
+    clientSecret: process.env.OIDC_CLIENT_SECRET ?? 'local-secret-not-for-production',
+    redirectUris: ['localhost', '127.0.0.1'].map((h) => `http://${h}:${port}/auth/callback`),
+    accounts: DEMO_DIRECTORY,
+  })
+  process.env.OIDC_ISSUER = idp.issuer
+  console.log(`Local stand-in identity provider: ${idp.issuer}`)
+}
+
 const server = spawn('node_modules/.bin/react-router-serve', [serverBuild], {
   stdio: 'inherit',
   env: { ...process.env, NODE_ENV: process.env.NODE_ENV ?? 'production', PORT: port },
 })
 for (const signal of ['SIGINT', 'SIGTERM'] as const) process.on(signal, () => server.kill(signal))
-server.on('exit', (code) => process.exit(code ?? 0))
+server.on('exit', async (code) => {
+  await idp?.close()
+  process.exit(code ?? 0)
+})

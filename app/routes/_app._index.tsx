@@ -1,14 +1,19 @@
+import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
 import { overviewFigures } from '~/.server/repos/overview'
 import { officeToday } from '~/.server/today'
 import { Caution } from '~/components/caution'
 import { StateBadge } from '~/components/state-badge'
+import type { RouteAccess } from '~/domain/permissions'
 import { formatCount, formatDay, percent } from '~/utils/format'
 import type { Route } from './+types/_app._index'
 
 export const meta: Route.MetaFunction = () => [{ title: 'Overview · Ductkeeper' }]
 
-export function loader() {
+export const handle = { access: { loader: 'view:fleet' } satisfies RouteAccess }
+
+export async function loader({ request }: Route.LoaderArgs) {
+  await requireUser(request, 'view:fleet')
   const today = officeToday()
   return { today, figures: overviewFigures(getDb(), today) }
 }

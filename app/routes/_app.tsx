@@ -1,31 +1,53 @@
-import { NavLink, Outlet } from 'react-router'
-import { SECTIONS } from '~/utils/sections'
+import { Form, NavLink, Outlet } from 'react-router'
+import { requireUser } from '~/.server/auth'
+import { can, ROLE_LABELS, type RouteAccess } from '~/domain/permissions'
+import { SECTIONS, type Section } from '~/utils/sections'
+import type { Route } from './+types/_app'
 
-export default function AppLayout() {
+export const handle = { access: { loader: 'signed-in' } satisfies RouteAccess }
+
+export async function loader({ request }: Route.LoaderArgs) {
+  const user = await requireUser(request, 'signed-in')
+  return {
+    user: { name: user.name, email: user.email, role: user.role, roleLabel: ROLE_LABELS[user.role] },
+    sections: SECTIONS.filter((s) => can(user.role, s.capability)),
+  }
+}
+
+export default function AppLayout({ loaderData }: Route.ComponentProps) {
+  const { user, sections } = loaderData
+  const main = sections.filter((s) => !s.group)
+  const admin = sections.filter((s) => s.group === 'admin')
   return (
     <div className="min-h-dvh md:grid md:grid-cols-[13rem_1fr]">
-      <header className="bg-rail text-rail-ink md:sticky md:top-0 md:h-dvh md:overflow-y-auto">
-        <div className="flex items-center gap-4 px-4 py-3 md:block md:px-5 md:py-6">
+      <header className="bg-rail text-rail-ink md:sticky md:top-0 md:flex md:h-dvh md:flex-col md:overflow-y-auto">
+        <div className="flex flex-wrap items-center gap-x-4 gap-y-2 px-4 py-3 md:block md:px-5 md:py-6">
           <a href="/" className="flex items-center gap-2 font-semibold tracking-tight text-white">
             <Mark />
             <span className="text-lg">Ductkeeper</span>
           </a>
           <nav aria-label="Sections" className="flex gap-1 overflow-x-auto md:mt-8 md:flex-col">
-            {SECTIONS.map((s) => (
-              <NavLink
-                key={s.to}
-                to={s.to}
-                end={s.to === '/'}
-                className={({ isActive }) =>
-                  `rounded-sm px-3 py-1.5 text-sm whitespace-nowrap ${
-                    isActive ? 'bg-white/12 font-medium text-white' : 'text-rail-ink/80 hover:bg-white/6 hover:text-white'
-                  }`
-                }
-              >
-                {s.label}
-              </NavLink>
-            ))}
+            <NavItems items={main} />
+            {admin.length > 0 && (
+              <>
+                <div className="hidden px-3 pt-5 pb-1 text-[0.7rem] font-medium tracking-wide text-rail-ink/60 uppercase md:block">
+                  Administration
+                </div>
+                <NavItems items={admin} />
+              </>
+            )}
           </nav>
+        </div>
+        <div className="flex items-center justify-between gap-3 border-t border-white/10 px-4 py-2 md:mt-auto md:block md:px-5 md:py-4">
+          <div className="min-w-0 text-sm">
+            <div className="truncate font-medium text-white">{user.name}</div>
+            <div className="text-xs text-rail-ink/70">{user.roleLabel}</div>
+          </div>
+          <Form method="post" action="/sign-out" className="md:mt-3">
+            <button type="submit" className="rounded-sm border border-white/20 px-2.5 py-1 text-xs text-white hover:bg-white/10">
+              Sign out
+            </button>
+          </Form>
         </div>
       </header>
       <main className="min-w-0 px-4 py-6 md:px-8 md:py-8">
@@ -33,6 +55,23 @@ export default function AppLayout() {
       </main>
     </div>
   )
+}
+
+function NavItems({ items }: { items: Section[] }) {
+  return items.map((s) => (
+    <NavLink
+      key={s.to}
+      to={s.to}
+      end={s.to === '/'}
+      className={({ isActive }) =>
+        `rounded-sm px-3 py-1.5 text-sm whitespace-nowrap ${
+          isActive ? 'bg-white/12 font-medium text-white' : 'text-rail-ink/80 hover:bg-white/6 hover:text-white'
+        }`
+      }
+    >
+      {s.label}
+    </NavLink>
+  ))
 }
 
 function Mark() {

@@ -1,4 +1,7 @@
+import type { RouteAccess } from '~/domain/permissions'
 import { getDb } from '~/.server/db'
+
+export const handle = { access: { loader: 'public' } satisfies RouteAccess }
 
 export function loader() {
   try {

@@ -2,6 +2,7 @@ import type { Browser } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { launchBrowser } from '#tests/setup/browser'
 import { startServer } from '#tests/setup/server'
+import { signInAs } from '#tests/setup/sign-in-browser'
 import { seededDb } from '#tests/setup/temp-db'
 
 describe('app shell in Chromium', () => {
@@ -21,11 +22,12 @@ describe('app shell in Chromium', () => {
 
   it('renders the overview with real figures in the shipped fonts', async () => {
     const page = await browser.newPage()
-    const errors: string[] = []
-    page.on('console', (m) => m.type() === 'error' && errors.push(m.text()))
     const fontRequests: string[] = []
     page.on('request', (r) => r.url().match(/\.woff2?$/) && fontRequests.push(r.url()))
-    await page.goto(server.url, { waitUntil: 'networkidle' })
+    await signInAs(page, server.url, 'lead@ductkeeper.test')
+    const errors: string[] = []
+    page.on('console', (m) => m.type() === 'error' && errors.push(m.text()))
+    await page.reload({ waitUntil: 'networkidle' })
 
     await expect(page.getByRole('heading', { name: 'Overview', level: 1 }).isVisible()).resolves.toBe(true)
     await expect(page.getByRole('navigation', { name: 'Sections' }).isVisible()).resolves.toBe(true)
@@ -48,6 +50,7 @@ describe('app shell in Chromium', () => {
     expect(fonts.loaded).toEqual(expect.arrayContaining(['Inter Variable', 'JetBrains Mono']))
     expect(fonts.inter && fonts.mono).toBe(true)
     expect(fontRequests.length).toBeGreaterThan(0)
+    // The provider's own page uses system fonts; every font file came from the app's origin.
     for (const url of fontRequests) expect(url.startsWith(server.url)).toBe(true)
     expect(errors).toEqual([])
     await page.close()

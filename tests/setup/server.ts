@@ -1,5 +1,9 @@
 import { spawn } from 'node:child_process'
 import { createServer } from 'node:net'
+import { DEMO_DIRECTORY, startIdentityProvider } from '../../mocks/identity-provider'
+
+export const TEST_SESSION_SECRET = 'test-session-secret-0123456789abcdef-0123456789'
+export const TEST_CLIENT = { id: 'ductkeeper-test', secret: 'test-client-secret' }
 
 export async function freePort(): Promise<number> {
   return new Promise((resolve, reject) => {
@@ -13,17 +17,38 @@ export async function freePort(): Promise<number> {
   })
 }
 
-/** Starts the built server on a loopback port against the given database; resolves once /healthz answers. */
+/**
+ * Starts the built server on a loopback port against the given database, with the stand-in
+ * identity provider beside it; resolves once /healthz answers.
+ */
 export async function startServer(databasePath: string, extraEnv: Record<string, string> = {}) {
   const port = await freePort()
+  const url = `http://127.0.0.1:${port}`
+  const idp = await startIdentityProvider({
+    port: 0,
+    clientId: TEST_CLIENT.id,
+    clientSecret: TEST_CLIENT.secret,
+    redirectUris: [`${url}/auth/callback`],
+    accounts: DEMO_DIRECTORY,
+  })
   const child = spawn('node_modules/.bin/react-router-serve', ['build/server/index.js'], {
-    env: { ...process.env, NODE_ENV: 'production', DATABASE_PATH: databasePath, PORT: String(port), HOST: '127.0.0.1', ...extraEnv },
+    env: {
+      ...process.env,
+      NODE_ENV: 'production',
+      DATABASE_PATH: databasePath,
+      PORT: String(port),
+      HOST: '127.0.0.1',
+      SESSION_SECRET: TEST_SESSION_SECRET,
+      OIDC_ISSUER: idp.issuer,
+      OIDC_CLIENT_ID: TEST_CLIENT.id,
+      OIDC_CLIENT_SECRET: TEST_CLIENT.secret,
+      ...extraEnv,
+    },
     stdio: ['ignore', 'pipe', 'pipe'],
   })
   let output = ''
   child.stdout.on('data', (d) => (output += d))
   child.stderr.on('data', (d) => (output += d))
-  const url = `http://127.0.0.1:${port}`
   const deadline = Date.now() + 20_000
   for (;;) {
     if (child.exitCode !== null) throw new Error(`server exited early:\n${output}`)
@@ -38,12 +63,15 @@ export async function startServer(databasePath: string, extraEnv: Record<string,
   }
   return {
     url,
+    issuer: idp.issuer,
     output: () => output,
-    stop: () =>
-      new Promise<void>((resolve) => {
+    stop: async () => {
+      await new Promise<void>((resolve) => {
         if (child.exitCode !== null) return resolve()
         child.once('exit', () => resolve())
         child.kill('SIGTERM')
-      }),
+      })
+      await idp.close()
+    },
   }
 }

@@ -1,0 +1,141 @@
+import { data, redirect } from 'react-router'
+import { Authenticator } from 'remix-auth'
+import { OAuth2Strategy } from 'remix-auth-oauth2'
+import { allows, isRole, type Access, type Role } from '~/domain/permissions'
+import { safeReturnTo } from '~/utils/return-to'
+import { getDb } from './db'
+import { env, secureCookies } from './env'
+import { userForToken } from './repos/tokens'
+import { sessionStorage } from './sessions'
+
+export interface CurrentUser {
+  id: number
+  email: string
+  name: string
+  role: Role
+  via: 'session' | 'token'
+}
+
+export interface Identity {
+  email: string
+  name: string | null
+}
+
+export const OAUTH_COOKIE = 'dk_oauth'
+
+async function endpoints() {
+  if (env.OIDC_AUTHORIZATION_ENDPOINT && env.OIDC_TOKEN_ENDPOINT && env.OIDC_USERINFO_ENDPOINT) {
+    return {
+      authorization: env.OIDC_AUTHORIZATION_ENDPOINT,
+      token: env.OIDC_TOKEN_ENDPOINT,
+      userinfo: env.OIDC_USERINFO_ENDPOINT,
+    }
+  }
+  if (!env.OIDC_ISSUER) throw new Error('Set OIDC_ISSUER, or the three OIDC_*_ENDPOINT variables, to sign people in.')
+  const res = await fetch(new URL('.well-known/openid-configuration', env.OIDC_ISSUER.replace(/\/?$/, '/')))
+  if (!res.ok) throw new Error(`Identity provider discovery failed: HTTP ${res.status}`)
+  const doc = (await res.json()) as { authorization_endpoint: string; token_endpoint: string; userinfo_endpoint: string }
+  return { authorization: doc.authorization_endpoint, token: doc.token_endpoint, userinfo: doc.userinfo_endpoint }
+}
+
+let authenticator: Promise<Authenticator<Identity>> | null = null
+
+/** The OAuth 2.0 authorization-code flow with PKCE (S256) and a checked state, built on first use. */
+export function getAuthenticator(request: Request): Promise<Authenticator<Identity>> {
+  authenticator ??= (async () => {
+    const ep = await endpoints()
+    const redirectURI = env.OIDC_REDIRECT_URI ?? new URL('/auth/callback', env.APP_URL ?? request.url).toString()
+    const auth = new Authenticator<Identity>()
+    auth.use(
+      new OAuth2Strategy<Identity>(
+        {
+          // The strategy's `secure` option only accepts `true`: leave it out on plain http.
+          cookie: { name: OAUTH_COOKIE, path: '/', sameSite: 'Lax', httpOnly: true, ...(secureCookies ? { secure: true } : {}) },
+          clientId: env.OIDC_CLIENT_ID,
+          clientSecret: env.OIDC_CLIENT_SECRET,
+          authorizationEndpoint: ep.authorization,
+          tokenEndpoint: ep.token,
+          redirectURI,
+          scopes: ['openid', 'email', 'profile'],
+        },
+        async ({ tokens }) => {
+          const res = await fetch(ep.userinfo, { headers: { Authorization: `Bearer ${tokens.accessToken()}` } })
+          if (!res.ok) throw new Error(`The identity provider did not return the account: HTTP ${res.status}`)
+          const info = (await res.json()) as { email?: string; name?: string }
+          if (!info.email) throw new Error('The identity provider did not share an e-mail address.')
+          return { email: info.email.toLowerCase(), name: info.name ?? null }
+        },
+      ),
+      'oidc',
+    )
+    return auth
+  })().catch((error) => {
+    authenticator = null // retry discovery on the next request
+    throw error
+  })
+  return authenticator
+}
+
+function loadUser(id: number, via: CurrentUser['via']): CurrentUser | null {
+  const row = getDb()
+    .$client.prepare('select id, email, name, role from users where id = ? and active = 1')
+    .get(id) as { id: number; email: string; name: string; role: string } | undefined
+  if (!row || !isRole(row.role)) return null
+  return { ...row, role: row.role, via }
+}
+
+export async function userFromRequest(request: Request): Promise<CurrentUser | null> {
+  const header = request.headers.get('Authorization')
+  if (header?.startsWith('Bearer ')) {
+    const userId = userForToken(getDb(), header.slice(7).trim())
+    return userId === null ? null : loadUser(userId, 'token')
+  }
+  const session = await sessionStorage.getSession(request.headers.get('Cookie'))
+  const userId = session.get('userId')
+  return typeof userId === 'number' ? loadUser(userId, 'session') : null
+}
+
+const isApi = (request: Request) => new URL(request.url).pathname.startsWith('/api/')
+const isWrite = (request: Request) => !['GET', 'HEAD', 'OPTIONS'].includes(request.method)
+
+function refuse(request: Request, status: 401 | 403, message: string): never {
+  if (isApi(request)) throw Response.json({ error: message }, { status })
+  throw data(message, { status })
+}
+
+/**
+ * A state-changing request carried by a browser cookie must come from this app's own pages.
+ * Bearer calls are exempt: a browser never attaches the token by itself.
+ */
+export function sameOrigin(request: Request): boolean {
+  const site = request.headers.get('Sec-Fetch-Site')
+  if (site) return site === 'same-origin' || site === 'none'
+  const origin = request.headers.get('Origin')
+  const expected = new URL(env.APP_URL ?? request.url).origin
+  return origin === expected
+}
+
+/**
+ * The first step of every loader and action: who is asking, and may they? Throws the refusal
+ * (redirect to sign-in for pages, 401/403 JSON for the API) so the route never runs for them.
+ */
+export async function authorize(request: Request, access: Access): Promise<CurrentUser | null> {
+  const bearer = request.headers.get('Authorization')?.startsWith('Bearer ') ?? false
+  if (isWrite(request) && !bearer && !sameOrigin(request)) {
+    refuse(request, 403, 'Refused: this change did not come from a Ductkeeper page.')
+  }
+  if (access === 'public') return null
+  const user = await userFromRequest(request)
+  if (!user) {
+    if (isApi(request) || bearer) refuse(request, 401, 'Sign in or send a valid API token.')
+    const url = new URL(request.url)
+    throw redirect(`/sign-in?returnTo=${encodeURIComponent(safeReturnTo(url.pathname + url.search))}`)
+  }
+  if (!allows(user.role, access)) refuse(request, 403, 'Your role does not allow this.')
+  return user
+}
+
+/** As `authorize`, for routes that are never public. */
+export async function requireUser(request: Request, access: Exclude<Access, 'public'>): Promise<CurrentUser> {
+  return (await authorize(request, access)) as CurrentUser
+}

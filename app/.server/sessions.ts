@@ -1,0 +1,64 @@
+import { randomBytes } from 'node:crypto'
+import { createSessionStorage } from 'react-router'
+import { getDb } from './db'
+import { env, secureCookies, sessionSecret } from './env'
+
+interface SessionData {
+  userId: number
+}
+
+const HOUR = 3_600_000
+
+/**
+ * Sessions live in the database; the cookie carries only a signed random id. Sign-out and an
+ * administrator's deactivation revoke the record, so a copied cookie stops working at once.
+ */
+export const sessionStorage = createSessionStorage<SessionData>({
+  cookie: {
+    name: '__dk_session',
+    httpOnly: true,
+    sameSite: 'lax',
+    secure: secureCookies,
+    path: '/',
+    secrets: [sessionSecret],
+    maxAge: env.SESSION_MAX_AGE_HOURS * 3600,
+  },
+  async createData(data, expires) {
+    const id = randomBytes(24).toString('base64url')
+    const now = new Date()
+    getDb()
+      .$client.prepare(
+        'insert into sessions (id, user_id, created_at, expires_at, last_seen_at) values (?, ?, ?, ?, ?)',
+      )
+      .run(id, data.userId, now.toISOString(), (expires ?? new Date(now.getTime() + env.SESSION_MAX_AGE_HOURS * HOUR)).toISOString(), now.toISOString())
+    return id
+  },
+  async readData(id) {
+    const q = getDb().$client
+    const row = q
+      .prepare('select user_id as userId, expires_at as expiresAt, last_seen_at as lastSeenAt, revoked_at as revokedAt from sessions where id = ?')
+      .get(id) as { userId: number; expiresAt: string; lastSeenAt: string; revokedAt: string | null } | undefined
+    if (!row || row.revokedAt) return null
+    const now = Date.now()
+    if (Date.parse(row.expiresAt) <= now) return null
+    if (now - Date.parse(row.lastSeenAt) > env.SESSION_IDLE_MINUTES * 60_000) return null
+    // Touch at most once a minute: every request would otherwise write.
+    if (now - Date.parse(row.lastSeenAt) > 60_000) {
+      q.prepare('update sessions set last_seen_at = ? where id = ?').run(new Date(now).toISOString(), id)
+    }
+    return { userId: row.userId }
+  },
+  async updateData(id, data) {
+    getDb().$client.prepare('update sessions set user_id = ? where id = ?').run(data.userId, id)
+  },
+  async deleteData(id) {
+    getDb().$client.prepare("update sessions set revoked_at = strftime('%Y-%m-%dT%H:%M:%fZ','now') where id = ? and revoked_at is null").run(id)
+  },
+})
+
+/** Revokes every live session of a user (deactivation, role change). */
+export function revokeSessionsOf(userId: number) {
+  getDb()
+    .$client.prepare("update sessions set revoked_at = strftime('%Y-%m-%dT%H:%M:%fZ','now') where user_id = ? and revoked_at is null")
+    .run(userId)
+}

@@ -1,0 +1,71 @@
+// The whole permission table: which roles hold each capability. Loaders, actions and API routes ask
+// `can`; nothing compares role names inline. The UI calls `can` only to hide what would be refused.
+export const ROLE_KEYS = ['admin', 'lead', 'office', 'technician', 'manager'] as const
+export type Role = (typeof ROLE_KEYS)[number]
+
+export const ROLE_LABELS: Record<Role, string> = {
+  admin: 'Administrator',
+  lead: 'Operations lead',
+  office: 'Office',
+  technician: 'Technician',
+  manager: 'Manager',
+}
+
+const everyone: Role[] = [...ROLE_KEYS]
+
+export const PERMISSIONS = {
+  /** Read customers, sites, units, detectors, events, visits. */
+  'view:fleet': everyone,
+  /** Record readings, notifications and results; technicians only on visits assigned to them. */
+  'record:work': ['technician', 'office', 'lead', 'admin'],
+  /** Record work on any visit, not just one's own. */
+  'record:any-visit': ['office', 'lead', 'admin'],
+  /** Edit customers, sites, units and detectors. */
+  'edit:records': ['office', 'lead', 'admin'],
+  /** Schedule, reschedule and assign visits. */
+  'schedule:visits': ['office', 'lead', 'admin'],
+  /** Acknowledge and assign from the triage queue. */
+  'triage:fleet': ['lead', 'admin'],
+  /** Bulk maintenance cycles and fleet-wide audits. */
+  'run:bulk': ['lead', 'admin'],
+  /** Read the audit log. */
+  'view:audit': ['admin', 'lead', 'manager'],
+  /** Receive the weekly digest. */
+  'receive:digest': ['manager', 'lead', 'admin'],
+  /** Invite users, change roles, deactivate. */
+  'manage:users': ['admin'],
+  /** Create and revoke API tokens. */
+  'manage:tokens': ['admin'],
+  /** Change application settings. */
+  'manage:settings': ['admin'],
+} as const satisfies Record<string, readonly Role[]>
+
+export type Capability = keyof typeof PERMISSIONS
+
+export function isRole(value: string): value is Role {
+  return (ROLE_KEYS as readonly string[]).includes(value)
+}
+
+export function can(role: Role, capability: Capability): boolean {
+  return (PERMISSIONS[capability] as readonly Role[]).includes(role)
+}
+
+export function capabilitiesOf(role: Role): Capability[] {
+  return (Object.keys(PERMISSIONS) as Capability[]).filter((c) => can(role, c))
+}
+
+/**
+ * What a route requires, declared in its `handle` so the route × role test can enumerate it:
+ * 'public' needs nothing, 'signed-in' needs any active user, otherwise a capability.
+ */
+export type Access = 'public' | 'signed-in' | Capability
+export interface RouteAccess {
+  loader?: Access
+  action?: Access
+}
+
+export function allows(role: Role | null, access: Access): boolean {
+  if (access === 'public') return true
+  if (role === null) return false
+  return access === 'signed-in' || can(role, access)
+}

@@ -1,0 +1,12 @@
+import { describe, expect, it } from 'vitest'
+import { safeReturnTo } from './return-to'
+
+describe('safeReturnTo', () => {
+  it('keeps same-site paths with their query and hash', () => {
+    expect(safeReturnTo('/admin/users?x=1#top')).toBe('/admin/users?x=1#top')
+  })
+  it.each(['//evil.test', '/\\evil.test', 'https://evil.test/', 'javascript:alert(1)', '', null, undefined, 'admin', '/sign-in', '/auth/callback?code=1'])(
+    'falls back to / for %s',
+    (value) => expect(safeReturnTo(value)).toBe('/'),
+  )
+})

@@ -1,0 +1,16 @@
+/**
+ * A path to come back to after sign-in, kept on this site: only a same-origin path is accepted
+ * ("//evil.test", "/\\evil.test", "https://…" and "javascript:" all fall back to "/").
+ */
+export function safeReturnTo(value: string | null | undefined, fallback = '/'): string {
+  if (!value || !value.startsWith('/') || value.startsWith('//') || value.startsWith('/\\')) return fallback
+  try {
+    const base = 'http://ductkeeper.invalid'
+    const url = new URL(value, base)
+    if (url.origin !== base) return fallback
+    if (url.pathname.startsWith('/auth/') || url.pathname === '/sign-in') return fallback
+    return url.pathname + url.search + url.hash
+  } catch {
+    return fallback
+  }
+}
