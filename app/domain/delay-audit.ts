@@ -12,8 +12,10 @@ export interface DelayAuditResult {
   action: string
 }
 
+// Whole minutes read as minutes; anything else keeps its seconds, so two settings that differ never
+// read the same (170 s and 180 s both rounded to "3 min" before).
 const describe = (seconds: number) =>
-  seconds === 0 ? 'report at once' : `report after ${Math.round(seconds / 60)} min`
+  seconds === 0 ? 'report at once' : seconds % 60 === 0 ? `report after ${seconds / 60} min` : `report after ${seconds} s`
 
 /**
  * The module's tamper/trouble reporting delay against the site's policy. The policy is agreed with

@@ -1,3 +1,4 @@
+import { Link } from 'react-router'
 import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
 import { overviewFigures } from '~/.server/repos/overview'
@@ -91,6 +92,27 @@ export default function Overview({ loaderData }: Route.ComponentProps) {
         </section>
 
         <div className="space-y-6">
+          <section aria-labelledby="attn-h" className="rounded-md border border-line bg-panel p-4">
+            <h2 id="attn-h" className="font-semibold">
+              Needs attention first
+            </h2>
+            <ol className="mt-3 space-y-1.5 text-sm">
+              {f.attention.map((d) => (
+                <li key={d.id} className="flex items-center justify-between gap-2">
+                  <Link to={`/devices/${d.id}`} className="min-w-0 truncate hover:underline">
+                    <span className="font-mono">{d.tag}</span> <span className="text-ink-soft">· {d.siteName}</span>
+                  </Link>
+                  <span className="flex shrink-0 items-center gap-1.5">
+                    <StateBadge value={d.state} />
+                    <span className="font-mono text-xs text-ink-soft" title="Risk score">
+                      {d.riskScore}
+                    </span>
+                  </span>
+                </li>
+              ))}
+            </ol>
+          </section>
+
           <section aria-labelledby="due-h" className="rounded-md border border-line bg-panel p-4">
             <h2 id="due-h" className="font-semibold">
               Work falling due

@@ -14,6 +14,7 @@ export interface OverviewFigures {
   delayDisagrees: number
   byEnvironment: Array<{ environment: string; detectors: number; overdue: number }>
   worstCustomers: Array<{ id: number; name: string; overdue: number; detectors: number }>
+  attention: Array<{ id: number; tag: string; siteName: string; state: string; dueStatus: string; riskScore: number }>
   upcomingVisits: Array<{
     id: number
     scheduledOn: string
@@ -62,6 +63,12 @@ export function overviewFigures(db: Db, today: IsoDate): OverviewFigures {
          join customers c on c.id = o.customer_id order by o.overdue desc`,
       )
       .all() as OverviewFigures['worstCustomers'],
+    attention: q
+      .prepare(
+        `select d.id, d.tag, s.name as siteName, d.state, d.due_status as dueStatus, d.risk_score as riskScore
+         from detectors d join sites s on s.id = d.site_id order by d.risk_score desc, d.id limit 8`,
+      )
+      .all() as OverviewFigures['attention'],
     upcomingVisits: q
       .prepare(
         `select v.id, v.scheduled_on as scheduledOn, v.kind, v.status, s.id as siteId, s.name as siteName, s.city,

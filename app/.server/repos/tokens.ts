@@ -57,11 +57,14 @@ export function userForToken(db: Db, token: string): number | null {
   const q = db.$client
   const row = q
     .prepare(
-      `select t.id, t.user_id as userId from api_tokens t join users u on u.id = t.user_id
+      `select t.id, t.user_id as userId, t.last_used_at as lastUsedAt from api_tokens t join users u on u.id = t.user_id
        where t.token_hash = ? and t.revoked_at is null and t.expires_at > ? and u.active = 1`,
     )
-    .get(hash(token), new Date().toISOString()) as { id: number; userId: number } | undefined
+    .get(hash(token), new Date().toISOString()) as { id: number; userId: number; lastUsedAt: string | null } | undefined
   if (!row) return null
-  q.prepare('update api_tokens set last_used_at = ? where id = ?').run(new Date().toISOString(), row.id)
+  // Record use at most once a minute: a busy integration would otherwise write on every call.
+  if (!row.lastUsedAt || Date.now() - Date.parse(row.lastUsedAt) > 60_000) {
+    q.prepare('update api_tokens set last_used_at = ? where id = ?').run(new Date().toISOString(), row.id)
+  }
   return row.userId
 }

@@ -18,6 +18,8 @@ import {
 } from './names'
 import { withBulkLoad } from './bulk'
 import { derivedFields } from './derive'
+import type { Awg } from '~/domain/conductors'
+import { correctTerminals, diagnose, expectedReadings, type Arrangement, type Reading, type Readings } from '~/domain/loop'
 
 export type Scale = 'small' | 'demo' | 'stress'
 
@@ -228,18 +230,25 @@ export function seed(sqlite: Database.Database, scale: Scale, today: IsoDate): S
     }
     const due = summarizeDue(sched, today)
     const audit = auditDelay({ delaySeconds: delay, policySeconds: o.policy })
-    const derived = derivedFields({ state, dueStatus: due.dueStatus, nextDueOn: due.nextDueOn, today, lastResult, troubles30, environment: env, housing, delayAgreement: audit.agreement })
+    const recorded: Arrangement = {
+      eolOhms: eol,
+      eolPlacement: miswire === 'eol-across' ? 'across-pair' : 'through-supervisory',
+      alarmTerminal: miswire === 'alarm-nc' ? 'NC' : 'NO',
+      // The supervisory contact belongs on the terminal closed in normal for the model's labelling.
+      supervisoryTerminal: miswire === 'sup-wrong' ? (correctTerminals(model.labelled).supervisoryTerminal === 'NO' ? 'NC' : 'NO') : correctTerminals(model.labelled).supervisoryTerminal,
+      supervisoryLabelledIn: model.labelled,
+      conductor: { awg: awg as Awg, stranded, oneWayFeet: runFeet },
+      measuredAt: 'panel',
+    }
+    const readings = sched.lastFunctionalOn ? meterReadings(recorded, miswire) : null
+    const diagnosisFailed = readings ? diagnose(recorded, readings).verdict === 'fail' : false
+    const derived = derivedFields({ state, dueStatus: due.dueStatus, nextDueOn: due.nextDueOn, today, lastResult, troubles30, environment: env, housing, delayAgreement: audit.agreement, diagnosisFailed })
 
     insDetector.run(
       id, o.unitId, o.siteId, o.customerId, modelIdx + 1,
       `${o.unitTag}-${o.position === 'supply' ? 'S' : 'R'}`, `DK${String(1_000_000 + id * 13).slice(-7)}`,
       o.position, modelIdx === 1 ? 2 : 1, housing, env, delay, delay === null ? null : sched.lastVisualOn, installedOn,
-      miswire === 'eol-wrong' ? (eol === 15_000 ? 4_700 : 15_000) : eol,
-      miswire === 'eol-across' ? 'across-pair' : 'through-supervisory',
-      miswire === 'alarm-nc' ? 'NC' : 'NO',
-      // The supervisory contact is used on the terminal that is closed in normal: "NO" where the
-      // module labels it de-energized, "NC" where it labels it in normal.
-      (model.labelled === 'de-energized') === (miswire !== 'sup-wrong') ? 'NO' : 'NC',
+      recorded.eolOhms, recorded.eolPlacement, recorded.alarmTerminal, recorded.supervisoryTerminal,
       awg, stranded ? 1 : 0, runFeet, r.chance(0.3) ? (r.chance(0.5) ? 'key' : 'magnet') : 'none', r.chance(0.3) ? r.int(20, 300) : null,
       model.vmin, model.vmax, model.pmin, model.pmax, state,
       sched.lastVisualOn, sched.lastFunctionalOn, sched.lastSensitivityOn, streak, sched.lastCleanedOn, lastResult,
@@ -247,36 +256,34 @@ export function seed(sqlite: Database.Database, scale: Scale, today: IsoDate): S
     )
     counts.detectors++
 
-    if (sched.lastFunctionalOn) writeReadings(id, sched.lastFunctionalOn, { eol, awg, stranded, runFeet, miswire, miswireActual: miswire === 'eol-missing' })
+    if (sched.lastFunctionalOn && readings) writeReadings(id, sched.lastFunctionalOn, readings)
     writeEvents(id, o.siteId, installedOn, troubles30, state)
   }
 
-  function writeReadings(
-    id: number,
-    on: IsoDate,
-    o: { eol: number; awg: number; stranded: boolean; runFeet: number; miswire: string | null; miswireActual: boolean },
-  ) {
-    // NEC Chapter 9 Table 8 at 75 °C, ohms per 1,000 ft.
-    const perKft: Record<number, [number, number]> = { 18: [7.77, 7.95], 16: [4.89, 4.99], 14: [3.07, 3.14], 12: [1.93, 1.98] }
-    const line = (2 * o.runFeet * perKft[o.awg][o.stranded ? 1 : 0]) / 1000
-    const jitter = () => 1 + (r.next() - 0.5) * 0.04
+  /** What a meter at the panel would show: the recorded wiring, or the real fault where the record hides one. */
+  function meterReadings(recorded: Arrangement, miswire: string | null): Readings {
+    const actual = miswire === 'eol-wrong' ? { ...recorded, eolOhms: recorded.eolOhms === 15_000 ? 4_700 : 15_000 } : recorded
+    const expected = expectedReadings(actual)
+    const jitter = (n: number, spread: number) => Math.round(n * (1 + (r.next() - 0.5) * spread) * 10) / 10
+    const out: Readings = {}
+    for (const s of ['normal', 'alarm', 'trouble'] as const) {
+      const e = expected[s]
+      out[s] = 'open' in e ? 'open' : e.min === 0 ? jitter(e.ohms + r.next() * 3, 0.05) : Math.round(jitter(e.ohms, 0.04))
+    }
+    if (miswire === 'eol-missing') out.normal = 'open'
+    return out
+  }
+
+  function writeReadings(id: number, on: IsoDate, loop: Readings) {
     const at = `${on}T${String(r.int(8, 15)).padStart(2, '0')}:${String(r.int(0, 59)).padStart(2, '0')}:00.000Z`
-    const eol = o.miswire === 'eol-wrong' ? (o.eol === 15_000 ? 4_700 : 15_000) : o.eol
-    let normal: number | null = Math.round((eol + line) * jitter())
-    let alarm: number | null = Math.round(line * jitter() * 10) / 10
-    let trouble: number | null = null
-    if (o.miswire === 'alarm-nc') [normal, alarm] = [alarm, normal]
-    if (o.miswire === 'eol-across') trouble = normal
-    if (o.miswire === 'sup-wrong') [normal, trouble] = [null, normal]
-    if (o.miswireActual) normal = null
     const tech = r.pick(techIds)
-    const put = (kind: string, value: number | null) => {
-      insReading.run(id, null, at, kind, value, value === null ? 1 : 0, tech)
+    const put = (kind: string, value: number | 'open') => {
+      insReading.run(id, null, at, kind, value === 'open' ? null : value, value === 'open' ? 1 : 0, tech)
       counts.readings++
     }
-    put('loop-normal', normal)
-    put('loop-alarm', alarm)
-    put('loop-trouble', trouble)
+    put('loop-normal', loop.normal as Reading)
+    put('loop-alarm', loop.alarm as Reading)
+    put('loop-trouble', loop.trouble as Reading)
     put('velocity', r.int(450, 2600))
     put('pressure', Math.round((0.05 + r.next() * 0.6) * 100) / 100)
   }
@@ -297,6 +304,8 @@ export function seed(sqlite: Database.Database, scale: Scale, today: IsoDate): S
         : kind === 'notice' ? 'Monitoring company told; system in test'
         : kind === 'alarm' ? 'Alarm at panel; cleared, no fire found'
         : kind === 'change' ? 'Record updated'
+        : kind === 'restore' ? 'Trouble cleared at the panel'
+        : kind === 'reset' ? 'Detector reset after test'
         : null
       insEvent.run(site, detector, t, kind, detail, kind === 'test' || kind === 'cleaning' || kind === 'notice' ? r.pick(techIds) : null)
       counts.events++
