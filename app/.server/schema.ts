@@ -171,6 +171,11 @@ export const detectors = sqliteTable(
       .notNull()
       .default('unknown'),
     riskScore: integer('risk_score').notNull().default(0),
+    // The last loop diagnosis from the engine, kept so the triage queue can filter on it in SQL.
+    loopVerdict: text('loop_verdict', { enum: ['pass', 'fail', 'incomplete'] }),
+    assignedTo: integer('assigned_to').references(() => users.id),
+    acknowledgedAt: text('acknowledged_at'),
+    acknowledgedBy: integer('acknowledged_by').references(() => users.id),
     troubles30d: integer('troubles_30d').notNull().default(0),
     version: integer('version').notNull().default(1),
     updatedAt: text('updated_at')
@@ -188,6 +193,7 @@ export const detectors = sqliteTable(
     index('detectors_env_idx').on(t.environment, t.housing),
     index('detectors_delay_idx').on(t.delayAgreement),
     index('detectors_tag_idx').on(t.tag),
+    index('detectors_assigned_idx').on(t.assignedTo),
   ],
 )
 
@@ -429,3 +435,19 @@ export const tableCounts = sqliteTable('table_counts', {
   name: text('name').primaryKey(),
   rows: integer('rows').notNull().default(0),
 })
+
+// Named table views a person saved: the query string of a list page, so a view is a bookmark.
+export const savedViews = sqliteTable(
+  'saved_views',
+  {
+    id: id(),
+    userId: integer('user_id')
+      .notNull()
+      .references(() => users.id),
+    page: text('page').notNull(),
+    name: text('name').notNull(),
+    query: text('query').notNull(),
+    createdAt: createdAt(),
+  },
+  (t) => [uniqueIndex('saved_views_user_page_name_idx').on(t.userId, t.page, t.name)],
+)

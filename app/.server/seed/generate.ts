@@ -80,7 +80,7 @@ export function seed(sqlite: Database.Database, scale: Scale, today: IsoDate): S
   const insCustomer = ins('customers', ['id', 'name', 'kind', 'contact_name', 'contact_email', 'contact_phone', 'created_at'])
   const insSite = ins('sites', ['id', 'customer_id', 'name', 'street', 'city', 'region', 'postal_code', 'time_zone', 'jurisdiction', 'ahj_name', 'ahj_contact', 'code_basis', 'monitoring_company_id', 'monitoring_account', 'delay_policy_seconds', 'access_notes', 'created_at'])
   const insUnit = ins('units', ['id', 'site_id', 'tag', 'kind', 'location', 'shutdown_input', 'supply_cfm', 'return_cfm', 'duct_shape', 'duct_width_in', 'duct_height_in', 'duct_diameter_in', 'storeys_served', 'shared_plenum', 'area_detection', 'transformer_va', 'created_at'])
-  const detectorCols = ['id', 'unit_id', 'site_id', 'customer_id', 'model_id', 'tag', 'serial', 'position', 'heads_fitted', 'housing', 'environment', 'delay_seconds', 'delay_observed_on', 'installed_on', 'eol_ohms', 'eol_placement', 'alarm_terminal', 'supervisory_terminal', 'conductor_awg', 'conductor_stranded', 'run_feet', 'test_station', 'test_station_feet', 'velocity_min_fpm', 'velocity_max_fpm', 'pressure_min_in_wc', 'pressure_max_in_wc', 'state', 'last_visual_on', 'last_functional_on', 'last_sensitivity_on', 'sensitivity_streak', 'last_cleaned_on', 'last_result', 'next_due_on', 'due_status', 'delay_agreement', 'risk_score', 'troubles_30d', 'updated_at']
+  const detectorCols = ['id', 'unit_id', 'site_id', 'customer_id', 'model_id', 'tag', 'serial', 'position', 'heads_fitted', 'housing', 'environment', 'delay_seconds', 'delay_observed_on', 'installed_on', 'eol_ohms', 'eol_placement', 'alarm_terminal', 'supervisory_terminal', 'conductor_awg', 'conductor_stranded', 'run_feet', 'test_station', 'test_station_feet', 'velocity_min_fpm', 'velocity_max_fpm', 'pressure_min_in_wc', 'pressure_max_in_wc', 'state', 'last_visual_on', 'last_functional_on', 'last_sensitivity_on', 'sensitivity_streak', 'last_cleaned_on', 'last_result', 'next_due_on', 'due_status', 'delay_agreement', 'risk_score', 'troubles_30d', 'loop_verdict', 'updated_at']
   const insDetector = ins('detectors', detectorCols)
   const insEvent = ins('events', ['site_id', 'detector_id', 'occurred_at', 'kind', 'detail', 'user_id'])
   const insReading = ins('readings', ['detector_id', 'visit_id', 'taken_at', 'kind', 'value', 'open', 'taken_by'])
@@ -241,7 +241,8 @@ export function seed(sqlite: Database.Database, scale: Scale, today: IsoDate): S
       measuredAt: 'panel',
     }
     const readings = sched.lastFunctionalOn ? meterReadings(recorded, miswire) : null
-    const diagnosisFailed = readings ? diagnose(recorded, readings).verdict === 'fail' : false
+    const loopVerdict = readings ? diagnose(recorded, readings).verdict : null
+    const diagnosisFailed = loopVerdict === 'fail'
     const derived = derivedFields({ state, dueStatus: due.dueStatus, nextDueOn: due.nextDueOn, today, lastResult, troubles30, environment: env, housing, delayAgreement: audit.agreement, diagnosisFailed })
 
     insDetector.run(
@@ -252,7 +253,7 @@ export function seed(sqlite: Database.Database, scale: Scale, today: IsoDate): S
       awg, stranded ? 1 : 0, runFeet, r.chance(0.3) ? (r.chance(0.5) ? 'key' : 'magnet') : 'none', r.chance(0.3) ? r.int(20, 300) : null,
       model.vmin, model.vmax, model.pmin, model.pmax, state,
       sched.lastVisualOn, sched.lastFunctionalOn, sched.lastSensitivityOn, streak, sched.lastCleanedOn, lastResult,
-      due.nextDueOn, due.dueStatus, audit.agreement, derived.riskScore, troubles30, now,
+      due.nextDueOn, due.dueStatus, audit.agreement, derived.riskScore, troubles30, loopVerdict, now,
     )
     counts.detectors++
 
