@@ -1,0 +1,137 @@
+import { z } from 'zod'
+import type { Db } from './db'
+
+/**
+ * One fleet table as SQL: what to select, how each visible column sorts, and how filters become
+ * WHERE clauses. Filtering, sorting and paging all happen in SQLite, over indexes.
+ */
+export interface ListSpec<F> {
+  /** FROM clause with its joins; the main table's alias is `t`. */
+  from: string
+  /** Output field → SQL expression. */
+  select: Record<string, string>
+  /** Sort key (the column id the UI shows) → SQL expression. */
+  sorts: Record<string, string>
+  defaultSort: { key: string; dir: 'asc' | 'desc' }
+  /** Kept row total for the unfiltered table (`table_counts.name`). */
+  countedAs: string
+  where: (filters: F) => { clauses: string[]; params: unknown[] }
+}
+
+export const MAX_LIMIT = 500
+
+/** Paging and sorting parameters shared by every list route. */
+export function pagingSchema(sortKeys: readonly [string, ...string[]]) {
+  return z.object({
+    q: z.string().trim().max(200).optional(),
+    sort: z.enum(sortKeys).optional(),
+    dir: z.enum(['asc', 'desc']).optional(),
+    offset: z.coerce.number().int().min(0).max(10_000_000).default(0),
+    limit: z.coerce.number().int().min(1).max(MAX_LIMIT).default(100),
+  })
+}
+
+export interface ListResult<Row> {
+  rows: Row[]
+  total: number
+  offset: number
+  limit: number
+  /** False when the total came from the per-filter cache and rows may have changed since. */
+  totalExact: boolean
+}
+
+// Filtered totals cost a count over the matching rows (tens of ms on millions of events), so each
+// filter's total is kept for a short while; a page request then costs only its indexed window.
+const TOTAL_TTL_MS = 30_000
+const totals = new Map<string, { total: number; at: number; version: number }>()
+let writeVersion = 0
+
+/** Call after a write that can change list membership: cached totals are dropped at once. */
+export function listsChanged() {
+  writeVersion++
+  totals.clear()
+}
+
+/** Turns free text into an FTS5 prefix query: each word must match the start of a token. */
+export function ftsQuery(text: string): string | null {
+  const words = text
+    .toLowerCase()
+    .split(/[^\p{L}\p{N}]+/u)
+    .filter(Boolean)
+    .slice(0, 8)
+  return words.length ? words.map((w) => `"${w}"*`).join(' ') : null
+}
+
+export function runList<F extends { q?: string; sort?: string; dir?: 'asc' | 'desc'; offset: number; limit: number }, Row>(
+  db: Db,
+  spec: ListSpec<F>,
+  params: F,
+): ListResult<Row> {
+  const q = db.$client
+  const { clauses, params: values } = spec.where(params)
+  const where = clauses.length ? `where ${clauses.join(' and ')}` : ''
+  const key = params.sort && spec.sorts[params.sort] ? params.sort : spec.defaultSort.key
+  const dir = params.dir ?? (params.sort ? 'asc' : spec.defaultSort.dir)
+  // The id breaks ties so paging is stable.
+  const order = `order by ${spec.sorts[key]} ${dir}, t.id ${dir}`
+  const columns = Object.entries(spec.select)
+    .map(([alias, expr]) => `${expr} as "${alias}"`)
+    .join(', ')
+  // Page over ids first (an index walk), then fetch the full rows for just that window.
+  const rows = q
+    .prepare(
+      `select ${columns} from ${spec.from} where t.id in (select t.id from ${spec.from} ${where} ${order} limit ? offset ?) ${order}`,
+    )
+    .all(...values, params.limit, params.offset) as Row[]
+
+  let total: number
+  let totalExact = true
+  if (clauses.length === 0) {
+    total = (q.prepare('select rows from table_counts where name = ?').get(spec.countedAs) as { rows: number }).rows
+  } else {
+    const cacheKey = `${spec.from}|${where}|${JSON.stringify(values)}`
+    const hit = totals.get(cacheKey)
+    if (hit && hit.version === writeVersion && Date.now() - hit.at < TOTAL_TTL_MS) {
+      total = hit.total
+      totalExact = false
+    } else {
+      total = (q.prepare(`select count(*) as n from ${spec.from} ${where}`).get(...values) as { n: number }).n
+      totals.set(cacheKey, { total, at: Date.now(), version: writeVersion })
+    }
+  }
+  return { rows, total, offset: params.offset, limit: params.limit, totalExact }
+}
+
+/** Parses a list route's query string: 400 with the issues on anything it does not accept. */
+export function parseQuery<S extends z.ZodType>(schema: S, request: Request): z.infer<S> {
+  const url = new URL(request.url)
+  const raw: Record<string, string | string[]> = {}
+  for (const [k, v] of url.searchParams) {
+    const prev = raw[k]
+    raw[k] = prev === undefined ? v : Array.isArray(prev) ? [...prev, v] : [prev, v]
+  }
+  const parsed = schema.safeParse(raw)
+  if (!parsed.success) {
+    throw Response.json(
+      { error: 'Invalid query', issues: parsed.error.issues.map((i) => ({ path: i.path.join('.'), message: i.message })) },
+      { status: 400 },
+    )
+  }
+  return parsed.data
+}
+
+/** A filter that takes one or more values: `?state=trouble&state=alarm` or `?state=trouble,alarm`. */
+export function multi<T extends readonly [string, ...string[]]>(values: T) {
+  return z.preprocess(
+    (v) => (v === undefined || v === '' ? undefined : (Array.isArray(v) ? v : [v]).flatMap((s) => String(s).split(',')).filter(Boolean)),
+    z.array(z.enum(values)).min(1).max(values.length).optional(),
+  )
+}
+
+export const isoDate = z.string().regex(/^\d{4}-\d{2}-\d{2}$/, 'Use YYYY-MM-DD')
+export const idParam = z.coerce.number().int().positive()
+
+/** `col in (?, ?, …)` with its parameters, for a multi filter. */
+export function inList(expr: string, values: readonly unknown[]) {
+  return { clause: `${expr} in (${values.map(() => '?').join(', ')})`, params: [...values] }
+}
