@@ -16,6 +16,11 @@ export interface ListSpec<F> {
   /** Kept row total for the unfiltered table (`table_counts.name`). */
   countedAs: string
   where: (filters: F) => { clauses: string[]; params: unknown[] }
+  /**
+   * Named parameters (`@name`) for `select` and `sorts`, which are fixed strings: a positional `?`
+   * there would shift the WHERE clause's own parameters.
+   */
+  named?: (filters: F) => Record<string, unknown>
 }
 
 export const MAX_LIMIT = 500
@@ -69,6 +74,7 @@ export function runList<F extends { q?: string; sort?: string; dir?: 'asc' | 'de
 ): ListResult<Row> {
   const q = db.$client
   const { clauses, params: values } = spec.where(params)
+  const named = spec.named ? [spec.named(params)] : []
   const where = clauses.length ? `where ${clauses.join(' and ')}` : ''
   const key = params.sort && spec.sorts[params.sort] ? params.sort : spec.defaultSort.key
   const dir = params.dir ?? (params.sort ? 'asc' : spec.defaultSort.dir)
@@ -82,20 +88,20 @@ export function runList<F extends { q?: string; sort?: string; dir?: 'asc' | 'de
     .prepare(
       `select ${columns} from ${spec.from} where t.id in (select t.id from ${spec.from} ${where} ${order} limit ? offset ?) ${order}`,
     )
-    .all(...values, params.limit, params.offset) as Row[]
+    .all(...named, ...values, params.limit, params.offset) as Row[]
 
   let total: number
   let totalExact = true
   if (clauses.length === 0) {
     total = (q.prepare('select rows from table_counts where name = ?').get(spec.countedAs) as { rows: number }).rows
   } else {
-    const cacheKey = `${spec.from}|${where}|${JSON.stringify(values)}`
+    const cacheKey = `${spec.from}|${where}|${JSON.stringify(values)}|${JSON.stringify(named)}`
     const hit = totals.get(cacheKey)
     if (hit && hit.version === writeVersion && Date.now() - hit.at < TOTAL_TTL_MS) {
       total = hit.total
       totalExact = false
     } else {
-      total = (q.prepare(`select count(*) as n from ${spec.from} ${where}`).get(...values) as { n: number }).n
+      total = (q.prepare(`select count(*) as n from ${spec.from} ${where}`).get(...named, ...values) as { n: number }).n
       totals.set(cacheKey, { total, at: Date.now(), version: writeVersion })
     }
   }
@@ -134,4 +140,15 @@ export const idParam = z.coerce.number().int().positive()
 /** `col in (?, ?, …)` with its parameters, for a multi filter. */
 export function inList(expr: string, values: readonly unknown[]) {
   return { clause: `${expr} in (${values.map(() => '?').join(', ')})`, params: [...values] }
+}
+
+const cache = new Map<string, { value: unknown; at: number; version: number }>()
+
+/** A value computed at most once per `ttlMs`, dropped at once by `listsChanged`. */
+export function cached<T>(key: string, ttlMs: number, compute: () => T): T {
+  const hit = cache.get(key)
+  if (hit && hit.version === writeVersion && Date.now() - hit.at < ttlMs) return hit.value as T
+  const value = compute()
+  cache.set(key, { value, at: Date.now(), version: writeVersion })
+  return value
 }

@@ -5,6 +5,7 @@ import { getDb } from '~/.server/db'
 import { deviceReport } from '~/.server/device-report'
 import { officeToday } from '~/.server/today'
 import { Caution } from '~/components/caution'
+import { EventTimeline } from '~/components/event-timeline'
 import { StateBadge } from '~/components/state-badge'
 import { WiringDiagram } from '~/components/wiring-diagram'
 import { DETECTOR_STATES, STATE_LABELS } from '~/domain/contacts'
@@ -321,19 +322,7 @@ export default function Device({ loaderData }: Route.ComponentProps) {
         <h2 id="events-h" className="border-b border-line px-4 py-3 font-semibold">
           History
         </h2>
-        <ol className="divide-y divide-line/70 text-sm">
-          {r.events.map((e) => (
-            <li key={e.id} className="grid grid-cols-[9rem_7rem_1fr] gap-3 px-4 py-2 max-sm:grid-cols-[6.5rem_1fr]">
-              <span className="font-mono text-xs text-ink-soft">{e.occurredAt.slice(0, 16).replace('T', ' ')}</span>
-              <span className="capitalize max-sm:hidden">{e.kind}</span>
-              <span>
-                <span className="capitalize sm:hidden">{e.kind}: </span>
-                {e.detail ?? '—'}
-                {e.by && <span className="text-ink-faint"> · {e.by}</span>}
-              </span>
-            </li>
-          ))}
-        </ol>
+        <EventTimeline events={r.events} timeZone={d.timeZone} />
       </section>
     </div>
   )

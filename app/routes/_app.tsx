@@ -1,6 +1,10 @@
 import { Form, NavLink, Outlet } from 'react-router'
 import { requireUser } from '~/.server/auth'
 import { can, ROLE_LABELS, type RouteAccess } from '~/domain/permissions'
+import { CommandPalette, PaletteActionsProvider } from '~/components/command-palette'
+import { HelpOverlay } from '~/components/help-overlay'
+import { KeyboardProvider } from '~/components/keyboard'
+import { Kbd } from '~/components/ui/command'
 import { SECTIONS, type Section } from '~/utils/sections'
 import type { Route } from './+types/_app'
 
@@ -18,7 +22,10 @@ export default function AppLayout({ loaderData }: Route.ComponentProps) {
   const { user, sections } = loaderData
   const main = sections.filter((s) => !s.group)
   const admin = sections.filter((s) => s.group === 'admin')
+  const allowed = new Set(sections.map((s) => `go:${s.to}`))
   return (
+    <KeyboardProvider>
+      <PaletteActionsProvider>
     <div className="min-h-dvh md:grid md:grid-cols-[13rem_1fr]">
       <header className="bg-rail text-rail-ink md:sticky md:top-0 md:flex md:h-dvh md:flex-col md:overflow-y-auto">
         <div className="flex flex-wrap items-center gap-x-4 gap-y-2 px-4 py-3 md:block md:px-5 md:py-6">
@@ -26,7 +33,14 @@ export default function AppLayout({ loaderData }: Route.ComponentProps) {
             <Mark />
             <span className="text-lg">Ductkeeper</span>
           </a>
-          <nav aria-label="Sections" className="flex gap-1 overflow-x-auto md:mt-8 md:flex-col">
+          <button
+            type="button"
+            onClick={() => window.dispatchEvent(new KeyboardEvent('keydown', { key: 'k', ctrlKey: true }))}
+            className="mt-0 flex items-center justify-between gap-2 rounded-sm border border-white/15 px-2.5 py-1.5 text-left text-xs text-rail-ink/80 hover:bg-white/6 md:mt-6 md:w-full"
+          >
+            Find or jump… <Kbd>Ctrl K</Kbd>
+          </button>
+          <nav aria-label="Sections" className="flex gap-1 overflow-x-auto md:mt-4 md:flex-col">
             <NavItems items={main} />
             {admin.length > 0 && (
               <>
@@ -54,6 +68,10 @@ export default function AppLayout({ loaderData }: Route.ComponentProps) {
         <Outlet />
       </main>
     </div>
+        <CommandPalette sections={sections} />
+        <HelpOverlay allowed={(s) => s.group !== 'Go to' || allowed.has(s.id)} />
+      </PaletteActionsProvider>
+    </KeyboardProvider>
   )
 }
 
@@ -62,7 +80,7 @@ function NavItems({ items }: { items: Section[] }) {
     <NavLink
       key={s.to}
       to={s.to}
-      end={s.to === '/'}
+      
       className={({ isActive }) =>
         `rounded-sm px-3 py-1.5 text-sm whitespace-nowrap ${
           isActive ? 'bg-white/12 font-medium text-white' : 'text-rail-ink/80 hover:bg-white/6 hover:text-white'

@@ -12,8 +12,19 @@ export interface Section {
 }
 
 export const SECTIONS: Section[] = [
-  { to: '/', label: 'Overview', key: 'o', capability: 'view:fleet' },
+  { to: '/triage', label: 'Triage', key: 't', capability: 'view:fleet' },
+  { to: '/overview', label: 'Overview', key: 'o', capability: 'view:fleet' },
+  { to: '/devices', label: 'Detectors', key: 'd', capability: 'view:fleet' },
+  { to: '/sites', label: 'Sites', key: 's', capability: 'view:fleet' },
+  { to: '/customers', label: 'Customers', key: 'c', capability: 'view:fleet' },
+  { to: '/visits', label: 'Visits', key: 'v', capability: 'view:fleet' },
+  { to: '/events', label: 'Events', key: 'e', capability: 'view:fleet' },
   { to: '/admin/users', label: 'Users', key: 'u', capability: 'manage:users', group: 'admin' },
-  { to: '/admin/tokens', label: 'API tokens', key: 't', capability: 'manage:tokens', group: 'admin' },
-  { to: '/admin/audit', label: 'Audit log', key: 'l', capability: 'view:audit', group: 'admin' },
+  { to: '/admin/tokens', label: 'API tokens', key: 'k', capability: 'manage:tokens', group: 'admin' },
+  { to: '/admin/audit', label: 'Audit log', key: 'a', capability: 'view:audit', group: 'admin' },
 ]
+
+/** Where each role lands after sign-in: the queue for those who triage or schedule, else the overview. */
+export function homeFor(canTriageOrSchedule: boolean) {
+  return canTriageOrSchedule ? '/triage' : '/overview'
+}

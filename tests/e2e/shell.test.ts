@@ -27,7 +27,7 @@ describe('app shell in Chromium', () => {
     await signInAs(page, server.url, 'lead@ductkeeper.test')
     const errors: string[] = []
     page.on('console', (m) => m.type() === 'error' && errors.push(m.text()))
-    await page.reload({ waitUntil: 'networkidle' })
+    await page.goto(`${server.url}/overview`, { waitUntil: 'networkidle' })
 
     await expect(page.getByRole('heading', { name: 'Overview', level: 1 }).isVisible()).resolves.toBe(true)
     await expect(page.getByRole('navigation', { name: 'Sections' }).isVisible()).resolves.toBe(true)

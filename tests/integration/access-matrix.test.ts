@@ -11,7 +11,7 @@ interface BuiltRoute {
   parentId?: string
   path?: string
   index?: boolean
-  module: { default?: unknown; loader?: unknown; action?: unknown; handle?: { access?: RouteAccess } }
+  module: { default?: unknown; loader?: unknown; action?: unknown; handle?: { access?: RouteAccess; sampleQuery?: string } }
 }
 
 const EMAIL: Record<Role, string> = {
@@ -33,7 +33,8 @@ function fullPath(route: BuiltRoute): string {
     if (r.path) parts.unshift(r.path)
   }
   // Any :param gets the id of the first seeded row.
-  return `/${parts.join('/')}`.replace(/:[A-Za-z]+/g, '1').replace(/\/+/g, '/') + (route.index ? '?index' : '')
+  const query = [route.index ? 'index' : '', route.module.handle?.sampleQuery ?? ''].filter(Boolean).join('&')
+  return `/${parts.join('/')}`.replace(/:[A-Za-z]+/g, '1').replace(/\/+/g, '/') + (query ? `?${query}` : '')
 }
 
 describe('route × role matrix', () => {

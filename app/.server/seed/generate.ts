@@ -317,7 +317,7 @@ export function seed(sqlite: Database.Database, scale: Scale, today: IsoDate): S
       counts.events++
     }
     if (state === 'trouble' && troubles30 === 0) {
-      insEvent.run(site, detector, `${addDays(today, -r.int(0, 6))}T07:40:00.000Z`, 'trouble', r.pick(troubleDetails), null)
+      insEvent.run(site, detector, `${addDays(today, -r.int(0, 6))}T${String(r.int(0, 23)).padStart(2, '0')}:${String(r.int(0, 59)).padStart(2, '0')}:00.000Z`, 'trouble', r.pick(troubleDetails), null)
       counts.events++
     }
   }

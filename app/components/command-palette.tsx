@@ -1,0 +1,142 @@
+import { createContext, useContext, useEffect, useMemo, useState } from 'react'
+import { useNavigate } from 'react-router'
+import useSWR from 'swr'
+import type { Section } from '~/utils/sections'
+import { keysFor, SHORTCUTS, showChord } from '~/utils/shortcuts'
+import { useShortcut } from './keyboard'
+import { CommandDialog, CommandEmpty, CommandGroup, CommandInput, CommandItem, CommandList, Kbd } from './ui/command'
+import { addRecent, readRecent, type RecentItem } from '~/utils/recent'
+
+export interface PaletteAction {
+  id: string
+  label: string
+  run: () => void
+}
+
+// Pages with a selection publish what can be done to it; the palette lists those actions.
+const ActionsContext = createContext<{ actions: PaletteAction[]; setActions: (a: PaletteAction[]) => void } | null>(null)
+
+export function PaletteActionsProvider({ children }: { children: React.ReactNode }) {
+  const [actions, setActions] = useState<PaletteAction[]>([])
+  const value = useMemo(() => ({ actions, setActions }), [actions])
+  return <ActionsContext.Provider value={value}>{children}</ActionsContext.Provider>
+}
+
+export function usePaletteActions(actions: PaletteAction[]) {
+  const ctx = useContext(ActionsContext)
+  const key = actions.map((a) => a.id + a.label).join('|')
+  useEffect(() => {
+    ctx?.setActions(actions)
+    return () => ctx?.setActions([])
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+  }, [key])
+}
+
+interface SearchGroup {
+  kind: 'customer' | 'site' | 'unit' | 'detector'
+  items: Array<{ id: number; title: string; detail: string; href: string }>
+}
+
+const KIND_LABELS: Record<SearchGroup['kind'], string> = { customer: 'Customers', site: 'Sites', unit: 'Units', detector: 'Detectors' }
+const fetchJson = (url: string) => fetch(url, { headers: { Accept: 'application/json' } }).then((r) => (r.ok ? r.json() : { groups: [] }))
+
+export function CommandPalette({ sections }: { sections: Section[] }) {
+  const [open, setOpen] = useState(false)
+  const [text, setText] = useState('')
+  const [recent, setRecent] = useState<RecentItem[]>([])
+  const navigate = useNavigate()
+  const actions = useContext(ActionsContext)?.actions ?? []
+  const q = text.trim()
+  // Keep the last answer on screen while the next keystroke's answer is on its way.
+  const { data, isLoading } = useSWR<{ groups: SearchGroup[] }>(open && q.length > 0 ? `/api/search?q=${encodeURIComponent(q)}` : null, fetchJson, {
+    keepPreviousData: true,
+    dedupingInterval: 2_000,
+  })
+
+  useShortcut('palette', () => setOpen((o) => !o))
+  useEffect(() => {
+    if (open) setRecent(readRecent())
+    else setText('')
+  }, [open])
+
+  // Close first, then act, so focus lands on the page the command leads to.
+  const run = (fn: () => void) => {
+    setOpen(false)
+    fn()
+  }
+  const go = (item: RecentItem) =>
+    run(() => {
+      addRecent(item)
+      navigate(item.href)
+    })
+  const matches = (label: string) => !q || label.toLowerCase().includes(q.toLowerCase())
+  const goShortcut = (to: string) => keysFor(`go:${to}`)[0]
+  const mac = typeof navigator !== 'undefined' && /Mac/.test(navigator.platform)
+
+  return (
+    <CommandDialog open={open} onOpenChange={setOpen} label="Command palette">
+      <CommandInput value={text} onValueChange={setText} placeholder="Go to, find a customer, site, unit or detector, or run an action…" />
+      <CommandList>
+        <CommandEmpty>{isLoading ? 'Searching…' : 'Nothing matches.'}</CommandEmpty>
+        {actions.filter((a) => matches(a.label)).length > 0 && (
+          <CommandGroup heading="Selection">
+            {actions
+              .filter((a) => matches(a.label))
+              .map((a) => (
+                <CommandItem key={a.id} value={`action:${a.id}`} onSelect={() => run(a.run)}>
+                  {a.label}
+                </CommandItem>
+              ))}
+          </CommandGroup>
+        )}
+        {q.length > 0 &&
+          data?.groups
+            .filter((g) => g.items.length > 0)
+            .map((g) => (
+              <CommandGroup key={g.kind} heading={KIND_LABELS[g.kind]}>
+                {g.items.map((item) => (
+                  <CommandItem key={item.href} value={item.href} onSelect={() => go({ href: item.href, title: item.title, kind: g.kind })}>
+                    <span className="min-w-0 truncate">
+                      <span className={g.kind === 'detector' || g.kind === 'unit' ? 'font-mono' : 'font-medium'}>{item.title}</span>
+                      <span className="ml-2 text-xs text-ink-faint">{item.detail}</span>
+                    </span>
+                  </CommandItem>
+                ))}
+              </CommandGroup>
+            ))}
+        {!q && recent.length > 0 && (
+          <CommandGroup heading="Recent">
+            {recent.map((item) => (
+              <CommandItem key={item.href} value={`recent:${item.href}`} onSelect={() => go(item)}>
+                <span className="truncate">{item.title}</span>
+                <span className="text-xs text-ink-faint capitalize">{item.kind}</span>
+              </CommandItem>
+            ))}
+          </CommandGroup>
+        )}
+        {sections.filter((s) => matches(s.label)).length > 0 && (
+          <CommandGroup heading="Go to">
+            {sections
+              .filter((s) => matches(s.label))
+              .map((s) => (
+                <CommandItem key={s.to} value={`section:${s.to}`} onSelect={() => run(() => navigate(s.to))}>
+                  {s.label}
+                  {goShortcut(s.to) && <Kbd>{showChord(goShortcut(s.to), mac)}</Kbd>}
+                </CommandItem>
+              ))}
+          </CommandGroup>
+        )}
+        {SHORTCUTS.filter((s) => s.group !== 'Go to' && matches(s.label)).length > 0 && (
+          <CommandGroup heading="Keys">
+            {SHORTCUTS.filter((s) => s.group !== 'Go to' && matches(s.label)).map((s) => (
+              <CommandItem key={s.id} value={`key:${s.id}`} onSelect={() => run(() => window.dispatchEvent(new CustomEvent('dk:help')))}>
+                <span>{s.label}</span>
+                <Kbd>{s.keys.map((k) => showChord(k, mac)).join(' / ')}</Kbd>
+              </CommandItem>
+            ))}
+          </CommandGroup>
+        )}
+      </CommandList>
+    </CommandDialog>
+  )
+}

@@ -1,0 +1,317 @@
+import { flexRender, getCoreRowModel, useReactTable, type ColumnDef, type RowSelectionState, type VisibilityState } from '@tanstack/react-table'
+import { elementScroll, observeElementOffset, useVirtualizer } from '@tanstack/react-virtual'
+import { useCallback, useEffect, useMemo, useRef, useState } from 'react'
+import { useNavigate, useSearchParams } from 'react-router'
+import useSWR from 'swr'
+import { formatCount } from '~/utils/format'
+import { useShortcut } from './keyboard'
+
+export interface Page<Row> {
+  rows: Row[]
+  total: number
+  offset: number
+  limit: number
+  totalExact: boolean
+}
+
+export interface DataTableProps<Row extends { id: number }> {
+  /** JSON list route, e.g. '/api/devices'. */
+  endpoint: string
+  /** Query string of the current filters (without offset/limit), from the URL. */
+  query: string
+  columns: ColumnDef<Row>[]
+  rowHref?: (row: Row) => string
+  label: string
+  /** Where per-person column choices are remembered. */
+  storageKey: string
+  selection?: RowSelectionState
+  onSelectionChange?: (next: RowSelectionState) => void
+  /** Rows kept by id as they load, so the page can act on a selection it no longer shows. */
+  onRowsSeen?: (rows: Row[]) => void
+  refreshMs?: number
+}
+
+const PAGE = 100
+const ROW_PX = 36
+// Browsers cap an element's height (about 33 million px in Chromium): 2 million rows at 36 px do not
+// fit. Past this height the scroll box is shrunk and offsets are scaled between it and the virtualizer.
+const MAX_SCROLL_PX = 8_000_000
+// How long the visible range must rest before windows are fetched: a fast fling requests nothing.
+const SETTLE_MS = 90
+
+const fetchPage = async (url: string) => {
+  const res = await fetch(url, { headers: { Accept: 'application/json' } })
+  if (!res.ok) throw new Error((await res.json().catch(() => null))?.error ?? `HTTP ${res.status}`)
+  return res.json()
+}
+
+/** Loads one window of rows with SWR and reports it upward; renders nothing. */
+function WindowLoader<Row>({ url, onPage, refreshMs }: { url: string; onPage: (url: string, page: Page<Row> | undefined, error?: Error) => void; refreshMs?: number }) {
+  // No keepPreviousData here: each window must answer for its own URL. The table itself keeps the
+  // previous filter's rows on screen until the new first window arrives.
+  const { data, error } = useSWR<Page<Row>>(url, fetchPage, {
+    revalidateOnFocus: true,
+    dedupingInterval: 4_000,
+    refreshInterval: refreshMs,
+  })
+  useEffect(() => onPage(url, data, error), [url, data, error, onPage])
+  return null
+}
+
+/**
+ * A fleet table: columns and sorting from TanStack Table, rows placed by TanStack Virtual, windows of
+ * 100 rows fetched with SWR as they scroll into view. Only the visible rows are in the DOM.
+ */
+export function DataTable<Row extends { id: number }>(p: DataTableProps<Row>) {
+  const [params, setParams] = useSearchParams()
+  const navigate = useNavigate()
+  const scrollRef = useRef<HTMLDivElement>(null)
+  const pages = useRef(new Map<string, Page<Row>>())
+  const [, setVersion] = useState(0)
+  const [total, setTotal] = useState<{ n: number; exact: boolean } | null>(null)
+  const [error, setError] = useState<string | null>(null)
+  const [cursor, setCursor] = useState(0)
+  const [windows, setWindows] = useState<number[]>([0])
+  const [visibility, setVisibility] = useState<VisibilityState>({})
+  const [ownSelection, setOwnSelection] = useState<RowSelectionState>({})
+  const selection = p.selection ?? ownSelection
+  const setSelection = p.onSelectionChange ?? setOwnSelection
+  const lastQuery = useRef(p.query)
+  const [shownQuery, setShownQuery] = useState(p.query)
+
+  const sort = params.get('sort')
+  const dir = (params.get('dir') as 'asc' | 'desc' | null) ?? 'asc'
+  const urlFor = useCallback((w: number, query = p.query) => `${p.endpoint}?${query ? `${query}&` : ''}offset=${w * PAGE}&limit=${PAGE}`, [p.endpoint, p.query])
+
+  useEffect(() => {
+    try {
+      setVisibility(JSON.parse(localStorage.getItem(`ductkeeper:cols:${p.storageKey}`) ?? '{}'))
+    } catch {
+      // A damaged entry just means default columns.
+    }
+  }, [p.storageKey])
+
+  // A new filter or sort starts at the top; rows of the old one stay on screen until the new arrive.
+  useEffect(() => {
+    if (lastQuery.current === p.query) return
+    lastQuery.current = p.query
+    setCursor(0)
+    setWindows([0])
+    scrollRef.current?.scrollTo({ top: 0 })
+  }, [p.query])
+
+  const onPage = useCallback(
+    (url: string, page: Page<Row> | undefined, err?: Error) => {
+      if (err) setError(err.message)
+      if (!page) return
+      setError(null)
+      pages.current.set(url, page)
+      if (url.startsWith(`${p.endpoint}?${p.query ? `${p.query}&` : ''}offset=`)) {
+        setTotal({ n: page.total, exact: page.totalExact })
+        setShownQuery(p.query)
+        p.onRowsSeen?.(page.rows)
+      }
+      setVersion((v) => v + 1)
+    },
+    [p.endpoint, p.query, p.onRowsSeen],
+  )
+
+  const count = total?.n ?? 0
+  const scale = Math.max(1, (count * ROW_PX) / MAX_SCROLL_PX)
+  // Offsets map so that the real bottom lands on the virtual bottom: (virtual − view) / (real − view).
+  const view = scrollRef.current?.clientHeight ?? 600
+  const ratioRef = useRef(1)
+  ratioRef.current = scale === 1 ? 1 : (count * ROW_PX - view) / ((count * ROW_PX) / scale - view)
+  const virtualizer = useVirtualizer({
+    count,
+    getScrollElement: () => scrollRef.current,
+    estimateSize: () => ROW_PX,
+    overscan: 12,
+    observeElementOffset: (instance, cb) => observeElementOffset(instance, (offset, isScrolling) => cb(offset * ratioRef.current, isScrolling)),
+    scrollToFn: (offset, options, instance) => elementScroll(offset / ratioRef.current, options, instance),
+  })
+  // Rows are placed in the shrunk box: virtual position, less the part of the offset that was scaled away.
+  const shift = (virtualizer.scrollOffset ?? 0) * (1 - 1 / ratioRef.current)
+  const items = virtualizer.getVirtualItems()
+  const first = items[0]?.index ?? 0
+  const last = items[items.length - 1]?.index ?? 0
+
+  useEffect(() => {
+    const t = setTimeout(() => {
+      const from = Math.floor(first / PAGE)
+      const to = Math.floor(last / PAGE)
+      const next = Array.from({ length: to - from + 1 }, (_, i) => from + i)
+      setWindows((prev) => (prev.join() === next.join() ? prev : next))
+    }, SETTLE_MS)
+    return () => clearTimeout(t)
+  }, [first, last])
+
+  const rowAt = (i: number): Row | undefined => {
+    const page = pages.current.get(urlFor(Math.floor(i / PAGE), shownQuery))
+    return page?.rows[i - page.offset]
+  }
+  const stale = shownQuery !== p.query
+  const visibleRows = useMemo(() => {
+    const out: Row[] = []
+    for (let i = first; i <= last && i < count; i++) {
+      const r = rowAt(i)
+      if (r) out.push(r)
+    }
+    return out
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+  }, [first, last, count, pages.current.size, shownQuery, stale])
+
+  const table = useReactTable({
+    data: visibleRows,
+    columns: p.columns,
+    getRowId: (r) => String(r.id),
+    getCoreRowModel: getCoreRowModel(),
+    manualSorting: true,
+    enableRowSelection: true,
+    state: { rowSelection: selection, columnVisibility: visibility, sorting: sort ? [{ id: sort, desc: dir === 'desc' }] : [] },
+    onRowSelectionChange: (u) => setSelection(typeof u === 'function' ? u(selection) : u),
+    onColumnVisibilityChange: (u) => {
+      const next = typeof u === 'function' ? u(visibility) : u
+      setVisibility(next)
+      localStorage.setItem(`ductkeeper:cols:${p.storageKey}`, JSON.stringify(next))
+    },
+  })
+
+  const setSort = (id: string) => {
+    const next = new URLSearchParams(params)
+    if (sort === id) next.set('dir', dir === 'asc' ? 'desc' : 'asc')
+    else {
+      next.set('sort', id)
+      next.set('dir', 'asc')
+    }
+    setParams(next, { replace: true })
+  }
+
+  const moveTo = (i: number) => {
+    const clamped = Math.max(0, Math.min(count - 1, i))
+    setCursor(clamped)
+    virtualizer.scrollToIndex(clamped, { align: 'auto' })
+    return clamped
+  }
+  const toggle = (i: number, on?: boolean) => {
+    const row = rowAt(i)
+    if (!row) return
+    const id = String(row.id)
+    const next = { ...selection }
+    if (on ?? !next[id]) next[id] = true
+    else delete next[id]
+    setSelection(next)
+  }
+  useShortcut('row-down', () => moveTo(cursor + 1), count > 0)
+  useShortcut('row-up', () => moveTo(cursor - 1), count > 0)
+  useShortcut('toggle-select', () => toggle(cursor), count > 0)
+  useShortcut('extend-down', () => {
+    toggle(cursor, true)
+    toggle(moveTo(cursor + 1), true)
+  }, count > 0)
+  useShortcut('extend-up', () => {
+    toggle(cursor, true)
+    toggle(moveTo(cursor - 1), true)
+  }, count > 0)
+  useShortcut('open', () => {
+    const row = rowAt(cursor)
+    if (row && p.rowHref) navigate(p.rowHref(row))
+  }, count > 0)
+  useShortcut('close', () => setSelection({}), Object.keys(selection).length > 0)
+
+  const leaves = table.getVisibleLeafColumns()
+  // A column's size under 10 is a share of the free width; otherwise a fixed width in pixels.
+  const grid = leaves.map((c) => ((c.columnDef.size ?? 1) < 10 ? `minmax(${c.columnDef.minSize ?? 120}px, ${c.columnDef.size ?? 1}fr)` : `${c.columnDef.size}px`)).join(' ')
+  const minWidth = leaves.reduce((w, c) => w + ((c.columnDef.size ?? 1) < 10 ? (c.columnDef.minSize ?? 120) : (c.columnDef.size as number)), 0)
+  const selected = Object.keys(selection).length
+
+  return (
+    <div className="rounded-md border border-line bg-panel">
+      {windows.map((w) => (
+        <WindowLoader<Row> key={urlFor(w)} url={urlFor(w)} onPage={onPage} refreshMs={p.refreshMs} />
+      ))}
+      <div className="flex flex-wrap items-center justify-between gap-2 border-b border-line px-3 py-2 text-xs text-ink-soft">
+        <span role="status" aria-live="polite">
+          {total === null ? 'Loading…' : `${formatCount(total.n)}${total.exact ? '' : ' (recent count)'} ${p.label}`}
+          {selected > 0 && ` · ${formatCount(selected)} selected (Esc clears)`}
+          {error && <span className="ml-2 text-late">Could not load: {error}</span>}
+        </span>
+        <details className="relative">
+          <summary className="cursor-pointer rounded-sm px-2 py-0.5 hover:bg-sunken">Columns</summary>
+          <div className="absolute right-0 z-10 mt-1 w-48 rounded-md border border-line bg-panel p-2 shadow-lg">
+            {table.getAllLeafColumns().filter((c) => c.getCanHide()).map((c) => (
+              <label key={c.id} className="flex items-center gap-2 py-0.5 text-sm text-ink">
+                <input type="checkbox" checked={c.getIsVisible()} onChange={c.getToggleVisibilityHandler()} />
+                {typeof c.columnDef.header === 'string' ? c.columnDef.header : c.id}
+              </label>
+            ))}
+          </div>
+        </details>
+      </div>
+      <div ref={scrollRef} className="relative h-[calc(100dvh-15rem)] min-h-80 overflow-auto" tabIndex={-1}>
+        <div role="table" aria-label={p.label} aria-rowcount={count + 1} style={{ minWidth }}>
+          <div role="rowgroup" className="sticky top-0 z-[1] border-b border-line bg-sunken">
+            {table.getHeaderGroups().map((hg) => (
+              <div role="row" key={hg.id} className="grid" style={{ gridTemplateColumns: grid }}>
+                {hg.headers.map((h) => {
+                  const sorted = h.column.getIsSorted()
+                  return (
+                    <div
+                      role="columnheader"
+                      key={h.id}
+                      aria-sort={sorted ? (sorted === 'desc' ? 'descending' : 'ascending') : undefined}
+                      className="truncate px-3 py-2 text-left text-xs font-medium text-ink-soft uppercase"
+                    >
+                      {h.column.getCanSort() ? (
+                        <button type="button" onClick={() => setSort(h.column.id)} className="uppercase hover:text-ink">
+                          {flexRender(h.column.columnDef.header, h.getContext())}
+                          <span aria-hidden="true" className="ml-1">
+                            {sorted === 'asc' ? '▲' : sorted === 'desc' ? '▼' : ''}
+                          </span>
+                        </button>
+                      ) : (
+                        flexRender(h.column.columnDef.header, h.getContext())
+                      )}
+                    </div>
+                  )
+                })}
+              </div>
+            ))}
+          </div>
+          <div role="rowgroup" className={`relative ${stale ? 'opacity-60' : ''}`} style={{ height: virtualizer.getTotalSize() / scale }}>
+            {items.map((v) => {
+              const data = rowAt(v.index)
+              const row = data ? table.getRowModel().rowsById[String(data.id)] : undefined
+              const isCursor = v.index === cursor
+              return (
+                <div
+                  role="row"
+                  key={v.key}
+                  data-index={v.index}
+                  aria-rowindex={v.index + 2}
+                  aria-selected={row?.getIsSelected() ?? false}
+                  data-cursor={isCursor || undefined}
+                  onClick={() => setCursor(v.index)}
+                  onDoubleClick={() => data && p.rowHref && navigate(p.rowHref(data))}
+                  className={`absolute inset-x-0 top-0 grid items-center border-b border-line/60 text-sm ${
+                    row?.getIsSelected() ? 'bg-accent-soft' : v.index % 2 ? 'bg-paper/40' : ''
+                  } ${isCursor ? 'outline-2 -outline-offset-2 outline-accent' : ''}`}
+                  style={{ gridTemplateColumns: grid, height: ROW_PX, transform: `translateY(${v.start - shift}px)` }}
+                >
+                  {row
+                    ? row.getVisibleCells().map((cell) => (
+                        <div role="cell" key={cell.id} className="truncate px-3">
+                          {flexRender(cell.column.columnDef.cell, cell.getContext())}
+                        </div>
+                      ))
+                    : <div role="cell" className="px-3 text-ink-faint">Loading…</div>}
+                </div>
+              )
+            })}
+          </div>
+          {total?.n === 0 && <p className="px-4 py-10 text-center text-sm text-ink-soft">Nothing matches these filters.</p>}
+        </div>
+      </div>
+    </div>
+  )
+}

@@ -1,0 +1,111 @@
+import { useEffect, useRef, useState } from 'react'
+import { useSearchParams } from 'react-router'
+import { useShortcut } from './keyboard'
+import { inputClass } from './ui/page-header'
+
+export interface FilterOption {
+  param: string
+  label: string
+  /** What the empty choice means, when it is not "any". */
+  anyLabel?: string
+  options: Array<{ value: string; label: string }>
+}
+
+/** The filters of a list page, kept in the URL so a view can be bookmarked and shared. */
+export function FilterBar({ placeholder, filters, children }: { placeholder: string; filters: FilterOption[]; children?: React.ReactNode }) {
+  const [params, setParams] = useSearchParams()
+  const [text, setText] = useState(params.get('q') ?? '')
+  const input = useRef<HTMLInputElement>(null)
+  useShortcut('focus-filter', () => input.current?.focus())
+
+  // Typing settles for a moment before the URL (and so the query) changes.
+  useEffect(() => {
+    const t = setTimeout(() => {
+      if ((params.get('q') ?? '') === text.trim()) return
+      const next = new URLSearchParams(params)
+      if (text.trim()) next.set('q', text.trim())
+      else next.delete('q')
+      setParams(next, { replace: true })
+    }, 250)
+    return () => clearTimeout(t)
+  }, [text, params, setParams])
+
+  const set = (param: string, value: string) => {
+    const next = new URLSearchParams(params)
+    if (value) next.set(param, value)
+    else next.delete(param)
+    setParams(next, { replace: true })
+  }
+  const active = filters.filter((f) => params.get(f.param)).length + (params.get('q') ? 1 : 0)
+
+  return (
+    <div role="search" className="mb-3 flex flex-wrap items-end gap-2">
+      <label className="flex flex-col gap-1 text-xs font-medium text-ink-soft">
+        Filter <span className="sr-only">(press / to focus)</span>
+        <input
+          ref={input}
+          type="search"
+          value={text}
+          onChange={(e) => setText(e.target.value)}
+          onKeyDown={(e) => {
+            if (e.key === 'Escape') {
+              e.preventDefault()
+              e.currentTarget.blur()
+            }
+          }}
+          placeholder={placeholder}
+          aria-keyshortcuts="/"
+          className={`${inputClass} w-64`}
+        />
+      </label>
+      {filters.map((f) => (
+        <label key={f.param} className="flex flex-col gap-1 text-xs font-medium text-ink-soft">
+          {f.label}
+          <select
+            value={params.get(f.param) ?? ''}
+            onChange={(e) => set(f.param, e.target.value)}
+            onKeyDown={(e) => {
+              if (e.key === 'Escape') {
+                e.preventDefault()
+                e.currentTarget.blur()
+              }
+            }}
+            className={inputClass}
+          >
+            <option value="">{f.anyLabel ?? 'Any'}</option>
+            {f.options.map((o) => (
+              <option key={o.value} value={o.value}>
+                {o.label}
+              </option>
+            ))}
+          </select>
+        </label>
+      ))}
+      {active > 0 && (
+        <button
+          type="button"
+          onClick={() => {
+            setText('')
+            const next = new URLSearchParams()
+            for (const k of ['sort', 'dir']) if (params.get(k)) next.set(k, params.get(k)!)
+            setParams(next, { replace: true })
+          }}
+          className="mb-0.5 rounded-sm px-2 py-1.5 text-xs text-ink-soft underline hover:text-ink"
+        >
+          Clear {active} filter{active === 1 ? '' : 's'}
+        </button>
+      )}
+      {children}
+    </div>
+  )
+}
+
+/** The list query string: every filter and the sort, never paging (the table pages itself). */
+export function listQuery(params: URLSearchParams): string {
+  const next = new URLSearchParams(params)
+  next.delete('offset')
+  next.delete('limit')
+  next.delete('view')
+  next.sort()
+  return next.toString()
+}

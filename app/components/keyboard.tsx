@@ -1,0 +1,77 @@
+import { createContext, useCallback, useContext, useEffect, useMemo, useRef } from 'react'
+import { useNavigate } from 'react-router'
+import { chordOf, SHORTCUTS, type ShortcutId } from '~/utils/shortcuts'
+
+type Handler = (e: KeyboardEvent) => void
+interface Registry {
+  register: (id: ShortcutId, handler: Handler) => () => void
+}
+
+const KeyboardContext = createContext<Registry | null>(null)
+
+const editable = (t: EventTarget | null) =>
+  t instanceof HTMLElement && (t.isContentEditable || ['INPUT', 'TEXTAREA', 'SELECT'].includes(t.tagName))
+
+// Sequences (g then a letter) wait this long for their second key.
+const SEQUENCE_MS = 1200
+
+/**
+ * One key listener for the console. Pages register handlers for shortcut ids; the newest handler
+ * for an id wins, so a dialog can take Escape from the list beneath it.
+ */
+export function KeyboardProvider({ children }: { children: React.ReactNode }) {
+  const handlers = useRef(new Map<ShortcutId, Handler[]>())
+  const pending = useRef<{ first: string; at: number } | null>(null)
+  const navigate = useNavigate()
+
+  const register = useCallback((id: ShortcutId, handler: Handler) => {
+    const list = handlers.current.get(id) ?? []
+    handlers.current.set(id, [...list, handler])
+    return () => handlers.current.set(id, (handlers.current.get(id) ?? []).filter((h) => h !== handler))
+  }, [])
+
+  useEffect(() => {
+    function onKey(e: KeyboardEvent) {
+      if (e.defaultPrevented || e.isComposing) return
+      const chord = chordOf(e)
+      const inField = editable(e.target)
+      // While typing, only the palette chord and Escape act; everything else is text.
+      if (inField && chord !== 'mod+k' && chord !== 'Escape') return
+      let typed = chord
+      if (pending.current && Date.now() - pending.current.at < SEQUENCE_MS) {
+        typed = `${pending.current.first} ${chord}`
+        pending.current = null
+      } else if (chord === 'g') {
+        pending.current = { first: 'g', at: Date.now() }
+        return
+      }
+      const shortcut = SHORTCUTS.find((s) => s.keys.includes(typed))
+      if (!shortcut) return
+      const list = handlers.current.get(shortcut.id)
+      const handler = list?.[list.length - 1]
+      if (handler) {
+        e.preventDefault()
+        handler(e)
+      } else if (shortcut.id.startsWith('go:')) {
+        e.preventDefault()
+        navigate(shortcut.id.slice(3))
+      }
+    }
+    window.addEventListener('keydown', onKey)
+    return () => window.removeEventListener('keydown', onKey)
+  }, [navigate])
+
+  const value = useMemo(() => ({ register }), [register])
+  return <KeyboardContext.Provider value={value}>{children}</KeyboardContext.Provider>
+}
+
+/** Binds a handler to a shortcut while the component is mounted (and `enabled`). */
+export function useShortcut(id: ShortcutId, handler: Handler, enabled = true) {
+  const registry = useContext(KeyboardContext)
+  const latest = useRef(handler)
+  latest.current = handler
+  useEffect(() => {
+    if (!registry || !enabled) return
+    return registry.register(id, (e) => latest.current(e))
+  }, [registry, id, enabled])
+}

@@ -1,0 +1,248 @@
+import { data, Link } from 'react-router'
+import { z } from 'zod'
+import { requireUser } from '~/.server/auth'
+import { getDb } from '~/.server/db'
+import { customerDueWork, customerSites, customerTotals, getCustomer, LIST_CAP } from '~/.server/repos/pages'
+import { officeToday } from '~/.server/today'
+import { Caution } from '~/components/caution'
+import { StateBadge } from '~/components/state-badge'
+import { daysBetween } from '~/domain/dates'
+import type { RouteAccess } from '~/domain/permissions'
+import { formatCount, formatDay, percent } from '~/utils/format'
+import type { Route } from './+types/_app.customers.$customerId'
+
+export const handle = { access: { loader: 'view:fleet' } satisfies RouteAccess }
+
+export const meta: Route.MetaFunction = ({ data }) => [
+  { title: data ? `${data.customer.name} · Ductkeeper` : 'Customer · Ductkeeper' },
+]
+
+const params = z.object({ customerId: z.coerce.number().int().positive() })
+
+export async function loader({ request, params: raw }: Route.LoaderArgs) {
+  await requireUser(request, 'view:fleet')
+  const parsed = params.safeParse(raw)
+  if (!parsed.success) throw data('No such customer.', { status: 404 })
+  const id = parsed.data.customerId
+  const db = getDb()
+  const customer = getCustomer(db, id)
+  if (!customer) throw data('No such customer.', { status: 404 })
+  const today = officeToday()
+  const dueWork = customerDueWork(db, id).map((d) => ({
+    ...d,
+    daysOverdue: d.nextDueOn ? Math.max(0, daysBetween(d.nextDueOn, today)) : null,
+  }))
+  return { customer, today, totals: customerTotals(db, id), dueWork, sites: customerSites(db, id, today), cap: LIST_CAP }
+}
+
+const KIND_LABELS: Record<string, string> = {
+  restaurant: 'Restaurant group',
+  retail: 'Retail',
+  office: 'Offices',
+  school: 'Schools',
+  healthcare: 'Healthcare',
+}
+
+// Long-neglected detectors run to thousands of days, which nobody reads at a glance.
+function overdueWords(days: number) {
+  if (days < 90) return `${days} ${days === 1 ? 'day' : 'days'}`
+  if (days < 730) return `${Math.round(days / 30.44)} months`
+  return `${(days / 365.25).toFixed(1)} years`
+}
+
+export default function Customer({ loaderData }: Route.ComponentProps) {
+  const { customer: c, totals: t, dueWork, sites, today, cap } = loaderData
+  return (
+    <div className="mx-auto max-w-6xl space-y-6">
+      <header>
+        <p className="text-sm text-ink-faint">Customer · {KIND_LABELS[c.kind] ?? c.kind}</p>
+        <div className="mt-1 flex flex-wrap items-baseline justify-between gap-x-4 gap-y-1">
+          <h1 className="text-2xl font-semibold">{c.name}</h1>
+          <p className="text-sm text-ink-faint">Figures as of {formatDay(today)}</p>
+        </div>
+        <p className="mt-1 flex flex-wrap gap-x-3 gap-y-0.5 text-sm text-ink-soft">
+          <span>{c.contactName ?? 'No contact on record'}</span>
+          {c.contactPhone && (
+            <a href={`tel:${c.contactPhone}`} className="font-mono hover:underline">
+              {c.contactPhone}
+            </a>
+          )}
+          {c.contactEmail && (
+            <a href={`mailto:${c.contactEmail}`} className="hover:underline">
+              {c.contactEmail}
+            </a>
+          )}
+        </p>
+      </header>
+
+      <section aria-label="Totals" className="grid grid-cols-2 gap-3 sm:grid-cols-4">
+        <Figure label="Sites" value={t.sites} />
+        <Figure label="Units" value={t.units} />
+        <Figure label="Detectors" value={t.detectors} />
+        <Figure label="Overdue" value={t.overdue} note={`${percent(t.overdue, t.detectors)} of detectors`} tone="text-late" />
+        <Figure label="Due within 30 days" value={t.dueSoon} tone="text-soon" />
+        <Figure label="In trouble" value={t.inTrouble} tone="text-trouble" />
+        <Figure label="Out of service" value={t.outOfService} />
+        <Figure label="Delay differs from policy" value={t.delayDisagrees} tone="text-late" />
+      </section>
+
+      <section aria-labelledby="due-h" className="rounded-md border border-line bg-panel">
+        <div className="flex flex-wrap items-baseline justify-between gap-2 border-b border-line px-4 py-3">
+          <h2 id="due-h" className="font-semibold">
+            Due work: most overdue first
+          </h2>
+          <span className="text-xs text-ink-faint">
+            {t.overdue === 0
+              ? 'Nothing overdue'
+              : `Showing ${formatCount(dueWork.length)} of ${formatCount(t.overdue)} overdue detectors`}
+          </span>
+        </div>
+        <div className="px-4 pt-3">
+          <Caution compact />
+        </div>
+        {dueWork.length === 0 ? (
+          <p className="px-4 py-3 text-sm text-ink-soft">Every detector of {c.name} is within its intervals.</p>
+        ) : (
+          <div className="overflow-x-auto">
+            <table className="mt-2 w-full text-sm">
+              <thead className="text-left text-xs text-ink-faint uppercase">
+                <tr>
+                  <th className="px-4 py-2 font-medium">Detector</th>
+                  <th className="hidden px-2 py-2 font-medium sm:table-cell">Unit</th>
+                  <th className="hidden px-2 py-2 font-medium sm:table-cell">Site</th>
+                  <th className="px-2 py-2 font-medium">Fell due</th>
+                  <th className="hidden px-2 py-2 text-right font-medium sm:table-cell">Overdue by</th>
+                  <th className="hidden px-2 py-2 font-medium sm:table-cell">State</th>
+                  <th className="px-4 py-2 text-right font-medium">Risk</th>
+                </tr>
+              </thead>
+              <tbody>
+                {dueWork.map((d) => (
+                  <tr key={d.id} className="border-t border-line/70 align-top sm:align-middle">
+                    <td className="px-4 py-2">
+                      <Link to={`/devices/${d.id}`} className="font-mono font-medium text-accent hover:underline">
+                        {d.tag}
+                      </Link>
+                      <div className="text-xs text-ink-faint sm:hidden">
+                        {d.position === 'supply' ? 'Supply' : 'Return'} · {d.unitTag} · {d.siteName}
+                      </div>
+                    </td>
+                    <td className="hidden px-2 py-2 whitespace-nowrap sm:table-cell">
+                      <span className="font-mono">{d.unitTag}</span>{' '}
+                      <span className="text-xs text-ink-faint">{d.position === 'supply' ? 'supply' : 'return'}</span>
+                    </td>
+                    <td className="hidden px-2 py-2 sm:table-cell">
+                      <Link to={`/sites/${d.siteId}`} className="hover:underline">
+                        {d.siteName}
+                      </Link>
+                    </td>
+                    <td className="px-2 py-2 whitespace-nowrap">
+                      <span className="font-mono text-xs">{d.nextDueOn ?? '—'}</span>
+                      <div className="space-y-1 sm:hidden">
+                        {d.daysOverdue !== null && <div className="text-xs text-late">{overdueWords(d.daysOverdue)} over</div>}
+                        {d.state !== 'normal' && <StateBadge value={d.state} />}
+                      </div>
+                    </td>
+                    <td className="hidden px-2 py-2 text-right text-xs whitespace-nowrap text-late sm:table-cell">
+                      {d.daysOverdue !== null ? overdueWords(d.daysOverdue) : '—'}
+                    </td>
+                    <td className="hidden px-2 py-2 sm:table-cell">
+                      <StateBadge value={d.state} />
+                    </td>
+                    <td className="px-4 py-2 text-right font-mono">{d.riskScore}</td>
+                  </tr>
+                ))}
+              </tbody>
+            </table>
+          </div>
+        )}
+      </section>
+
+      <section aria-labelledby="sites-h" className="rounded-md border border-line bg-panel">
+        <div className="flex flex-wrap items-baseline justify-between gap-2 border-b border-line px-4 py-3">
+          <h2 id="sites-h" className="font-semibold">
+            Sites
+          </h2>
+          <span className="text-xs text-ink-faint">
+            {t.sites > sites.length
+              ? `Showing ${formatCount(sites.length)} of ${formatCount(t.sites)}, most overdue first`
+              : `${formatCount(t.sites)} ${t.sites === 1 ? 'site' : 'sites'}, most overdue first`}
+          </span>
+        </div>
+        {sites.length === 0 ? (
+          <p className="px-4 py-3 text-sm text-ink-soft">No sites on record.</p>
+        ) : (
+          <div className="overflow-x-auto">
+            <table className="w-full text-sm">
+              <thead className="text-left text-xs text-ink-faint uppercase">
+                <tr>
+                  <th className="px-4 py-2 font-medium">Site</th>
+                  <th className="hidden px-2 py-2 font-medium md:table-cell">City</th>
+                  <th className="hidden px-2 py-2 text-right font-medium sm:table-cell">Detectors</th>
+                  <th className="px-4 py-2 text-right font-medium sm:px-2">Overdue</th>
+                  <th className="hidden px-2 py-2 text-right font-medium sm:table-cell">In trouble</th>
+                  <th className="hidden px-4 py-2 font-medium sm:table-cell">Next planned visit</th>
+                </tr>
+              </thead>
+              <tbody>
+                {sites.map((s) => (
+                  <tr key={s.id} className="border-t border-line/70 align-top">
+                    <td className="px-4 py-2">
+                      <Link to={`/sites/${s.id}`} className="font-medium text-accent hover:underline">
+                        {s.name}
+                      </Link>
+                      <div className="text-xs text-ink-faint md:hidden">
+                        {s.city}
+                        <span className="sm:hidden">
+                          {` · ${formatCount(s.detectors)} ${s.detectors === 1 ? 'detector' : 'detectors'}`}
+                          {s.inTrouble > 0 && ` · ${formatCount(s.inTrouble)} in trouble`}
+                          {' · '}
+                          {s.nextVisitOn ? <span className="whitespace-nowrap">next visit {s.nextVisitOn}</span> : 'no visit planned'}
+                        </span>
+                      </div>
+                    </td>
+                    <td className="hidden px-2 py-2 md:table-cell">{s.city}</td>
+                    <td className="hidden px-2 py-2 text-right font-mono sm:table-cell">{formatCount(s.detectors)}</td>
+                    <td className={`px-4 py-2 text-right font-mono sm:px-2 ${s.overdue > 0 ? 'font-semibold text-late' : 'text-ink-faint'}`}>
+                      {formatCount(s.overdue)}
+                    </td>
+                    <td
+                      className={`hidden px-2 py-2 text-right font-mono sm:table-cell ${s.inTrouble > 0 ? 'font-semibold text-trouble' : 'text-ink-faint'}`}
+                    >
+                      {formatCount(s.inTrouble)}
+                    </td>
+                    <td className="hidden px-4 py-2 sm:table-cell">
+                      {s.nextVisitOn ? (
+                        <>
+                          <span className="font-mono text-xs">{s.nextVisitOn}</span>
+                          <span className="text-xs text-ink-soft capitalize"> · {s.nextVisitKind}</span>
+                        </>
+                      ) : (
+                        <span className="text-xs text-ink-faint">None planned</span>
+                      )}
+                    </td>
+                  </tr>
+                ))}
+              </tbody>
+            </table>
+          </div>
+        )}
+        {t.sites > cap && (
+          <p className="border-t border-line px-4 py-2 text-xs text-ink-faint">
+            The first {formatCount(cap)} sites by overdue detectors are listed; the rest have as many overdue or fewer.
+          </p>
+        )}
+      </section>
+    </div>
+  )
+}
+
+function Figure({ label, value, note, tone }: { label: string; value: number; note?: string; tone?: string }) {
+  return (
+    <div className="rounded-md border border-line bg-panel px-3 py-2 sm:px-4 sm:py-3">
+      <div className="text-xs font-medium text-ink-faint uppercase">{label}</div>
+      <div className={`mt-1 font-mono text-xl sm:text-2xl font-semibold tabular-nums ${value > 0 && tone ? tone : ''}`}>{formatCount(value)}</div>
+      {note && <div className="text-xs text-ink-faint">{note}</div>}
+    </div>
+  )
+}

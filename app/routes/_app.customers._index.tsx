@@ -1,0 +1,40 @@
+import type { ColumnDef } from '@tanstack/react-table'
+import { requireUser } from '~/.server/auth'
+import type { CustomerListRow } from '~/.server/lists/customers'
+import { linkCell, monoCell, selectColumn } from '~/components/columns'
+import { ListPage, options } from '~/components/list-page'
+import type { RouteAccess } from '~/domain/permissions'
+import type { Route } from './+types/_app.customers._index'
+
+export const handle = { access: { loader: 'view:fleet' } satisfies RouteAccess }
+export const meta: Route.MetaFunction = () => [{ title: 'Customers · Ductkeeper' }]
+
+export async function loader({ request }: Route.LoaderArgs) {
+  await requireUser(request, 'view:fleet')
+  return null
+}
+
+const columns: ColumnDef<CustomerListRow>[] = [
+  selectColumn(),
+  { id: 'name', header: 'Customer', size: 2, minSize: 240, cell: linkCell((r) => `/customers/${r.id}`, (r) => r.name) },
+  { id: 'kind', header: 'Kind', size: 120, cell: ({ row }) => <span className="capitalize">{row.original.kind}</span> },
+  { id: 'sites', header: 'Sites', size: 90, cell: monoCell((r) => r.sites) },
+  { id: 'detectors', header: 'Detectors', size: 100, cell: monoCell((r) => r.detectors) },
+  { id: 'overdue', header: 'Overdue', size: 100, cell: ({ row }) => <span className={`font-mono text-xs ${row.original.overdue ? 'text-late' : ''}`}>{row.original.overdue}</span> },
+  { id: 'inTrouble', header: 'In trouble', size: 100, cell: ({ row }) => <span className={`font-mono text-xs ${row.original.inTrouble ? 'text-trouble' : ''}`}>{row.original.inTrouble}</span> },
+]
+
+export default function Customers() {
+  return (
+    <ListPage<CustomerListRow>
+      title="Customers"
+      page="customers"
+      endpoint="/api/customers"
+      label="customers"
+      placeholder="Customer name"
+      filters={[{ param: 'kind', label: 'Kind', options: options(['restaurant', 'retail', 'office', 'school', 'healthcare']) }]}
+      columns={columns}
+      rowHref={(r) => `/customers/${r.id}`}
+    />
+  )
+}

@@ -1,0 +1,60 @@
+import type { ColumnDef } from '@tanstack/react-table'
+import { useMemo } from 'react'
+import { useSearchParams } from 'react-router'
+import { requireUser } from '~/.server/auth'
+import { badgeCell, linkCell, monoCell, selectColumn } from '~/components/columns'
+import { DataTable } from '~/components/data-table'
+import { FilterBar, listQuery, type FilterOption } from '~/components/filter-bar'
+import { SavedViews } from '~/components/saved-views'
+import { PageHeader } from '~/components/ui/page-header'
+import type { DeviceListRow } from '~/.server/lists/devices'
+import type { RouteAccess } from '~/domain/permissions'
+import type { Route } from './+types/_app.devices._index'
+
+export const handle = { access: { loader: 'view:fleet' } satisfies RouteAccess }
+
+export const meta: Route.MetaFunction = () => [{ title: 'Detectors · Ductkeeper' }]
+
+export async function loader({ request }: Route.LoaderArgs) {
+  await requireUser(request, 'view:fleet')
+  return null
+}
+
+const FILTERS: FilterOption[] = [
+  { param: 'state', label: 'State', options: ['normal', 'trouble', 'alarm', 'supervisory', 'out-of-service'].map((v) => ({ value: v, label: v.replace(/-/g, ' ') })) },
+  { param: 'due', label: 'Due', options: [{ value: 'overdue', label: 'Overdue' }, { value: 'due-soon', label: 'Due within 30 days' }, { value: 'ok', label: 'Up to date' }] },
+  { param: 'environment', label: 'Location', options: ['clean', 'dusty', 'kitchen', 'humid'].map((v) => ({ value: v, label: v })) },
+  { param: 'housing', label: 'Housing', options: [{ value: 'standard', label: 'Standard' }, { value: 'nema4', label: 'NEMA 4' }, { value: 'nema4x', label: 'NEMA 4X' }] },
+  { param: 'delay', label: 'Delay vs policy', options: [{ value: 'agree', label: 'Agrees' }, { value: 'disagree', label: 'Disagrees' }, { value: 'unknown', label: 'Not recorded' }] },
+  { param: 'loop', label: 'Loop', options: [{ value: 'fail', label: 'Fault found' }, { value: 'incomplete', label: 'Incomplete' }, { value: 'pass', label: 'Pass' }] },
+]
+
+const columns: ColumnDef<DeviceListRow>[] = [
+  selectColumn(),
+  { id: 'tag', header: 'Tag', size: 104, cell: linkCell((r) => `/devices/${r.id}`, (r) => r.tag, true) },
+  { id: 'site', header: 'Site', size: 2, minSize: 200, cell: linkCell((r) => `/sites/${r.siteId}`, (r) => r.site) },
+  { id: 'customer', header: 'Customer', size: 1.2, minSize: 150, cell: ({ row }) => <span className="text-ink-soft">{row.original.customer}</span> },
+  { id: 'position', header: 'Duct', size: 76, cell: ({ row }) => <span className="capitalize">{row.original.position}</span> },
+  { id: 'state', header: 'State', size: 132, cell: badgeCell((r) => r.state) },
+  { id: 'due', header: 'Due', size: 116, cell: badgeCell((r) => r.due) },
+  { id: 'nextDueOn', header: 'Next due', size: 108, cell: monoCell((r) => r.nextDueOn) },
+  { id: 'environment', header: 'Location', size: 96, cell: ({ row }) => <span className="capitalize">{row.original.environment}</span> },
+  { id: 'delay', header: 'Delay', size: 132, cell: badgeCell((r) => r.delay) },
+  { id: 'loop', header: 'Loop', size: 112, cell: badgeCell((r) => r.loop) },
+  { id: 'risk', header: 'Risk', size: 64, cell: monoCell((r) => r.risk) },
+  { id: 'lastFunctionalOn', header: 'Last test', size: 108, cell: monoCell((r) => r.lastFunctionalOn) },
+]
+
+export default function Devices() {
+  const [params] = useSearchParams()
+  const query = useMemo(() => listQuery(params), [params])
+  return (
+    <div className="mx-auto max-w-[100rem]">
+      <PageHeader title="Detectors">j/k to move · x to select · Enter to open · ? for every key</PageHeader>
+      <FilterBar placeholder="Tag, serial, site, street or town" filters={FILTERS}>
+        <SavedViews page="devices" query={query} />
+      </FilterBar>
+      <DataTable<DeviceListRow> endpoint="/api/devices" query={query} columns={columns} rowHref={(r) => `/devices/${r.id}`} label="detectors" storageKey="devices" />
+    </div>
+  )
+}

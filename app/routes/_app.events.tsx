@@ -1,0 +1,67 @@
+import type { ColumnDef } from '@tanstack/react-table'
+import { Link } from 'react-router'
+import { requireUser } from '~/.server/auth'
+import type { EventListRow } from '~/.server/lists/events'
+import { linkCell, monoCell, selectColumn } from '~/components/columns'
+import { ListPage, options } from '~/components/list-page'
+import type { RouteAccess } from '~/domain/permissions'
+import type { Route } from './+types/_app.events'
+
+export const handle = { access: { loader: 'view:fleet' } satisfies RouteAccess }
+export const meta: Route.MetaFunction = () => [{ title: 'Events · Ductkeeper' }]
+
+export async function loader({ request }: Route.LoaderArgs) {
+  await requireUser(request, 'view:fleet')
+  return null
+}
+
+const KINDS = ['alarm', 'trouble', 'supervisory', 'restore', 'test', 'reset', 'cleaning', 'notice', 'change'] as const
+const GLYPH: Record<string, string> = { alarm: '◆', trouble: '▲', supervisory: '◆', restore: '✓', test: '⚑', reset: '↺', cleaning: '✧', notice: '☎', change: '✎' }
+
+// Across all events only time sorts (an index serves it); the other columns sort within a site or detector.
+const columns: ColumnDef<EventListRow>[] = [
+  selectColumn(),
+  { id: 'occurredAt', header: 'When (UTC)', size: 150, cell: monoCell((r) => r.occurredAt.slice(0, 16).replace('T', ' ')) },
+  {
+    id: 'kind',
+    header: 'Kind',
+    size: 130,
+    enableSorting: false,
+    cell: ({ row }) => (
+      <span className="capitalize">
+        <span aria-hidden="true" className="mr-1.5 font-mono text-ink-faint">
+          {GLYPH[row.original.kind] ?? '·'}
+        </span>
+        {row.original.kind}
+      </span>
+    ),
+  },
+  { id: 'detail', header: 'Detail', size: 2, minSize: 220, enableSorting: false, cell: ({ row }) => row.original.detail ?? <span className="text-ink-faint">—</span> },
+  { id: 'detector', header: 'Detector', size: 110, enableSorting: false, cell: ({ row }) =>
+      row.original.detectorId ? (
+        <Link to={`/devices/${row.original.detectorId}`} className="font-mono hover:underline" tabIndex={-1}>
+          {row.original.detectorTag}
+        </Link>
+      ) : (
+        <span className="text-ink-faint">site</span>
+      ),
+  },
+  { id: 'site', header: 'Site', size: 2, minSize: 200, enableSorting: false, cell: linkCell((r) => `/sites/${r.siteId}`, (r) => r.site) },
+  { id: 'by', header: 'By', size: 140, enableSorting: false, cell: ({ row }) => row.original.by ?? <span className="text-ink-faint">panel</span> },
+]
+
+export default function Events() {
+  return (
+    <ListPage<EventListRow>
+      title="Events"
+      page="events"
+      endpoint="/api/events"
+      label="events"
+      placeholder="Detector tag, site, street or town"
+      filters={[{ param: 'kind', label: 'Kind', options: options(KINDS) }]}
+      columns={columns}
+      rowHref={(r) => (r.detectorId ? `/devices/${r.detectorId}` : `/sites/${r.siteId}`)}
+      note="Newest first · j/k to move · Enter opens the detector"
+    />
+  )
+}

@@ -1,0 +1,454 @@
+import { data, Link } from 'react-router'
+import { z } from 'zod'
+import { requireUser } from '~/.server/auth'
+import { getDb } from '~/.server/db'
+import {
+  getSite,
+  siteCounts,
+  siteDetectors,
+  siteEvents,
+  siteNotifications,
+  siteUnits,
+  siteUpcomingVisits,
+  type SiteRecord,
+} from '~/.server/repos/pages'
+import { officeToday } from '~/.server/today'
+import { Caution } from '~/components/caution'
+import { EventTimeline } from '~/components/event-timeline'
+import { StateBadge } from '~/components/state-badge'
+import type { RouteAccess } from '~/domain/permissions'
+import { formatCount, formatDay } from '~/utils/format'
+import type { Route } from './+types/_app.sites.$siteId'
+
+export const handle = { access: { loader: 'view:fleet' } satisfies RouteAccess }
+
+export const meta: Route.MetaFunction = ({ data }) => [
+  { title: data ? `${data.site.name} · ${data.site.customerName} · Ductkeeper` : 'Site · Ductkeeper' },
+]
+
+const params = z.object({ siteId: z.coerce.number().int().positive() })
+
+// Natural order, so RTU-2 comes before RTU-10 as it does on the roof plan.
+const byTag = new Intl.Collator('en', { numeric: true, sensitivity: 'base' })
+
+export async function loader({ request, params: raw }: Route.LoaderArgs) {
+  await requireUser(request, 'view:fleet')
+  const parsed = params.safeParse(raw)
+  if (!parsed.success) throw data('No such site.', { status: 404 })
+  const id = parsed.data.siteId
+  const db = getDb()
+  const site = getSite(db, id)
+  if (!site) throw data('No such site.', { status: 404 })
+  const today = officeToday()
+  return {
+    site,
+    today,
+    now: new Date().toISOString(),
+    counts: siteCounts(db, id),
+    units: siteUnits(db, id).sort((a, b) => byTag.compare(a.tag, b.tag)),
+    detectors: siteDetectors(db, id).sort((a, b) => byTag.compare(a.tag, b.tag)),
+    visits: siteUpcomingVisits(db, id, today),
+    notifications: siteNotifications(db, id),
+    events: siteEvents(db, id),
+  }
+}
+
+const CODE_BASIS = { imc: 'International Mechanical Code (IMC)', nfpa90a: 'NFPA 90A' } as const
+const METHOD = { phone: 'By phone', email: 'By e-mail', portal: 'Through their online portal' } as const
+const METHOD_SHORT = { phone: 'Phone', email: 'E-mail', portal: 'Portal' } as const
+const delayWords = (s: number) => (s === 0 ? 'Report at once (no delay)' : `Report after a ${s / 60} min delay`)
+
+function when(iso: string, timeZone: string) {
+  return new Intl.DateTimeFormat('en-GB', {
+    timeZone,
+    day: 'numeric',
+    month: 'short',
+    year: 'numeric',
+    hour: '2-digit',
+    minute: '2-digit',
+    hourCycle: 'h23',
+  }).format(new Date(iso))
+}
+
+const sameDay = (a: string, b: string, timeZone: string) => {
+  const day = new Intl.DateTimeFormat('en-CA', { timeZone, year: 'numeric', month: '2-digit', day: '2-digit' })
+  return day.format(new Date(a)) === day.format(new Date(b))
+}
+
+const clock = (iso: string, timeZone: string) =>
+  new Intl.DateTimeFormat('en-GB', { timeZone, hour: '2-digit', minute: '2-digit', hourCycle: 'h23' }).format(new Date(iso))
+
+export default function Site({ loaderData }: Route.ComponentProps) {
+  const { site: s, counts, units, detectors, visits, notifications, events, now } = loaderData
+  const mc = s.monitoring
+  const tz = s.timeZone
+  return (
+    <div className="mx-auto max-w-6xl space-y-6">
+      <header>
+        <nav aria-label="Breadcrumb" className="text-sm text-ink-faint">
+          <Link to={`/customers/${s.customerId}`} className="text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink">
+            {s.customerName}
+          </Link>{' '}
+          · Site
+        </nav>
+        <h1 className="mt-1 text-2xl font-semibold">{s.name}</h1>
+        <p className="mt-1 text-sm text-ink-soft">
+          {s.street}, {s.city} {s.postalCode} · {formatCount(counts.units)} {counts.units === 1 ? 'unit' : 'units'},{' '}
+          {formatCount(counts.detectors)} {counts.detectors === 1 ? 'detector' : 'detectors'}
+        </p>
+      </header>
+
+      <section aria-labelledby="before-h" className="rounded-md border border-soon/40 bg-panel p-3 sm:p-4">
+        <h2 id="before-h" className="font-semibold">
+          Before work at this site
+        </h2>
+        <div className="mt-3">
+          <Caution />
+        </div>
+        {mc ? (
+          <ol className="mt-3 list-decimal space-y-1 pl-5 text-sm">
+            <li>
+              <NoticeStep mc={mc} account={s.monitoringAccount} />
+            </li>
+            <li>Ask for the system to be placed in test, and note who you spoke with, the window and any confirmation number.</li>
+            <li>Tell site management before a unit is powered down or a detector is tripped.</li>
+            <li>When the work is done, have the system taken out of test and confirm it shows normal.</li>
+          </ol>
+        ) : (
+          <p className="mt-3 text-sm font-medium text-late">
+            No monitoring company is on record for this site. Find out who monitors the fire alarm system before any work.
+          </p>
+        )}
+      </section>
+
+      <div className="grid gap-6 lg:grid-cols-2">
+        <section aria-labelledby="site-h" className="rounded-md border border-line bg-panel p-4">
+          <h2 id="site-h" className="font-semibold">
+            Site
+          </h2>
+          <dl className="mt-3 grid grid-cols-[auto_1fr] gap-x-4 gap-y-1.5 text-sm">
+            <Fact label="Address">
+              {s.street}, {s.city} {s.postalCode}
+            </Fact>
+            <Fact label="Time zone">{tz.replace(/_/g, ' ')}</Fact>
+            <Fact label="Region">{s.region}</Fact>
+            <Fact label="Jurisdiction">{s.jurisdiction}</Fact>
+            <Fact label="AHJ">
+              {s.ahjName}
+              {s.ahjContact && (
+                <span className="block text-ink-soft">
+                  {s.ahjContact.includes('@') ? (
+                    <a href={`mailto:${s.ahjContact}`} className="hover:underline">
+                      {s.ahjContact}
+                    </a>
+                  ) : (
+                    s.ahjContact
+                  )}
+                </span>
+              )}
+            </Fact>
+            <Fact label="Code basis">{CODE_BASIS[s.codeBasis]}</Fact>
+            <Fact label="Access notes">{s.accessNotes ?? <span className="text-ink-faint">None</span>}</Fact>
+          </dl>
+        </section>
+
+        <section aria-labelledby="mon-h" className="rounded-md border border-line bg-panel p-4">
+          <h2 id="mon-h" className="font-semibold">
+            Monitoring
+          </h2>
+          {mc ? (
+            <dl className="mt-3 grid grid-cols-[auto_1fr] gap-x-4 gap-y-1.5 text-sm">
+              <Fact label="Company">{mc.name}</Fact>
+              <Fact label="Phone">
+                <a href={`tel:${mc.phone}`} className="font-mono hover:underline">
+                  {mc.phone}
+                </a>
+              </Fact>
+              <Fact label="E-mail">
+                {mc.email ? (
+                  <a href={`mailto:${mc.email}`} className="hover:underline">
+                    {mc.email}
+                  </a>
+                ) : (
+                  <span className="text-ink-faint">None on record</span>
+                )}
+              </Fact>
+              <Fact label="Wants notice">
+                {METHOD[mc.notifyMethod]}, {formatCount(mc.notifyLeadMinutes)} min ahead
+              </Fact>
+              <Fact label="Hours">{mc.hours}</Fact>
+              <Fact label="Account">{s.monitoringAccount ? <span className="font-mono whitespace-nowrap">{s.monitoringAccount}</span> : <span className="text-ink-faint">Not recorded</span>}</Fact>
+              <Fact label="Delay policy">{delayWords(s.delayPolicySeconds)}</Fact>
+              {mc.notes && <Fact label="Notes">{mc.notes}</Fact>}
+            </dl>
+          ) : (
+            <p className="mt-3 text-sm text-ink-soft">No monitoring company on record. Delay policy: {delayWords(s.delayPolicySeconds).toLowerCase()}.</p>
+          )}
+        </section>
+      </div>
+
+      <section aria-labelledby="units-h" className="rounded-md border border-line bg-panel">
+        <SectionHead id="units-h" title="Units" shown={units.length} total={counts.units} />
+        <div className="overflow-x-auto">
+          <table className="w-full text-sm">
+            <thead className="text-left text-xs text-ink-faint uppercase">
+              <tr>
+                <th className="px-4 py-2 font-medium">Unit</th>
+                <th className="hidden px-2 py-2 font-medium sm:table-cell">Kind</th>
+                <th className="px-2 py-2 font-medium">Shutdown input</th>
+                <th className="hidden px-2 py-2 text-right font-medium sm:table-cell">Supply / return</th>
+                <th className="px-4 py-2 text-right font-medium">Detectors</th>
+              </tr>
+            </thead>
+            <tbody>
+              {units.map((u) => (
+                <tr key={u.id} className="border-t border-line/70 align-top">
+                  <td className="px-4 py-2">
+                    <Link to={`/units/${u.id}`} className="font-mono font-medium text-accent hover:underline">
+                      {u.tag}
+                    </Link>
+                    {u.location && <div className="text-xs text-ink-faint">{u.location}</div>}
+                  </td>
+                  <td className="hidden px-2 py-2 uppercase sm:table-cell">{u.kind}</td>
+                  <td className="px-2 py-2 whitespace-nowrap">{u.shutdownInput}</td>
+                  <td className="hidden px-2 py-2 text-right font-mono text-xs whitespace-nowrap sm:table-cell">
+                    {formatCount(u.supplyCfm)} / {formatCount(u.returnCfm)} cfm
+                  </td>
+                  <td className="px-4 py-2 text-right font-mono">{u.detectors}</td>
+                </tr>
+              ))}
+            </tbody>
+          </table>
+        </div>
+      </section>
+
+      <section aria-labelledby="det-h" className="rounded-md border border-line bg-panel">
+        <SectionHead id="det-h" title="Detectors" shown={detectors.length} total={counts.detectors} />
+        <div className="overflow-x-auto">
+          <table className="w-full text-sm">
+            <thead className="text-left text-xs text-ink-faint uppercase">
+              <tr>
+                <th className="px-4 py-2 font-medium">Detector</th>
+                <th className="hidden px-2 py-2 font-medium sm:table-cell">Unit</th>
+                <th className="hidden px-2 py-2 font-medium sm:table-cell">Position</th>
+                <th className="px-2 py-2 font-medium">State</th>
+                <th className="px-2 py-2 font-medium">Due</th>
+                <th className="hidden px-2 py-2 font-medium md:table-cell">Next due</th>
+                <th className="hidden px-4 py-2 text-right font-medium sm:table-cell">Risk</th>
+              </tr>
+            </thead>
+            <tbody>
+              {detectors.map((d) => (
+                <tr key={d.id} className="border-t border-line/70 align-top sm:align-middle">
+                  <td className="px-4 py-2">
+                    <Link to={`/devices/${d.id}`} className="font-mono font-medium text-accent hover:underline">
+                      {d.tag}
+                    </Link>
+                    <div className="text-xs text-ink-faint sm:hidden">
+                      {d.position === 'supply' ? 'Supply' : 'Return'} · risk {d.riskScore}
+                    </div>
+                  </td>
+                  <td className="hidden px-2 py-2 sm:table-cell">
+                    <Link to={`/units/${d.unitId}`} className="font-mono hover:underline">
+                      {d.unitTag}
+                    </Link>
+                  </td>
+                  <td className="hidden px-2 py-2 sm:table-cell">{d.position === 'supply' ? 'Supply' : 'Return'}</td>
+                  <td className="px-2 py-2">
+                    <StateBadge value={d.state} />
+                  </td>
+                  <td className="px-2 py-2">
+                    <StateBadge value={d.dueStatus} />
+                    {d.nextDueOn && <div className="mt-0.5 font-mono text-xs text-ink-faint md:hidden">{d.nextDueOn}</div>}
+                  </td>
+                  <td className="hidden px-2 py-2 font-mono text-xs md:table-cell">{d.nextDueOn ?? '—'}</td>
+                  <td className="hidden px-4 py-2 text-right font-mono sm:table-cell">{d.riskScore}</td>
+                </tr>
+              ))}
+            </tbody>
+          </table>
+        </div>
+      </section>
+
+      <section aria-labelledby="visits-h" className="rounded-md border border-line bg-panel">
+        <SectionHead id="visits-h" title="Upcoming visits" shown={visits.rows.length} total={visits.total} />
+        {visits.rows.length === 0 ? (
+          <p className="px-4 py-3 text-sm text-ink-soft">No visits planned.</p>
+        ) : (
+          <>
+            <div className="px-4 pt-3">
+              <Caution compact />
+            </div>
+            <div className="overflow-x-auto">
+              <table className="mt-2 w-full text-sm">
+                <thead className="text-left text-xs text-ink-faint uppercase">
+                  <tr>
+                    <th className="px-4 py-2 font-medium">Date</th>
+                    <th className="px-2 py-2 font-medium">Work</th>
+                    <th className="hidden px-2 py-2 font-medium sm:table-cell">Status</th>
+                    <th className="hidden px-2 py-2 font-medium sm:table-cell">Technician</th>
+                    <th className="px-4 py-2 text-right font-medium">Detectors</th>
+                  </tr>
+                </thead>
+                <tbody>
+                  {visits.rows.map((v) => (
+                    <tr key={v.id} className="border-t border-line/70 align-top sm:align-middle">
+                      <td className="px-4 py-2 whitespace-nowrap">
+                        <span className="font-mono text-xs">{v.scheduledOn}</span>{' '}
+                        <span className="text-xs text-ink-faint">{formatDay(v.scheduledOn).slice(0, 3)}</span>
+                      </td>
+                      <td className="px-2 py-2">
+                        <span className="capitalize">{v.kind}</span>
+                        <div className="text-xs text-ink-faint sm:hidden">
+                          {v.technician ?? 'Not assigned'} · <span className="capitalize">{v.status}</span>
+                        </div>
+                      </td>
+                      <td className="hidden px-2 py-2 sm:table-cell">
+                        <StateBadge value={v.status} />
+                      </td>
+                      <td className="hidden px-2 py-2 sm:table-cell">{v.technician ?? <span className="text-late">Not assigned</span>}</td>
+                      <td className="px-4 py-2 text-right font-mono">{v.detectors}</td>
+                    </tr>
+                  ))}
+                </tbody>
+              </table>
+            </div>
+          </>
+        )}
+      </section>
+
+      <section aria-labelledby="notif-h" className="rounded-md border border-line bg-panel">
+        <SectionHead id="notif-h" title="Notification history" shown={notifications.length} total={counts.notifications} />
+        {notifications.length === 0 ? (
+          <p className="px-4 py-3 text-sm text-ink-soft">No notifications recorded.</p>
+        ) : (
+          <>
+            <div
+              aria-hidden="true"
+              className="hidden gap-x-4 px-4 py-2 text-xs font-medium text-ink-faint uppercase md:grid md:grid-cols-[11rem_1fr_1fr_10rem]"
+            >
+              <span>Notified</span>
+              <span>Told</span>
+              <span>In test</span>
+              <span>Cleared</span>
+            </div>
+            <ol className="divide-y divide-line/70 border-t border-line/70 text-sm md:border-t-0">
+              {notifications.map((n) => (
+                <li key={n.id} className="grid gap-x-4 gap-y-1 px-4 py-2.5 md:grid-cols-[11rem_1fr_1fr_10rem]">
+                  <div>
+                    <span className="font-mono text-xs">{when(n.notifiedAt, tz)}</span>
+                    <div className="text-xs text-ink-faint">by {n.notifiedBy ?? 'someone not on record'}</div>
+                  </div>
+                  <div>
+                    {METHOD_SHORT[n.method]} · spoke with {n.spokeWith}
+                    <div className="text-xs text-ink-faint">
+                      {n.monitoringName ?? 'Monitoring company not recorded'}
+                      {' · '}
+                      {n.confirmation ? (
+                        <>
+                          confirmation <span className="font-mono">{n.confirmation}</span>
+                        </>
+                      ) : (
+                        'no confirmation number'
+                      )}
+                    </div>
+                  </div>
+                  <div>
+                    <span className="md:hidden">In test </span>
+                    <span className="font-mono text-xs">
+                      {sameDay(n.notifiedAt, n.inTestFrom, tz) ? clock(n.inTestFrom, tz) : when(n.inTestFrom, tz)}–
+                      {sameDay(n.inTestFrom, n.inTestUntil, tz) ? clock(n.inTestUntil, tz) : when(n.inTestUntil, tz)}
+                    </span>
+                    <div className="text-xs text-ink-faint">Site told: {n.siteContactTold ?? 'not recorded'}</div>
+                  </div>
+                  <div>
+                    {n.clearedAt ? (
+                      <StateBadge value="done" label={`Cleared ${clock(n.clearedAt, tz)}`} />
+                    ) : n.inTestUntil > now ? (
+                      <StateBadge value="in-progress" label="In test now" />
+                    ) : (
+                      <StateBadge value="overdue" label="No clear recorded" />
+                    )}
+                  </div>
+                </li>
+              ))}
+            </ol>
+            <p className="border-t border-line/70 px-4 py-2 text-xs text-ink-faint">Times in site time ({tz.replace(/_/g, ' ')}).</p>
+          </>
+        )}
+      </section>
+
+      <section aria-labelledby="events-h" className="rounded-md border border-line bg-panel">
+        <div className="flex flex-wrap items-baseline justify-between gap-2 border-b border-line px-4 py-3">
+          <h2 id="events-h" className="font-semibold">
+            Event timeline
+          </h2>
+          <span className="text-xs text-ink-faint">Latest {formatCount(events.length)}</span>
+        </div>
+        <EventTimeline events={events} timeZone={tz} />
+      </section>
+    </div>
+  )
+}
+
+// Each company says how it wants to hear of work; the first step reads the way they asked for it.
+function NoticeStep({ mc, account }: { mc: NonNullable<SiteRecord['monitoring']>; account: string | null }) {
+  const lead = `at least ${formatCount(mc.notifyLeadMinutes)} minutes before work starts`
+  const quoting = account ? (
+    <>
+      , quoting account <span className="font-mono whitespace-nowrap">{account}</span>
+    </>
+  ) : null
+  const phone = (
+    <a href={`tel:${mc.phone}`} className="font-mono font-semibold whitespace-nowrap text-accent hover:underline">
+      {mc.phone}
+    </a>
+  )
+  if (mc.notifyMethod === 'phone')
+    return (
+      <>
+        Call <span className="font-medium">{mc.name}</span> on {phone} {lead}
+        {quoting}.
+      </>
+    )
+  if (mc.notifyMethod === 'email' && mc.email)
+    return (
+      <>
+        E-mail <span className="font-medium">{mc.name}</span> at{' '}
+        <a href={`mailto:${mc.email}`} className="font-semibold text-accent hover:underline">
+          {mc.email}
+        </a>{' '}
+        {lead}
+        {quoting}. Their number: {phone}.
+      </>
+    )
+  return (
+    <>
+      {mc.notifyMethod === 'portal' ? 'Log the work in the online portal of ' : 'Tell '}
+      <span className="font-medium">{mc.name}</span> {lead}
+      {quoting}. Their number: {phone}.
+    </>
+  )
+}
+
+function SectionHead({ id, title, shown, total }: { id: string; title: string; shown: number; total: number }) {
+  return (
+    <div className="flex flex-wrap items-baseline justify-between gap-2 border-b border-line px-4 py-3">
+      <h2 id={id} className="font-semibold">
+        {title}
+      </h2>
+      <span className="text-xs text-ink-faint">
+        {total > shown ? `Showing ${formatCount(shown)} of ${formatCount(total)}` : formatCount(total)}
+      </span>
+    </div>
+  )
+}
+
+function Fact({ label, children }: { label: string; children: React.ReactNode }) {
+  return (
+    <>
+      <dt className="text-ink-faint">{label}</dt>
+      <dd className="min-w-0">{children}</dd>
+    </>
+  )
+}

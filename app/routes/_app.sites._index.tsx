@@ -1,0 +1,46 @@
+import type { ColumnDef } from '@tanstack/react-table'
+import { requireUser } from '~/.server/auth'
+import type { SiteListRow } from '~/.server/lists/sites'
+import { linkCell, monoCell, selectColumn } from '~/components/columns'
+import { ListPage } from '~/components/list-page'
+import type { RouteAccess } from '~/domain/permissions'
+import type { Route } from './+types/_app.sites._index'
+
+export const handle = { access: { loader: 'view:fleet' } satisfies RouteAccess }
+export const meta: Route.MetaFunction = () => [{ title: 'Sites · Ductkeeper' }]
+
+export async function loader({ request }: Route.LoaderArgs) {
+  await requireUser(request, 'view:fleet')
+  return null
+}
+
+const delay = (s: number) => (s === 0 ? 'at once' : `${s / 60} min`)
+const columns: ColumnDef<SiteListRow>[] = [
+  selectColumn(),
+  { id: 'name', header: 'Site', size: 2, minSize: 220, cell: linkCell((r) => `/sites/${r.id}`, (r) => r.name) },
+  { id: 'customer', header: 'Customer', size: 1.3, minSize: 160, cell: ({ row }) => <span className="text-ink-soft">{row.original.customer}</span> },
+  { id: 'street', header: 'Street', size: 1.3, minSize: 160 },
+  { id: 'city', header: 'Town', size: 130 },
+  { id: 'region', header: 'Region', size: 80, cell: monoCell((r) => r.region) },
+  { id: 'codeBasis', header: 'Code', size: 90, cell: ({ row }) => (row.original.codeBasis === 'imc' ? 'IMC' : 'NFPA 90A') },
+  { id: 'monitoring', header: 'Monitoring', size: 1.2, minSize: 160 },
+  { id: 'delayPolicySeconds', header: 'Delay policy', size: 104, cell: ({ row }) => delay(row.original.delayPolicySeconds) },
+  { id: 'detectors', header: 'Detectors', size: 92, cell: monoCell((r) => r.detectors) },
+  { id: 'overdue', header: 'Overdue', size: 84, cell: ({ row }) => <span className={`font-mono text-xs ${row.original.overdue ? 'text-late' : ''}`}>{row.original.overdue}</span> },
+  { id: 'nextVisitOn', header: 'Next visit', size: 108, cell: monoCell((r) => r.nextVisitOn) },
+]
+
+export default function Sites() {
+  return (
+    <ListPage<SiteListRow>
+      title="Sites"
+      page="sites"
+      endpoint="/api/sites"
+      label="sites"
+      placeholder="Name, street, town or postcode"
+      filters={[{ param: 'codeBasis', label: 'Code basis', options: [{ value: 'imc', label: 'IMC' }, { value: 'nfpa90a', label: 'NFPA 90A' }] }]}
+      columns={columns}
+      rowHref={(r) => `/sites/${r.id}`}
+    />
+  )
+}

@@ -1,0 +1,375 @@
+import { data, Link } from 'react-router'
+import { z } from 'zod'
+import { requireUser } from '~/.server/auth'
+import { getDb } from '~/.server/db'
+import { ductOf } from '~/.server/device-report'
+import { getUnit, unitDetectors } from '~/.server/repos/pages'
+import { Caution } from '~/components/caution'
+import { StateBadge } from '~/components/state-badge'
+import { checkVelocity, ductVelocityFpm } from '~/domain/airflow'
+import { interlockPlan } from '~/domain/interlock'
+import type { RouteAccess } from '~/domain/permissions'
+import { CONTROL_VOLTS, currentFor, powerBudget, voltageDrop } from '~/domain/power'
+import { detectorRequirements } from '~/domain/requirements'
+import { formatCount } from '~/utils/format'
+import type { Route } from './+types/_app.units.$unitId'
+
+export const handle = { access: { loader: 'view:fleet' } satisfies RouteAccess }
+
+export const meta: Route.MetaFunction = ({ data }) => [
+  { title: data ? `${data.unit.tag} · ${data.unit.siteName} · Ductkeeper` : 'Unit · Ductkeeper' },
+]
+
+const params = z.object({ unitId: z.coerce.number().int().positive() })
+
+export async function loader({ request, params: raw }: Route.LoaderArgs) {
+  await requireUser(request, 'view:fleet')
+  const parsed = params.safeParse(raw)
+  if (!parsed.success) throw data('No such unit.', { status: 404 })
+  const db = getDb()
+  const unit = getUnit(db, parsed.data.unitId)
+  if (!unit) throw data('No such unit.', { status: 404 })
+  const detectors = unitDetectors(db, unit.id)
+
+  const duct = ductOf(unit)
+  const cfmAt = (position: 'supply' | 'return') => (position === 'supply' ? unit.supplyCfm : unit.returnCfm)
+  const velocity = duct
+    ? { supplyFpm: ductVelocityFpm(unit.supplyCfm, duct), returnFpm: ductVelocityFpm(unit.returnCfm, duct) }
+    : null
+
+  // The same inputs the detector page uses, so a unit reads the same from either page.
+  const requirements = detectorRequirements({
+    codeBasis: unit.codeBasis,
+    supplyCfm: unit.supplyCfm,
+    returnCfm: unit.returnCfm,
+    storeysServed: unit.storeysServed,
+    sharedPlenum: Boolean(unit.sharedPlenum),
+    areaDetection: Boolean(unit.areaDetection),
+    installed: {
+      supply: detectors.some((d) => d.position === 'supply'),
+      return: detectors.some((d) => d.position === 'return'),
+    },
+  })
+
+  // Remote test stations have no draw on record, so they add nothing to the budget.
+  const power = powerBudget({
+    transformerVa: unit.transformerVa,
+    loads: detectors.map((d) => ({ label: d.tag, standbyVa: d.standbyVa, alarmVa: d.alarmVa })),
+  })
+
+  return {
+    unit,
+    duct,
+    velocity,
+    interlock: interlockPlan(unit.shutdownInput),
+    requirements,
+    power,
+    detectors: detectors.map((d) => {
+      const alarmA = currentFor(d.alarmVa)
+      return {
+        ...d,
+        velocity: duct
+          ? checkVelocity({ cfm: cfmAt(d.position), duct, listedMinFpm: d.velocityMinFpm, listedMaxFpm: d.velocityMaxFpm })
+          : null,
+        // Without the station's own draw, the detector's full alarm current is the worst the run can carry.
+        stationDrop:
+          d.testStation !== 'none' && d.testStationFeet
+            ? {
+                currentA: alarmA,
+                ...voltageDrop({
+                  currentA: alarmA,
+                  oneWayFeet: d.testStationFeet,
+                  awg: d.conductorAwg,
+                  stranded: Boolean(d.conductorStranded),
+                }),
+              }
+            : null,
+      }
+    }),
+  }
+}
+
+const KIND_LABELS: Record<string, string> = {
+  rtu: 'Rooftop unit',
+  ahu: 'Air handler',
+  mau: 'Make-up air unit',
+  erv: 'Energy recovery ventilator',
+  fcu: 'Fan coil unit',
+}
+const STATUS_BADGE = {
+  missing: { value: 'fail', label: 'Missing' },
+  present: { value: 'pass', label: 'Present' },
+  'not-required': { value: 'unknown', label: 'Not required' },
+  extra: { value: 'unknown', label: 'Beyond code' },
+} as const
+const LOCATION_LABELS = { supply: 'Supply duct', return: 'Return duct', 'return-each-storey': 'Return, at each storey' } as const
+
+const fpm = (n: number) => `${formatCount(Math.round(n))} ft/min`
+const va = (n: number) => `${Number(n.toFixed(1))} VA`
+const volts = (n: number) => `${n.toFixed(1)} V`
+
+export default function Unit({ loaderData }: Route.ComponentProps) {
+  const { unit: u, duct, velocity, interlock, requirements, power, detectors } = loaderData
+  const ductWords = duct
+    ? duct.shape === 'round'
+      ? `${duct.diameterIn} in round`
+      : `${duct.widthIn} × ${duct.heightIn} in rectangular`
+    : 'not recorded'
+  const stations = detectors.filter((d) => d.stationDrop)
+  return (
+    <div className="mx-auto max-w-6xl space-y-6">
+      <header>
+        <nav aria-label="Breadcrumb" className="text-sm text-ink-faint">
+          <Link to={`/customers/${u.customerId}`} className="text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink">
+            {u.customerName}
+          </Link>
+          {' · '}
+          <Link to={`/sites/${u.siteId}`} className="text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink">
+            {u.siteName}
+          </Link>
+          {' · '}Unit
+        </nav>
+        <div className="mt-1 flex flex-wrap items-baseline gap-x-3 gap-y-1">
+          <h1 className="font-mono text-2xl font-semibold">{u.tag}</h1>
+          <span className="text-sm text-ink-soft">{KIND_LABELS[u.kind] ?? u.kind.toUpperCase()}</span>
+        </div>
+        <p className="mt-1 text-sm text-ink-soft">
+          {u.location ?? 'Location not recorded'} · {u.city} · {u.shutdownInput} shutdown input
+        </p>
+      </header>
+
+      <div className="grid gap-6 lg:grid-cols-[2fr_3fr]">
+        <section aria-labelledby="air-h" className="rounded-md border border-line bg-panel p-4">
+          <h2 id="air-h" className="font-semibold">
+            Airflow and duct
+          </h2>
+          <dl className="mt-3 grid grid-cols-[auto_1fr] gap-x-4 gap-y-1.5 text-sm">
+            <Fact label="Supply">
+              <span className="font-mono">{formatCount(u.supplyCfm)} cfm</span>
+              {velocity && <span className="text-ink-soft"> · {fpm(velocity.supplyFpm)}</span>}
+            </Fact>
+            <Fact label="Return">
+              <span className="font-mono">{formatCount(u.returnCfm)} cfm</span>
+              {velocity && <span className="text-ink-soft"> · {fpm(velocity.returnFpm)}</span>}
+            </Fact>
+            <Fact label="Duct at detectors">{ductWords}</Fact>
+            <Fact label="Storeys served">{u.storeysServed}</Fact>
+            <Fact label="Shared plenum">{u.sharedPlenum ? 'Yes' : 'No'}</Fact>
+            <Fact label="Area detection">{u.areaDetection ? 'Yes, tied to the fire alarm system' : 'No'}</Fact>
+            <Fact label="Transformer">{u.transformerVa} VA, 24 VAC</Fact>
+          </dl>
+          <p className="mt-3 text-xs text-ink-faint">Velocity = cfm ÷ duct area (ft²), in the recorded inside size.</p>
+        </section>
+
+        <section aria-labelledby="det-h" className="rounded-md border border-line bg-panel">
+          <h2 id="det-h" className="border-b border-line px-4 py-3 font-semibold">
+            Detectors on {u.tag}
+          </h2>
+          {detectors.length === 0 ? (
+            <p className="px-4 py-3 text-sm text-ink-soft">No detectors recorded on this unit.</p>
+          ) : (
+            <ul className="divide-y divide-line/70 text-sm">
+              {detectors.map((d) => (
+                <li key={d.id} className="flex flex-wrap items-center justify-between gap-x-3 gap-y-1.5 px-4 py-2.5">
+                  <div className="min-w-0">
+                    <Link to={`/devices/${d.id}`} className="font-mono font-medium text-accent hover:underline">
+                      {d.tag}
+                    </Link>
+                    <div className="text-xs text-ink-faint">
+                      {d.position === 'supply' ? 'Supply' : 'Return'} · {d.modelName}
+                    </div>
+                  </div>
+                  <div className="flex flex-wrap items-center gap-1.5">
+                    <StateBadge value={d.state} />
+                    <StateBadge value={d.dueStatus} />
+                    {d.velocity && (
+                      <StateBadge
+                        value={d.velocity.status === 'in-range' ? 'pass' : 'fail'}
+                        label={d.velocity.status === 'in-range' ? 'Airflow in range' : `Airflow ${d.velocity.status}`}
+                      />
+                    )}
+                  </div>
+                </li>
+              ))}
+            </ul>
+          )}
+        </section>
+      </div>
+
+      <section aria-labelledby="interlock-h" className="rounded-md border border-line bg-panel p-4">
+        <h2 id="interlock-h" className="font-semibold">
+          Shutdown interlock plan ({interlock.style})
+        </h2>
+        <div className="mt-3">
+          <Caution />
+        </div>
+        {u.monitoringName && (
+          <p className="mt-3 text-sm">
+            Monitoring for this site: <span className="font-medium">{u.monitoringName}</span>,{' '}
+            <a href={`tel:${u.monitoringPhone}`} className="font-mono font-semibold text-accent hover:underline">
+              {u.monitoringPhone}
+            </a>
+            .{' '}
+            <Link to={`/sites/${u.siteId}`} className="text-accent underline">
+              How they want to be told
+            </Link>
+          </p>
+        )}
+        <div className="mt-4 grid gap-6 md:grid-cols-[2fr_3fr]">
+          <div>
+            <h3 className="text-xs font-semibold text-ink-faint uppercase">Wiring (HVAC side only)</h3>
+            <ul className="mt-2 space-y-1.5 text-sm">
+              {interlock.wiring.map((w) => (
+                <li key={w.from} className="flex flex-wrap items-baseline gap-x-2">
+                  <span className="font-mono">{w.from}</span>
+                  <span aria-hidden="true" className="text-ink-faint">
+                    →
+                  </span>
+                  <span className="sr-only">to</span>
+                  <span className="font-mono">{w.to}</span>
+                </li>
+              ))}
+            </ul>
+            <h3 className="mt-4 text-xs font-semibold text-ink-faint uppercase">Expected at the input</h3>
+            <dl className="mt-2 grid grid-cols-[auto_1fr] gap-x-4 gap-y-1 text-sm">
+              <dt className="text-ink-faint">Detector normal</dt>
+              <dd>
+                <span className="font-mono">about {interlock.expected.normal.volts} V</span>, unit runs
+              </dd>
+              <dt className="text-ink-faint">Detector in alarm</dt>
+              <dd>
+                <span className="font-mono">about {interlock.expected.alarm.volts} V</span>, unit stops
+              </dd>
+            </dl>
+          </div>
+          <div>
+            <h3 className="text-xs font-semibold text-ink-faint uppercase">Steps</h3>
+            <ol className="mt-2 list-decimal space-y-1.5 pl-5 text-sm text-ink-soft">
+              {interlock.steps.map((s) => (
+                <li key={s}>{s}</li>
+              ))}
+            </ol>
+          </div>
+        </div>
+      </section>
+
+      <div className="grid gap-6 lg:grid-cols-2">
+        <section aria-labelledby="req-h" className="rounded-md border border-line bg-panel p-4">
+          <h2 id="req-h" className="font-semibold">
+            Required detectors ({requirements.codeBasis === 'imc' ? 'IMC' : 'NFPA 90A'})
+          </h2>
+          <p className="mt-1 text-sm text-ink-soft">
+            Against what is installed: supply {detectors.some((d) => d.position === 'supply') ? 'yes' : 'none'}, return{' '}
+            {detectors.some((d) => d.position === 'return') ? 'yes' : 'none'}.
+          </p>
+          <ul className="mt-3 space-y-3 text-sm">
+            {requirements.items.map((i) => (
+              <li key={i.location}>
+                <div className="flex items-center justify-between gap-2">
+                  <span className="font-medium">{LOCATION_LABELS[i.location]}</span>
+                  <StateBadge value={STATUS_BADGE[i.status].value} label={STATUS_BADGE[i.status].label} />
+                </div>
+                <div className="mt-0.5 text-xs text-ink-soft">
+                  <span className="font-medium text-ink-faint">{i.clause}:</span> {i.reason}
+                </div>
+              </li>
+            ))}
+          </ul>
+          <p className="mt-4 text-xs font-medium text-soon">{requirements.verifyWithAhj}</p>
+          <p className="mt-1 text-xs text-ink-faint">The site&apos;s AHJ: {u.ahjName}.</p>
+        </section>
+
+        <section aria-labelledby="power-h" className="rounded-md border border-line bg-panel p-4">
+          <div className="flex flex-wrap items-center justify-between gap-2">
+            <h2 id="power-h" className="font-semibold">
+              24 VAC power budget
+            </h2>
+            <StateBadge
+              value={power.findings.length === 0 ? 'pass' : 'fail'}
+              label={power.findings.length === 0 ? 'Within rating' : 'Needs review'}
+            />
+          </div>
+          <table className="mt-3 w-full text-sm">
+            <thead className="text-left text-xs text-ink-faint uppercase">
+              <tr>
+                <th className="py-1.5 pr-2 font-medium">Load</th>
+                <th className="px-2 py-1.5 text-right font-medium">Standby</th>
+                <th className="py-1.5 pl-2 text-right font-medium">Alarm</th>
+              </tr>
+            </thead>
+            <tbody className="font-mono text-xs">
+              {detectors.map((d) => (
+                <tr key={d.id} className="border-t border-line/70">
+                  <td className="py-1.5 pr-2">{d.tag}</td>
+                  <td className="px-2 py-1.5 text-right">{va(d.standbyVa)}</td>
+                  <td className="py-1.5 pl-2 text-right">{va(d.alarmVa)}</td>
+                </tr>
+              ))}
+              <tr className="border-t border-line font-semibold">
+                <td className="py-1.5 pr-2 font-sans">Total</td>
+                <td className="px-2 py-1.5 text-right">{va(power.standbyVa)}</td>
+                <td className="py-1.5 pl-2 text-right">{va(power.alarmVa)}</td>
+              </tr>
+            </tbody>
+          </table>
+          <dl className="mt-3 grid grid-cols-[auto_1fr] gap-x-4 gap-y-1 text-sm">
+            <Fact label="Transformer">{va(power.ratingVa)}</Fact>
+            <Fact label="Headroom">
+              <span className={power.headroomVa < 0 ? 'font-semibold text-late' : ''}>{va(power.headroomVa)}</span>
+            </Fact>
+            <Fact label="Alarm current">{power.currentA.toFixed(2)} A at {CONTROL_VOLTS} V</Fact>
+            <Fact label="Class 2">
+              {power.withinClass2 ? `Within ${va(power.class2LimitVa)} (NEC Chapter 9 Table 11(A))` : 'Beyond the limit'}
+            </Fact>
+          </dl>
+          {power.findings.length > 0 && (
+            <ul className="mt-3 space-y-1.5 text-sm">
+              {power.findings.map((f) => (
+                <li key={f} className="text-late">
+                  {f}
+                </li>
+              ))}
+            </ul>
+          )}
+          <p className="mt-3 text-xs text-ink-faint">
+            The unit&apos;s own controls draw from this transformer too; their load is not on record, so keep headroom. Remote
+            test stations have no draw on record and are not counted.
+          </p>
+
+          <h3 className="mt-4 text-xs font-semibold text-ink-faint uppercase">Voltage at remote test stations</h3>
+          {stations.length === 0 ? (
+            <p className="mt-2 text-sm text-ink-soft">No remote test station with a recorded distance on this unit.</p>
+          ) : (
+            <ul className="mt-2 space-y-2 text-sm">
+              {stations.map((d) =>
+                d.stationDrop ? (
+                  <li key={d.id}>
+                    <span className="font-mono">{d.tag}</span>: {d.testStation} station {formatCount(d.testStationFeet ?? 0)} ft away on{' '}
+                    {d.conductorAwg} AWG {d.conductorStranded ? 'stranded' : 'solid'}, about{' '}
+                    <span className="font-mono font-semibold">{volts(d.stationDrop.endVolts)}</span> at the station (drop{' '}
+                    {d.stationDrop.dropV.toFixed(2)} V, {d.stationDrop.percent.toFixed(1)}%).
+                  </li>
+                ) : null,
+              )}
+            </ul>
+          )}
+          {stations.length > 0 && (
+            <p className="mt-2 text-xs text-ink-faint">
+              Worked out at the detector&apos;s full alarm current, the most the run could carry (NEC Chapter 9 Table 8, 75 °C). Compare
+              with the station&apos;s listed minimum voltage.
+            </p>
+          )}
+        </section>
+      </div>
+    </div>
+  )
+}
+
+function Fact({ label, children }: { label: string; children: React.ReactNode }) {
+  return (
+    <>
+      <dt className="text-ink-faint">{label}</dt>
+      <dd className="min-w-0">{children}</dd>
+    </>
+  )
+}

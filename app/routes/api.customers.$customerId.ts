@@ -1,0 +1,13 @@
+import { requireUser } from '~/.server/auth'
+import { getDb } from '~/.server/db'
+import { customerRecord, notFound, recordId } from '~/.server/repos/records'
+import type { RouteAccess } from '~/domain/permissions'
+import type { Route } from './+types/api.customers.$customerId'
+
+export const handle = { access: { loader: 'view:fleet' } satisfies RouteAccess }
+
+export async function loader({ request, params }: Route.LoaderArgs) {
+  await requireUser(request, 'view:fleet')
+  const record = customerRecord(getDb(), recordId(params, 'customerId'))
+  return record ? Response.json(record) : notFound('customer')
+}

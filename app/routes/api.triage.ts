@@ -1,0 +1,66 @@
+import { z } from 'zod'
+import { requireUser } from '~/.server/auth'
+import { getDb } from '~/.server/db'
+import { isoDate, parseQuery } from '~/.server/list-query'
+import { reasonCounts, triageList, triageQuery } from '~/.server/lists/triage'
+import { acknowledge, assign, Refusal, scheduleVisits } from '~/.server/repos/triage-actions'
+import { officeToday } from '~/.server/today'
+import { can, type RouteAccess } from '~/domain/permissions'
+import type { Route } from './+types/api.triage'
+
+// Scheduling is the widest write here (office may do it); acknowledging and assigning are checked
+// per intent below.
+export const handle = { access: { loader: 'view:fleet', action: 'schedule:visits' } satisfies RouteAccess }
+
+export async function loader({ request }: Route.LoaderArgs) {
+  await requireUser(request, 'view:fleet')
+  const query = parseQuery(triageQuery, request)
+  const db = getDb()
+  return Response.json({ ...triageList(db, query, officeToday()), counts: reasonCounts(db) })
+}
+
+const ids = z.array(z.coerce.number().int().positive()).min(1, 'Select at least one detector').max(500, 'At most 500 at a time')
+const body = z.discriminatedUnion('intent', [
+  z.object({ intent: z.literal('acknowledge'), ids, note: z.string().trim().max(500).optional() }),
+  z.object({ intent: z.literal('assign'), ids, technicianId: z.coerce.number().int().positive() }),
+  z.object({
+    intent: z.literal('schedule'),
+    ids,
+    date: isoDate,
+    kind: z.enum(['inspection', 'test', 'cleaning', 'repair']).default('test'),
+    technicianId: z.coerce.number().int().positive().nullable().default(null),
+  }),
+])
+
+export async function action({ request }: Route.ActionArgs) {
+  const user = await requireUser(request, 'schedule:visits')
+  const raw = request.headers.get('Content-Type')?.includes('json') ? await request.json().catch(() => null) : Object.fromEntries(await request.formData())
+  const parsed = body.safeParse(raw)
+  if (!parsed.success) {
+    return Response.json({ error: 'Invalid request', issues: parsed.error.issues.map((i) => ({ path: i.path.join('.'), message: i.message })) }, { status: 400 })
+  }
+  const input = parsed.data
+  if (input.intent !== 'schedule' && !can(user.role, 'triage:fleet')) {
+    return Response.json({ error: 'Your role does not allow this.' }, { status: 403 })
+  }
+  const db = getDb()
+  try {
+    switch (input.intent) {
+      case 'acknowledge': {
+        const n = acknowledge(db, user.id, input.ids, input.note ?? null)
+        return Response.json({ ok: true, message: `Acknowledged ${n} detector${n === 1 ? '' : 's'}; they leave the open queue.` })
+      }
+      case 'assign': {
+        const r = assign(db, user.id, input.ids, input.technicianId)
+        return Response.json({ ok: true, message: `Assigned ${r.count} to ${r.technician}.` })
+      }
+      case 'schedule': {
+        const r = scheduleVisits(db, user.id, input.ids, { date: input.date, kind: input.kind, technicianId: input.technicianId, today: officeToday() })
+        return Response.json({ ok: true, message: `Booked ${r.visits} visit${r.visits === 1 ? '' : 's'} on ${input.date} for ${r.detectors} detector${r.detectors === 1 ? '' : 's'}. Notify each monitoring company before the work.` })
+      }
+    }
+  } catch (error) {
+    if (error instanceof Refusal) return Response.json({ error: error.message }, { status: 409 })
+    throw error
+  }
+}

@@ -1,0 +1,120 @@
+import type { Browser, Page } from 'playwright-core'
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { launchBrowser } from '#tests/setup/browser'
+import { startServer } from '#tests/setup/server'
+import { sessionCookieFor, userIdByEmail } from '#tests/setup/sessions'
+import { seededDb } from '#tests/setup/temp-db'
+
+describe('a keyboard-only session in Chromium', () => {
+  let server: Awaited<ReturnType<typeof startServer>>
+  let data: ReturnType<typeof seededDb>
+  let browser: Browser
+  beforeAll(async () => {
+    data = seededDb('small')
+    server = await startServer(data.path)
+    browser = await launchBrowser()
+  })
+  afterAll(async () => {
+    await browser?.close()
+    await server?.stop()
+    data?.cleanup()
+  })
+
+  async function signedInPage(): Promise<Page> {
+    const { cookie } = await sessionCookieFor(data.db, userIdByEmail(data.db, 'lead@ductkeeper.test'))
+    const context = await browser.newContext()
+    const [name, ...value] = cookie.split('=')
+    await context.addCookies([{ name, value: value.join('='), domain: '127.0.0.1', path: '/' }])
+    const page = await context.newPage()
+    // Count every pointer event the page sees: the session must not need one.
+    await page.addInitScript(() => {
+      ;(window as unknown as { __pointer: number }).__pointer = 0
+      for (const type of ['mousedown', 'pointerdown', 'mouseup', 'contextmenu']) {
+        window.addEventListener(type, () => ((window as unknown as { __pointer: number }).__pointer += 1), true)
+      }
+    })
+    return page
+  }
+
+  it('palette → site by address → detector → back → overdue filter → select three → help', async () => {
+    const site = data.db.$client.prepare("select s.id, s.name, s.street from sites s where exists (select 1 from detectors d where d.site_id = s.id) order by s.id limit 1").get() as { id: number; name: string; street: string }
+    const detector = data.db.$client.prepare('select id, tag from detectors where site_id = ? order by id limit 1').get(site.id) as { id: number; tag: string }
+    const streetWord = site.street.split(' ')[1] // "4897 Birchmont Drive" → "Birchmont"
+    const page = await signedInPage()
+    await page.goto(`${server.url}/triage`, { waitUntil: 'networkidle' })
+
+    await page.keyboard.press('Control+k')
+    const palette = page.getByRole('dialog', { name: 'Command palette' })
+    await palette.waitFor()
+    await page.keyboard.type(`${streetWord} ${site.name.split(' ')[0]}`)
+    await palette.getByRole('option', { name: new RegExp(site.name.replace(/[.*+?^${}()|[\]\\]/g, '\\$&')) }).first().waitFor()
+    // Arrow down to the site's own entry, then open it.
+    for (let i = 0; i < 12; i++) {
+      const selected = await palette.locator('[cmdk-item][data-selected="true"]').getAttribute('data-value')
+      if (selected === `/sites/${site.id}`) break
+      await page.keyboard.press('ArrowDown')
+    }
+    await page.keyboard.press('Enter')
+    await page.waitForURL(`${server.url}/sites/${site.id}`)
+    await page.getByRole('heading', { level: 1 }).waitFor()
+
+    await page.keyboard.press('Control+k')
+    await palette.waitFor()
+    await page.keyboard.type(`${detector.tag} ${streetWord}`)
+    await palette.locator(`[cmdk-item][data-value="/devices/${detector.id}"]`).waitFor()
+    for (let i = 0; i < 12; i++) {
+      if ((await palette.locator('[cmdk-item][data-selected="true"]').getAttribute('data-value')) === `/devices/${detector.id}`) break
+      await page.keyboard.press('ArrowDown')
+    }
+    await page.keyboard.press('Enter')
+    await page.waitForURL(`${server.url}/devices/${detector.id}`)
+    await page.getByRole('heading', { level: 1, name: detector.tag }).waitFor()
+
+    await page.keyboard.press('Alt+ArrowLeft')
+    await page.waitForURL(`${server.url}/sites/${site.id}`)
+
+    // g then d: the detectors list; / to the filter; Tab to the "Due" filter; choose Overdue.
+    await page.keyboard.press('g')
+    await page.keyboard.press('d')
+    await page.waitForURL(`${server.url}/devices`)
+    await page.keyboard.press('/')
+    await expect(page.evaluate(() => document.activeElement?.getAttribute('type'))).resolves.toBe('search')
+    await page.keyboard.press('Tab') // State
+    await page.keyboard.press('Tab') // Due
+    await expect(page.evaluate(() => document.activeElement?.closest('label')?.textContent)).resolves.toContain('Due')
+    await page.keyboard.press('ArrowDown')
+    await page.waitForURL(/due=overdue/)
+    await page.keyboard.press('Escape')
+    const overdue = (data.db.$client.prepare("select count(*) as n from detectors where due_status = 'overdue'").get() as { n: number }).n
+    await page.getByRole('status').filter({ hasText: `${overdue} detectors` }).waitFor()
+
+    await page.keyboard.press('x')
+    await page.keyboard.press('j')
+    await page.keyboard.press('x')
+    await page.keyboard.press('j')
+    await page.keyboard.press('x')
+    await expect(page.locator('[role=row][aria-selected=true]').count()).resolves.toBe(3)
+    await page.getByRole('status').filter({ hasText: '3 selected' }).waitFor()
+
+    await page.keyboard.press('?')
+    const help = page.getByRole('dialog', { name: 'Keyboard shortcuts' })
+    await help.waitFor()
+    await expect(help.innerText()).resolves.toContain('Select or unselect the row')
+    await page.keyboard.press('Escape')
+    await expect(help.count()).resolves.toBe(0)
+
+    await expect(page.evaluate(() => (window as unknown as { __pointer: number }).__pointer)).resolves.toBe(0)
+    await page.context().close()
+  })
+
+  it('never fires a shortcut while typing in a field', async () => {
+    const page = await signedInPage()
+    await page.goto(`${server.url}/devices`, { waitUntil: 'networkidle' })
+    await page.keyboard.press('/')
+    await page.keyboard.type('gx?j')
+    await expect(page.evaluate(() => (document.activeElement as HTMLInputElement).value)).resolves.toBe('gx?j')
+    await expect(page.getByRole('dialog').count()).resolves.toBe(0)
+    expect(page.url()).toContain('/devices')
+    await page.context().close()
+  })
+})
