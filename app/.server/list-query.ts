@@ -67,6 +67,25 @@ export function ftsQuery(text: string): string | null {
   return words.length ? words.map((w) => `"${w}"*`).join(' ') : null
 }
 
+// search_index rowids are id * 4 + kind (drizzle/0001_search_and_counts.sql).
+const FTS_KINDS = { customer: [0, 'customers'], site: [1, 'sites'], unit: [2, 'units'], detector: [3, 'detectors'] } as const
+export type FtsKind = keyof typeof FTS_KINDS
+
+/**
+ * Keeps the search_index rows of one kind. Both tests are on the rowid, so neither reads a stored
+ * column of the matches; and as no row of a kind lies past its table's highest id, FTS5 stops the
+ * scan there (a customer search reads only the first few hundred rowids of each word's list).
+ */
+export function ftsKindRows(kind: FtsKind): string {
+  const [code, table] = FTS_KINDS[kind]
+  return `rowid % 4 = ${code} and rowid <= (select max(id) from ${table}) * 4 + 3`
+}
+
+/** Subquery of the ids of one kind matching an `ftsQuery` (its one parameter). */
+export function ftsIds(kind: FtsKind): string {
+  return `select rowid / 4 from search_index where search_index match ? and ${ftsKindRows(kind)}`
+}
+
 export function runList<F extends { q?: string; sort?: string; dir?: 'asc' | 'desc'; offset: number; limit: number }, Row>(
   db: Db,
   spec: ListSpec<F>,

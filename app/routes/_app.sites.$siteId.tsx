@@ -10,6 +10,7 @@ import {
   siteNotifications,
   siteUnits,
   siteUpcomingVisits,
+  SITE_EVENTS_CAP,
   type SiteRecord,
 } from '~/.server/repos/pages'
 import { officeToday } from '~/.server/today'
@@ -50,6 +51,7 @@ export async function loader({ request, params: raw }: Route.LoaderArgs) {
     visits: siteUpcomingVisits(db, id, today),
     notifications: siteNotifications(db, id),
     events: siteEvents(db, id),
+    eventCap: SITE_EVENTS_CAP,
   }
 }
 
@@ -79,7 +81,7 @@ const clock = (iso: string, timeZone: string) =>
   new Intl.DateTimeFormat('en-GB', { timeZone, hour: '2-digit', minute: '2-digit', hourCycle: 'h23' }).format(new Date(iso))
 
 export default function Site({ loaderData }: Route.ComponentProps) {
-  const { site: s, counts, units, detectors, visits, notifications, events, now } = loaderData
+  const { site: s, counts, units, detectors, visits, notifications, events, eventCap, now } = loaderData
   const mc = s.monitoring
   const tz = s.timeZone
   return (
@@ -383,7 +385,9 @@ export default function Site({ loaderData }: Route.ComponentProps) {
           <h2 id="events-h" className="font-semibold">
             Event timeline
           </h2>
-          <span className="text-xs text-ink-faint">Latest {formatCount(events.length)}</span>
+          <span className="text-xs text-ink-faint">
+            {events.length < eventCap ? `All ${formatCount(events.length)}` : `Latest ${formatCount(events.length)}`}
+          </span>
         </div>
         <EventTimeline events={events} timeZone={tz} />
       </section>

@@ -11,7 +11,7 @@ interface BuiltRoute {
   parentId?: string
   path?: string
   index?: boolean
-  module: { default?: unknown; loader?: unknown; action?: unknown; handle?: { access?: RouteAccess; sampleQuery?: string } }
+  module: { default?: unknown; loader?: unknown; action?: unknown; handle?: { access?: RouteAccess; sampleQuery?: string; redirects?: boolean } }
 }
 
 const EMAIL: Record<Role, string> = {
@@ -78,7 +78,7 @@ describe('route × role matrix', () => {
     if (allows(role, access)) {
       expect([401, 403], label).not.toContain(res.status)
       expect(location.startsWith('/sign-in?returnTo='), label).toBe(false)
-      if (method === 'GET' && access !== 'public') expect(res.status, label).toBe(200)
+      if (method === 'GET' && access !== 'public') expect(res.status, label).toBe(route.module.handle?.redirects ? 302 : 200)
     } else if (role === null) {
       if (isApi) expect(res.status, label).toBe(401)
       else {

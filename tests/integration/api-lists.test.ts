@@ -427,8 +427,8 @@ describe('the fleet API is for signed-in callers', () => {
 })
 
 describe('one-record routes', () => {
-  const one = <T>(sql: string, ...params: unknown[]) => data.db.$client.prepare(sql).get(...params) as T
-  const rows = <T>(sql: string, ...params: unknown[]) => data.db.$client.prepare(sql).all(...params) as T[]
+  const one = <T = Record<string, unknown>>(sql: string, ...params: unknown[]) => data.db.$client.prepare(sql).get(...params) as T
+  const rows = <T = Record<string, unknown>>(sql: string, ...params: unknown[]) => data.db.$client.prepare(sql).all(...params) as T[]
   const json = async (path: string) => {
     const res = await get(path)
     expect(res.status, path).toBe(200)

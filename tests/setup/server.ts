@@ -1,6 +1,7 @@
 import { spawn } from 'node:child_process'
 import { createServer } from 'node:net'
 import { DEMO_DIRECTORY, startIdentityProvider } from '../../mocks/identity-provider'
+import { TEST_TODAY } from './temp-db'
 
 export const TEST_SESSION_SECRET = 'test-session-secret-0123456789abcdef-0123456789'
 export const TEST_CLIENT = { id: 'ductkeeper-test', secret: 'test-client-secret' }
@@ -39,6 +40,7 @@ export async function startServer(databasePath: string, extraEnv: Record<string,
       PORT: String(port),
       HOST: '127.0.0.1',
       SESSION_SECRET: TEST_SESSION_SECRET,
+      OFFICE_TODAY: TEST_TODAY,
       OIDC_ISSUER: idp.issuer,
       OIDC_CLIENT_ID: TEST_CLIENT.id,
       OIDC_CLIENT_SECRET: TEST_CLIENT.secret,

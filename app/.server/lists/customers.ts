@@ -1,5 +1,5 @@
 import { z } from 'zod'
-import { ftsQuery, inList, multi, pagingSchema, type ListSpec } from '../list-query'
+import { ftsIds, ftsQuery, inList, multi, pagingSchema, type ListSpec } from '../list-query'
 
 export const customerKinds = ['restaurant', 'retail', 'office', 'school', 'healthcare'] as const
 
@@ -53,10 +53,9 @@ export const customerList: ListSpec<CustomerQuery> = {
   where(f) {
     const clauses: string[] = []
     const params: unknown[] = []
-    // The kind is in the rowid (id * 4 + kind): testing the stored kind column would read every match.
     const fts = f.q ? ftsQuery(f.q) : null
     if (fts) {
-      clauses.push(`t.id in (select rowid / 4 from search_index where search_index match ? and rowid % 4 = 0)`)
+      clauses.push(`t.id in (${ftsIds('customer')})`)
       params.push(fts)
     }
     if (f.kind?.length) {

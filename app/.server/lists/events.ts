@@ -1,7 +1,7 @@
 import { z } from 'zod'
 import { addDays } from '~/domain/dates'
 import { eventKinds } from '../schema'
-import { ftsQuery, idParam, inList, isoDate, multi, pagingSchema, type ListSpec } from '../list-query'
+import { ftsIds, ftsQuery, idParam, inList, isoDate, multi, pagingSchema, type ListSpec } from '../list-query'
 
 const SORTS = {
   occurredAt: 't.occurred_at',
@@ -95,12 +95,11 @@ export const eventList: ListSpec<EventQuery> = {
       if (isDay(f.to)) add('t.occurred_at < ?', addDays(f.to, 1))
       else add('t.occurred_at <= ?', instant(f.to))
     }
-    // The kind is in the rowid (id * 4 + kind): testing the stored kind column would read every match.
     const fts = f.q ? ftsQuery(f.q) : null
     if (fts) {
       add(
-        `(t.detector_id in (select rowid / 4 from search_index where search_index match ? and rowid % 4 = 3)
-          or t.site_id in (select rowid / 4 from search_index where search_index match ? and rowid % 4 = 1))`,
+        `(t.detector_id in (${ftsIds('detector')})
+          or t.site_id in (${ftsIds('site')}))`,
         fts,
         fts,
       )

@@ -1,5 +1,5 @@
 import { z } from 'zod'
-import { ftsQuery, idParam, inList, multi, pagingSchema, type ListSpec } from '../list-query'
+import { ftsIds, ftsQuery, idParam, inList, multi, pagingSchema, type ListSpec } from '../list-query'
 
 // Counts ride detectors_site_idx and units_site_idx; the overdue count also reads each detector's
 // row for its status, which is what a sort by it over the whole table pays for.
@@ -101,9 +101,8 @@ export const siteList: ListSpec<SiteQuery> = {
       const l = inList(expr, values)
       add(l.clause, ...l.params)
     }
-    // The kind is in the rowid (id * 4 + kind): testing the stored kind column would read every match.
     const fts = f.q ? ftsQuery(f.q) : null
-    if (fts) add(`t.id in (select rowid / 4 from search_index where search_index match ? and rowid % 4 = 1)`, fts)
+    if (fts) add(`t.id in (${ftsIds('site')})`, fts)
     if (f.customer) add('t.customer_id = ?', f.customer)
     list('t.region', f.region)
     list('t.code_basis', f.codeBasis)

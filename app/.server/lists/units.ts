@@ -1,5 +1,5 @@
 import { z } from 'zod'
-import { ftsQuery, idParam, inList, multi, pagingSchema, type ListSpec } from '../list-query'
+import { ftsIds, ftsQuery, idParam, inList, multi, pagingSchema, type ListSpec } from '../list-query'
 
 export const unitKinds = ['rtu', 'ahu', 'mau', 'erv', 'fcu'] as const
 export const shutdownInputs = ['break-to-stop', 'make-to-stop'] as const
@@ -81,9 +81,8 @@ export const unitList: ListSpec<UnitQuery> = {
       const l = inList(expr, values)
       add(l.clause, ...l.params)
     }
-    // The kind is in the rowid (id * 4 + kind): testing the stored kind column would read every match.
     const fts = f.q ? ftsQuery(f.q) : null
-    if (fts) add(`t.id in (select rowid / 4 from search_index where search_index match ? and rowid % 4 = 2)`, fts)
+    if (fts) add(`t.id in (${ftsIds('unit')})`, fts)
     if (f.site) add('t.site_id = ?', f.site)
     if (f.customer) add('t.site_id in (select id from sites where customer_id = ?)', f.customer)
     list('t.kind', f.kind)

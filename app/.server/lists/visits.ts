@@ -1,5 +1,5 @@
 import { z } from 'zod'
-import { ftsQuery, idParam, inList, isoDate, multi, pagingSchema, type ListSpec } from '../list-query'
+import { ftsIds, ftsQuery, idParam, inList, isoDate, multi, pagingSchema, type ListSpec } from '../list-query'
 
 export const visitKinds = ['inspection', 'test', 'cleaning', 'repair', 'commissioning'] as const
 export const visitStatuses = ['planned', 'notified', 'in-progress', 'done', 'cancelled'] as const
@@ -86,9 +86,8 @@ export const visitList: ListSpec<VisitQuery> = {
       const l = inList(expr, values)
       add(l.clause, ...l.params)
     }
-    // The kind is in the rowid (id * 4 + kind): testing the stored kind column would read every match.
     const fts = f.q ? ftsQuery(f.q) : null
-    if (fts) add(`t.site_id in (select rowid / 4 from search_index where search_index match ? and rowid % 4 = 1)`, fts)
+    if (fts) add(`t.site_id in (${ftsIds('site')})`, fts)
     list('t.status', f.status)
     list('t.kind', f.kind)
     if (f.site) add('t.site_id = ?', f.site)

@@ -1,5 +1,5 @@
 import type { Db } from '../db'
-import { ftsQuery } from '../list-query'
+import { ftsKindRows, ftsQuery } from '../list-query'
 
 export const searchKinds = ['customer', 'site', 'unit', 'detector'] as const
 export type SearchKind = (typeof searchKinds)[number]
@@ -23,54 +23,60 @@ export const PER_KIND = 8
 const CANDIDATES = 2000
 
 // What a person needs to tell two hits apart (tags repeat from site to site), read from the record.
-const KINDS: Record<SearchKind, { code: number; href: string; join: string; detail: string }> = {
-  customer: { code: 0, href: '/customers', join: 'join customers x on x.id = r.id', detail: 'x.kind' },
-  site: { code: 1, href: '/sites', join: 'join sites x on x.id = r.id', detail: `x.street || ', ' || x.city` },
+const KINDS: Record<SearchKind, { href: string; join: string; detail: string }> = {
+  customer: { href: '/customers', join: 'join customers x on x.id = r.value', detail: 'x.kind' },
+  site: { href: '/sites', join: 'join sites x on x.id = r.value', detail: `x.street || ', ' || x.city` },
   unit: {
-    code: 2,
     href: '/units',
-    join: 'join units x on x.id = r.id join sites s on s.id = x.site_id',
+    join: 'join units x on x.id = r.value join sites s on s.id = x.site_id',
     detail: `s.name || coalesce(' · ' || x.location, '')`,
   },
   detector: {
-    code: 3,
     href: '/devices',
-    join: 'join detectors x on x.id = r.id join sites s on s.id = x.site_id join units u on u.id = x.unit_id',
+    join: 'join detectors x on x.id = r.value join sites s on s.id = x.site_id join units u on u.id = x.unit_id',
     detail: `s.name || ' · ' || u.tag || ' ' || x.position`,
   },
 }
 
 /**
- * As `ftsQuery`, but a one-character word after the first matches a whole token (the 's' of
- * 'rtu 1 s'): a one-character prefix has no prefix index and expands to every token with that letter.
+ * As `ftsQuery`, but a one-character word matches a whole token (the 's' of 'rtu 1 s'): a
+ * one-character prefix has no prefix index and expands to every token with that letter (~40 ms a kind).
  */
 export function paletteQuery(text: string): string | null {
-  const words = ftsQuery(text)?.split(' ')
-  return words ? words.map((w, i) => (i > 0 && /^"[^"]"\*$/u.test(w) ? w.slice(0, -1) : w)).join(' ') : null
+  const terms = ftsQuery(text)?.split(' ')
+  return terms ? terms.map((t) => (/^"[^"]"\*$/u.test(t) ? t.slice(0, -1) : t)).join(' ') : null
 }
+
+/** Words only, lower case: 'Zq 7', 'zq-7' and 'ZQ-7' all read as the tag ZQ-7. */
+const words = (text: string) => text.toLowerCase().split(/[^\p{L}\p{N}]+/u).filter(Boolean).join(' ')
 
 /**
  * The palette's search: per kind, the best matches by bm25 with titles weighted over details, and a
- * title typed in full (an exact tag) ahead of the rest. The kind lives in the rowid (id * 4 + kind),
- * so filtering on it reads no stored column of the rows that are not shown.
+ * title typed in full (an exact tag) ahead of the rest.
  */
 export function search(db: Db, q: string): SearchResult {
   const fts = paletteQuery(q)
   if (!fts) return { q, groups: [] }
+  const typed = words(q)
   const groups = searchKinds.map((kind) => {
     const k = KINDS[kind]
-    const rows = db.$client
+    const candidates = db.$client
       .prepare(
-        `select r.id, r.title, ${k.detail} as detail
-         from (select c.rowid / 4 as id, c.title, c.title = ? collate nocase as exact, c.score
-               from (select rowid, title, bm25(search_index, 0, 0, 4, 1) as score
-                     from search_index where search_index match ? and rowid % 4 = ${k.code} limit ${CANDIDATES}) c
-               order by exact desc, c.score, c.rowid limit ${PER_KIND}) r
-         ${k.join}
-         order by r.exact desc, r.score, r.id`,
+        `select rowid / 4 as id, title, bm25(search_index, 0, 0, 4, 1) as score
+         from search_index where search_index match ? and ${ftsKindRows(kind)} limit ${CANDIDATES}`,
       )
-      .all(q.trim(), fts) as Array<{ id: number; title: string; detail: string | null }>
-    return { kind, items: rows.map((r) => ({ id: r.id, title: r.title, detail: r.detail ?? '', href: `${k.href}/${r.id}` })) }
+      .all(fts) as Array<{ id: number; title: string; score: number }>
+    const ranked = candidates.map((c) => ({ ...c, exact: words(c.title) === typed ? 0 : 1 }))
+    const best = ranked.sort((a, b) => a.exact - b.exact || a.score - b.score || a.id - b.id).slice(0, PER_KIND)
+    if (best.length === 0) return { kind, items: [] }
+    const details = new Map(
+      (
+        db.$client
+          .prepare(`select r.value as id, ${k.detail} as detail from json_each(?) r ${k.join}`)
+          .all(JSON.stringify(best.map((b) => b.id))) as Array<{ id: number; detail: string | null }>
+      ).map((d) => [d.id, d.detail ?? '']),
+    )
+    return { kind, items: best.map((b) => ({ id: b.id, title: b.title, detail: details.get(b.id) ?? '', href: `${k.href}/${b.id}` })) }
   })
   return { q, groups: groups.filter((g) => g.items.length > 0) }
 }

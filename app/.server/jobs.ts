@@ -1,0 +1,22 @@
+import { getDb } from './db'
+import { refreshIfNewDay } from './refresh'
+
+const globalJobs = globalThis as unknown as { __ductkeeperJobs?: NodeJS.Timeout }
+const EVERY_MS = 10 * 60_000
+
+/** Starts once per process: keeps the derived fleet columns true to the office's calendar day. */
+export function startBackgroundJobs() {
+  if (globalJobs.__ductkeeperJobs || process.env.DUCTKEEPER_JOBS === 'off') return
+  const tick = () => {
+    try {
+      const result = refreshIfNewDay(getDb())
+      if (result) console.log(`Derived fleet fields refreshed for the day: ${result.changed} of ${result.checked} detectors changed`)
+    } catch (error) {
+      console.error('Refreshing derived fleet fields failed', error)
+    }
+  }
+  // After start-up, so the first request is not kept waiting.
+  setTimeout(tick, 200).unref()
+  globalJobs.__ductkeeperJobs = setInterval(tick, EVERY_MS)
+  globalJobs.__ductkeeperJobs.unref()
+}
