@@ -120,7 +120,11 @@ export function runList<F extends { q?: string; sort?: string; dir?: 'asc' | 'de
       total = hit.total
       totalExact = false
     } else {
-      total = (q.prepare(`select count(*) as n from ${spec.from} ${where}`).get(...named, ...values) as { n: number }).n
+      // Counted over a subquery that cannot be flattened (`limit -1`): SQLite drops unused left joins
+      // from a plain select but not from an aggregate, where they cost a lookup per row (3 s, not
+      // 30 ms, over 440,000 events).
+      const sql = `select count(*) as n from (select t.id from ${spec.from} ${where} limit -1)`
+      total = (q.prepare(sql).get(...named, ...values) as { n: number }).n
       totals.set(cacheKey, { total, at: Date.now(), version: writeVersion })
     }
   }

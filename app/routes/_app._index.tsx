@@ -4,7 +4,7 @@ import { can, type RouteAccess } from '~/domain/permissions'
 import { homeFor } from '~/utils/sections'
 import type { Route } from './+types/_app._index'
 
-// redirects: the route × role test expects a redirect home, not a page.
+// redirects: the route × role test expects a redirect home here, not a page.
 export const handle = { access: { loader: 'view:fleet' } satisfies RouteAccess, redirects: true }
 
 export async function loader({ request }: Route.LoaderArgs) {

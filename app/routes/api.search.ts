@@ -9,7 +9,9 @@ import type { Route } from './+types/api.search'
 // sampleQuery: what the route × role test sends to reach the loader with valid input.
 export const handle = { access: { loader: 'view:fleet' } satisfies RouteAccess, sampleQuery: 'q=rtu' }
 
-const searchQuery = z.object({ q: z.string().trim().min(1, 'Type something to search for').max(100) })
+const searchQuery = z.object({
+  q: z.string({ error: 'Type something to search for' }).trim().min(1, 'Type something to search for').max(100),
+})
 
 /** The command palette: customers, sites, units and detectors matching the words typed, best first. */
 export async function loader({ request }: Route.LoaderArgs) {

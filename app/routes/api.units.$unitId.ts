@@ -1,6 +1,6 @@
 import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
-import { unitRecord, notFound, recordId } from '~/.server/repos/records'
+import { notFound, recordId, unitRecord } from '~/.server/repos/records'
 import type { RouteAccess } from '~/domain/permissions'
 import type { Route } from './+types/api.units.$unitId'
 

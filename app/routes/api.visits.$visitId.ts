@@ -1,6 +1,6 @@
 import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
-import { visitRecord, notFound, recordId } from '~/.server/repos/records'
+import { notFound, recordId, visitRecord } from '~/.server/repos/records'
 import type { RouteAccess } from '~/domain/permissions'
 import type { Route } from './+types/api.visits.$visitId'
 

@@ -1,5 +1,6 @@
 import { z } from 'zod'
 import { addDays } from '~/domain/dates'
+import type { Db } from '../db'
 import { eventKinds } from '../schema'
 import { ftsIds, ftsQuery, idParam, inList, isoDate, multi, pagingSchema, type ListSpec } from '../list-query'
 
@@ -38,7 +39,22 @@ export const eventQuery = pagingSchema(Object.keys(SORTS) as [keyof typeof SORTS
       })
     }
   })
-export type EventQuery = z.infer<typeof eventQuery>
+// `broad` is set by the route (`searchIsBroad`), never taken from the client.
+export type EventQuery = z.infer<typeof eventQuery> & { broad?: boolean }
+
+// Words matching more detectors than this match a large share of all events. Their newest events
+// are then found soonest by walking events_time_idx and testing each against the matches (25 ms for
+// 'rtu', 75% of 2.1 million events) than by gathering every match through the detector index and
+// sorting it (360 ms). For a narrow search (a street, a serial) the index is right, and far faster.
+const BROAD_DETECTORS = 1000
+
+/** Whether `q` matches so many detectors that its events are best found in time order. */
+export function searchIsBroad(db: Db, q: string): boolean {
+  const fts = ftsQuery(q)
+  if (!fts) return false
+  const sql = `select count(*) as n from (${ftsIds('detector')} limit ${BROAD_DETECTORS + 1})`
+  return (db.$client.prepare(sql).get(fts) as { n: number }).n > BROAD_DETECTORS
+}
 
 export interface EventListRow {
   id: number
@@ -97,12 +113,9 @@ export const eventList: ListSpec<EventQuery> = {
     }
     const fts = f.q ? ftsQuery(f.q) : null
     if (fts) {
-      add(
-        `(t.detector_id in (${ftsIds('detector')})
-          or t.site_id in (${ftsIds('site')}))`,
-        fts,
-        fts,
-      )
+      // A unary plus keeps SQLite from answering the term through an index (see BROAD_DETECTORS).
+      const col = (name: string) => (f.broad ? `+t.${name}` : `t.${name}`)
+      add(`(${col('detector_id')} in (${ftsIds('detector')}) or ${col('site_id')} in (${ftsIds('site')}))`, fts, fts)
     }
     return { clauses, params }
   },

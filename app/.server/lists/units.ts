@@ -1,8 +1,6 @@
 import { z } from 'zod'
+import { units } from '../schema'
 import { ftsIds, ftsQuery, idParam, inList, multi, pagingSchema, type ListSpec } from '../list-query'
-
-export const unitKinds = ['rtu', 'ahu', 'mau', 'erv', 'fcu'] as const
-export const shutdownInputs = ['break-to-stop', 'make-to-stop'] as const
 
 // Rides detectors_unit_idx: one short index range per unit.
 const DETECTORS = '(select count(*) from detectors x where x.unit_id = t.id)'
@@ -24,8 +22,8 @@ const SORTS = {
 export const unitQuery = pagingSchema(Object.keys(SORTS) as [keyof typeof SORTS, ...Array<keyof typeof SORTS>]).extend({
   site: idParam.optional(),
   customer: idParam.optional(),
-  kind: multi(unitKinds),
-  shutdownInput: multi(shutdownInputs),
+  kind: multi(units.kind.enumValues),
+  shutdownInput: multi(units.shutdownInput.enumValues),
 })
 export type UnitQuery = z.infer<typeof unitQuery>
 

@@ -1,8 +1,6 @@
 import { z } from 'zod'
+import { visits } from '../schema'
 import { ftsIds, ftsQuery, idParam, inList, isoDate, multi, pagingSchema, type ListSpec } from '../list-query'
-
-export const visitKinds = ['inspection', 'test', 'cleaning', 'repair', 'commissioning'] as const
-export const visitStatuses = ['planned', 'notified', 'in-progress', 'done', 'cancelled'] as const
 
 // visit_detectors' primary key and notifications_visit_idx both lead with visit_id.
 const DETECTORS = '(select count(*) from visit_detectors x where x.visit_id = t.id)'
@@ -22,8 +20,8 @@ const SORTS = {
 } as const
 
 export const visitQuery = pagingSchema(Object.keys(SORTS) as [keyof typeof SORTS, ...Array<keyof typeof SORTS>]).extend({
-  status: multi(visitStatuses),
-  kind: multi(visitKinds),
+  status: multi(visits.status.enumValues),
+  kind: multi(visits.kind.enumValues),
   site: idParam.optional(),
   customer: idParam.optional(),
   technician: idParam.optional(),
