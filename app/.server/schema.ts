@@ -194,6 +194,9 @@ export const detectors = sqliteTable(
     index('detectors_delay_idx').on(t.delayAgreement),
     index('detectors_tag_idx').on(t.tag),
     index('detectors_assigned_idx').on(t.assignedTo),
+    // Per-customer and per-site overdue and trouble counts, which the lists sort on.
+    index('detectors_customer_due_idx').on(t.customerId, t.dueStatus, t.state),
+    index('detectors_site_due_idx').on(t.siteId, t.dueStatus),
   ],
 )
 

@@ -70,11 +70,22 @@ export function CommandPalette({ sections }: { sections: Section[] }) {
       navigate(item.href)
     })
   const matches = (label: string) => !q || label.toLowerCase().includes(q.toLowerCase())
+  // The highlighted entry is held here: results arrive after the keystroke, and the first of them
+  // should be the one Enter opens.
+  const [highlight, setHighlight] = useState('')
+  const values = [
+    ...actions.filter((a) => matches(a.label)).map((a) => `action:${a.id}`),
+    ...(q ? (data?.groups ?? []).flatMap((g) => g.items.map((i) => i.href)) : recent.map((r) => `recent:${r.href}`)),
+    ...sections.filter((s) => matches(s.label)).map((s) => `section:${s.to}`),
+  ]
+  const firstValue = values[0] ?? ''
+  const known = values.join('|')
+  useEffect(() => setHighlight(firstValue), [known, firstValue])
   const goShortcut = (to: string) => keysFor(`go:${to}`)[0]
   const mac = typeof navigator !== 'undefined' && /Mac/.test(navigator.platform)
 
   return (
-    <CommandDialog open={open} onOpenChange={setOpen} label="Command palette">
+    <CommandDialog open={open} onOpenChange={setOpen} label="Command palette" value={highlight} onValueChange={setHighlight}>
       <CommandInput value={text} onValueChange={setText} placeholder="Go to, find a customer, site, unit or detector, or run an action…" />
       <CommandList>
         <CommandEmpty>{isLoading ? 'Searching…' : 'Nothing matches.'}</CommandEmpty>

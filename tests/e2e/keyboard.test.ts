@@ -43,40 +43,47 @@ describe('a keyboard-only session in Chromium', () => {
     const page = await signedInPage()
     await page.goto(`${server.url}/triage`, { waitUntil: 'networkidle' })
 
-    await page.keyboard.press('Control+k')
     const palette = page.getByRole('dialog', { name: 'Command palette' })
-    await palette.waitFor()
+    // Typing starts once the palette's input has focus, as a person would see the caret first.
+    const openPalette = async () => {
+      await page.keyboard.press('Control+k')
+      await palette.waitFor()
+      await page.waitForFunction(() => document.activeElement?.hasAttribute('cmdk-input'))
+    }
+    // Arrow down to an entry (results arrive as you type), then open it with Enter.
+    const choose = async (value: string) => {
+      await palette.locator(`[cmdk-item][data-value="${value}"]`).waitFor()
+      for (let i = 0; i < 20; i++) {
+        const selected = palette.locator('[cmdk-item][data-selected="true"]')
+        if ((await selected.count()) > 0 && (await selected.getAttribute('data-value')) === value) break
+        await page.keyboard.press('ArrowDown')
+      }
+      await page.keyboard.press('Enter')
+    }
+    await openPalette()
     await page.keyboard.type(`${streetWord} ${site.name.split(' ')[0]}`)
     await palette.getByRole('option', { name: new RegExp(site.name.replace(/[.*+?^${}()|[\]\\]/g, '\\$&')) }).first().waitFor()
-    // Arrow down to the site's own entry, then open it.
-    for (let i = 0; i < 12; i++) {
-      const selected = await palette.locator('[cmdk-item][data-selected="true"]').getAttribute('data-value')
-      if (selected === `/sites/${site.id}`) break
-      await page.keyboard.press('ArrowDown')
-    }
-    await page.keyboard.press('Enter')
+    await choose(`/sites/${site.id}`)
     await page.waitForURL(`${server.url}/sites/${site.id}`)
     await page.getByRole('heading', { level: 1 }).waitFor()
 
-    await page.keyboard.press('Control+k')
-    await palette.waitFor()
+    await openPalette()
     await page.keyboard.type(`${detector.tag} ${streetWord}`)
     await palette.locator(`[cmdk-item][data-value="/devices/${detector.id}"]`).waitFor()
-    for (let i = 0; i < 12; i++) {
-      if ((await palette.locator('[cmdk-item][data-selected="true"]').getAttribute('data-value')) === `/devices/${detector.id}`) break
-      await page.keyboard.press('ArrowDown')
-    }
-    await page.keyboard.press('Enter')
+    await choose(`/devices/${detector.id}`)
     await page.waitForURL(`${server.url}/devices/${detector.id}`)
     await page.getByRole('heading', { level: 1, name: detector.tag }).waitFor()
 
-    await page.keyboard.press('Alt+ArrowLeft')
+    // The browser's own Back (Alt+Left) is browser chrome, which a headless page never receives:
+    // ask the browser for the same history step.
+    await page.goBack()
     await page.waitForURL(`${server.url}/sites/${site.id}`)
 
     // g then d: the detectors list; / to the filter; Tab to the "Due" filter; choose Overdue.
     await page.keyboard.press('g')
     await page.keyboard.press('d')
     await page.waitForURL(`${server.url}/devices`)
+    await page.getByRole('searchbox').waitFor()
     await page.keyboard.press('/')
     await expect(page.evaluate(() => document.activeElement?.getAttribute('type'))).resolves.toBe('search')
     await page.keyboard.press('Tab') // State

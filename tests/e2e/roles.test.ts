@@ -47,7 +47,7 @@ describe('each role in Chromium', () => {
     await page.goto(server.url)
     await page.getByRole('button', { name: 'Sign out' }).click()
     await page.waitForURL(/\/sign-in\?signed-out/)
-    await expect(page.getByRole('status').innerText()).resolves.toContain('signed out')
+    await page.getByRole('status').filter({ hasText: 'You are signed out.' }).waitFor()
     await page.goto(server.url)
     await page.waitForURL(/\/sign-in\?returnTo=/)
     await context.close()

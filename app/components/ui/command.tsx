@@ -1,12 +1,28 @@
 import { Command as Cmdk } from 'cmdk'
 
 // Thin, styled wrappers so the palette reads like the rest of the console.
-export function CommandDialog({ open, onOpenChange, children, label }: { open: boolean; onOpenChange: (open: boolean) => void; children: React.ReactNode; label: string }) {
+export function CommandDialog({
+  open,
+  onOpenChange,
+  children,
+  label,
+  value,
+  onValueChange,
+}: {
+  open: boolean
+  onOpenChange: (open: boolean) => void
+  children: React.ReactNode
+  label: string
+  value?: string
+  onValueChange?: (value: string) => void
+}) {
   return (
     <Cmdk.Dialog
       open={open}
       onOpenChange={onOpenChange}
       label={label}
+      value={value}
+      onValueChange={onValueChange}
       shouldFilter={false}
       loop
       data-slot="command-dialog"
