@@ -175,3 +175,19 @@ export function cached<T>(key: string, ttlMs: number, compute: () => T): T {
   cache.set(key, { value, at: Date.now(), version: writeVersion })
   return value
 }
+
+/** Collects WHERE clauses and their parameters in step: `add` one, or `list` an IN over a multi filter. */
+export function whereBuilder() {
+  const clauses: string[] = []
+  const params: unknown[] = []
+  const add = (clause: string, ...p: unknown[]) => {
+    clauses.push(clause)
+    params.push(...p)
+  }
+  const list = (expr: string, values?: readonly unknown[]) => {
+    if (!values?.length) return
+    const l = inList(expr, values)
+    add(l.clause, ...l.params)
+  }
+  return { add, list, done: () => ({ clauses, params }) }
+}

@@ -1,6 +1,6 @@
 import { z } from 'zod'
 import { detectorStates, dueStatuses, environments } from '../schema'
-import { ftsIds, ftsQuery, idParam, inList, isoDate, multi, pagingSchema, type ListSpec } from '../list-query'
+import { ftsIds, ftsQuery, idParam, isoDate, multi, pagingSchema, type ListSpec, whereBuilder } from '../list-query'
 
 const SORTS = {
   tag: 't.tag',
@@ -93,17 +93,7 @@ export const deviceList: ListSpec<DeviceQuery> = {
   defaultSort: { key: 'risk', dir: 'desc' },
   countedAs: 'detectors',
   where(f) {
-    const clauses: string[] = []
-    const params: unknown[] = []
-    const add = (clause: string, ...p: unknown[]) => {
-      clauses.push(clause)
-      params.push(...p)
-    }
-    const list = (expr: string, values?: readonly unknown[]) => {
-      if (!values?.length) return
-      const l = inList(expr, values)
-      add(l.clause, ...l.params)
-    }
+    const { add, list, done } = whereBuilder()
     const fts = f.q ? ftsQuery(f.q) : null
     if (fts) add(`t.id in (${ftsIds('detector')})`, fts)
     list('t.state', f.state)
@@ -122,6 +112,6 @@ export const deviceList: ListSpec<DeviceQuery> = {
     if (f.installedFrom) add('t.installed_on >= ?', f.installedFrom)
     if (f.installedTo) add('t.installed_on <= ?', f.installedTo)
     if (f.minRisk !== undefined) add('t.risk_score >= ?', f.minRisk)
-    return { clauses, params }
+    return done()
   },
 }

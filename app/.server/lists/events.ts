@@ -2,7 +2,7 @@ import { z } from 'zod'
 import { addDays } from '~/domain/dates'
 import type { Db } from '../db'
 import { eventKinds } from '../schema'
-import { ftsIds, ftsQuery, idParam, inList, isoDate, multi, pagingSchema, type ListSpec } from '../list-query'
+import { ftsIds, ftsQuery, idParam, inList, isoDate, multi, pagingSchema, type ListSpec, whereBuilder } from '../list-query'
 
 const SORTS = {
   occurredAt: 't.occurred_at',
@@ -94,12 +94,7 @@ export const eventList: ListSpec<EventQuery> = {
   defaultSort: { key: 'occurredAt', dir: 'desc' },
   countedAs: 'events',
   where(f) {
-    const clauses: string[] = []
-    const params: unknown[] = []
-    const add = (clause: string, ...p: unknown[]) => {
-      clauses.push(clause)
-      params.push(...p)
-    }
+    const { add, done } = whereBuilder()
     if (f.kind?.length) {
       const l = inList('t.kind', f.kind)
       add(l.clause, ...l.params)
@@ -118,6 +113,6 @@ export const eventList: ListSpec<EventQuery> = {
       const col = (name: string) => (f.broad ? `+t.${name}` : `t.${name}`)
       add(`(${col('detector_id')} in (${ftsIds('detector')}) or ${col('site_id')} in (${ftsIds('site')}))`, fts, fts)
     }
-    return { clauses, params }
+    return done()
   },
 }

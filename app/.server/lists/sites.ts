@@ -1,6 +1,6 @@
 import { z } from 'zod'
 import { sites } from '../schema'
-import { ftsIds, ftsQuery, idParam, inList, multi, pagingSchema, type ListSpec } from '../list-query'
+import { ftsIds, ftsQuery, idParam, multi, pagingSchema, type ListSpec, whereBuilder } from '../list-query'
 
 // Counts ride detectors_site_idx and units_site_idx, the next visit visits_site_idx. The overdue
 // count also reads each detector's row for its status: sorting all 15,000 stress-scale sites by it
@@ -92,17 +92,7 @@ export const siteList: ListSpec<SiteQuery> = {
   countedAs: 'sites',
   named: (f) => ({ today: f.today }),
   where(f) {
-    const clauses: string[] = []
-    const params: unknown[] = []
-    const add = (clause: string, ...p: unknown[]) => {
-      clauses.push(clause)
-      params.push(...p)
-    }
-    const list = (expr: string, values?: readonly unknown[]) => {
-      if (!values?.length) return
-      const l = inList(expr, values)
-      add(l.clause, ...l.params)
-    }
+    const { add, list, done } = whereBuilder()
     const fts = f.q ? ftsQuery(f.q) : null
     if (fts) add(`t.id in (${ftsIds('site')})`, fts)
     if (f.customer) add('t.customer_id = ?', f.customer)
@@ -110,6 +100,6 @@ export const siteList: ListSpec<SiteQuery> = {
     list('t.code_basis', f.codeBasis)
     if (f.monitoring) add('t.monitoring_company_id = ?', f.monitoring)
     if (f.delayPolicy !== undefined) add('t.delay_policy_seconds = ?', f.delayPolicy)
-    return { clauses, params }
+    return done()
   },
 }

@@ -1,6 +1,6 @@
 import { z } from 'zod'
 import { units } from '../schema'
-import { ftsIds, ftsQuery, idParam, inList, multi, pagingSchema, type ListSpec } from '../list-query'
+import { ftsIds, ftsQuery, idParam, multi, pagingSchema, type ListSpec, whereBuilder } from '../list-query'
 
 // Rides detectors_unit_idx: one short index range per unit.
 const DETECTORS = '(select count(*) from detectors x where x.unit_id = t.id)'
@@ -68,23 +68,13 @@ export const unitList: ListSpec<UnitQuery> = {
   defaultSort: { key: 'site', dir: 'asc' },
   countedAs: 'units',
   where(f) {
-    const clauses: string[] = []
-    const params: unknown[] = []
-    const add = (clause: string, ...p: unknown[]) => {
-      clauses.push(clause)
-      params.push(...p)
-    }
-    const list = (expr: string, values?: readonly unknown[]) => {
-      if (!values?.length) return
-      const l = inList(expr, values)
-      add(l.clause, ...l.params)
-    }
+    const { add, list, done } = whereBuilder()
     const fts = f.q ? ftsQuery(f.q) : null
     if (fts) add(`t.id in (${ftsIds('unit')})`, fts)
     if (f.site) add('t.site_id = ?', f.site)
     if (f.customer) add('t.site_id in (select id from sites where customer_id = ?)', f.customer)
     list('t.kind', f.kind)
     list('t.shutdown_input', f.shutdownInput)
-    return { clauses, params }
+    return done()
   },
 }

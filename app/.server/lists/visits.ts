@@ -1,6 +1,6 @@
 import { z } from 'zod'
 import { visits } from '../schema'
-import { ftsIds, ftsQuery, idParam, inList, isoDate, multi, pagingSchema, type ListSpec } from '../list-query'
+import { ftsIds, ftsQuery, idParam, isoDate, multi, pagingSchema, type ListSpec, whereBuilder } from '../list-query'
 
 // visit_detectors' primary key and notifications_visit_idx both lead with visit_id.
 const DETECTORS = '(select count(*) from visit_detectors x where x.visit_id = t.id)'
@@ -73,17 +73,7 @@ export const visitList: ListSpec<VisitQuery> = {
   defaultSort: { key: 'scheduledOn', dir: 'desc' },
   countedAs: 'visits',
   where(f) {
-    const clauses: string[] = []
-    const params: unknown[] = []
-    const add = (clause: string, ...p: unknown[]) => {
-      clauses.push(clause)
-      params.push(...p)
-    }
-    const list = (expr: string, values?: readonly unknown[]) => {
-      if (!values?.length) return
-      const l = inList(expr, values)
-      add(l.clause, ...l.params)
-    }
+    const { add, list, done } = whereBuilder()
     const fts = f.q ? ftsQuery(f.q) : null
     if (fts) add(`t.site_id in (${ftsIds('site')})`, fts)
     list('t.status', f.status)
@@ -93,6 +83,6 @@ export const visitList: ListSpec<VisitQuery> = {
     if (f.technician) add('t.technician_id = ?', f.technician)
     if (f.from) add('t.scheduled_on >= ?', f.from)
     if (f.to) add('t.scheduled_on <= ?', f.to)
-    return { clauses, params }
+    return done()
   },
 }
