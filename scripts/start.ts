@@ -11,6 +11,8 @@ import { officeToday } from '~/.server/today'
 
 const dbPath = (process.env.DATABASE_PATH ??= 'data/ductkeeper.db')
 const port = (process.env.PORT ??= '3000')
+// The local demo's public address; sign-in comes back here (open this one, not 127.0.0.1).
+process.env.APP_URL ??= `http://localhost:${port}`
 
 const db = createDb(dbPath)
 const { n } = db.$client.prepare('select count(*) as n from customers').get() as { n: number }
@@ -54,7 +56,7 @@ if (!process.env.OIDC_ISSUER && !process.env.OIDC_AUTHORIZATION_ENDPOINT) {
     port: Number(process.env.IDP_PORT ?? 4010),
     clientId: process.env.OIDC_CLIENT_ID ?? 'ductkeeper-local',
     clientSecret: process.env.OIDC_CLIENT_SECRET ?? 'local-secret-not-for-production',
-    redirectUris: ['localhost', '127.0.0.1'].map((h) => `http://${h}:${port}/auth/callback`),
+    redirectUris: [new URL('/auth/callback', process.env.APP_URL).toString()],
     accounts: DEMO_DIRECTORY,
   })
   process.env.OIDC_ISSUER = idp.issuer

@@ -44,6 +44,8 @@ let authenticator: Promise<Authenticator<Identity>> | null = null
 export function getAuthenticator(request: Request): Promise<Authenticator<Identity>> {
   authenticator ??= (async () => {
     const ep = await endpoints()
+    // Outside production (dev server, tests of modules) the request's own origin stands in; production
+    // refuses to start without APP_URL or OIDC_REDIRECT_URI, so a Host header can never steer it.
     const redirectURI = env.OIDC_REDIRECT_URI ?? new URL('/auth/callback', env.APP_URL ?? request.url).toString()
     const auth = new Authenticator<Identity>()
     auth.use(
@@ -61,8 +63,10 @@ export function getAuthenticator(request: Request): Promise<Authenticator<Identi
         async ({ tokens }) => {
           const res = await fetch(ep.userinfo, { headers: { Authorization: `Bearer ${tokens.accessToken()}` } })
           if (!res.ok) throw new Error(`The identity provider did not return the account: HTTP ${res.status}`)
-          const info = (await res.json()) as { email?: string; name?: string }
+          const info = (await res.json()) as { email?: string; name?: string; email_verified?: boolean }
           if (!info.email) throw new Error('The identity provider did not share an e-mail address.')
+          // Accounts are matched on e-mail, so an address the provider has not verified proves nothing.
+          if (info.email_verified === false) throw new Error('The identity provider has not verified this e-mail address.')
           return { email: info.email.toLowerCase(), name: info.name ?? null }
         },
       ),

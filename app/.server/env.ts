@@ -25,6 +25,10 @@ const schema = z
     if (env.NODE_ENV === 'production' && (!env.SESSION_SECRET || env.SESSION_SECRET.length < 32)) {
       ctx.addIssue({ code: 'custom', path: ['SESSION_SECRET'], message: 'SESSION_SECRET of at least 32 characters is required in production' })
     }
+    // The sign-in redirect must never be taken from a request's Host header.
+    if (env.NODE_ENV === 'production' && !env.APP_URL && !env.OIDC_REDIRECT_URI) {
+      ctx.addIssue({ code: 'custom', path: ['APP_URL'], message: 'APP_URL (or OIDC_REDIRECT_URI) is required in production' })
+    }
   })
 
 export type Env = z.infer<typeof schema>

@@ -49,6 +49,7 @@ export interface ListResult<Row> {
 // filter's total is kept for a short while; a page request then costs only its indexed window.
 const TOTAL_TTL_MS = 30_000
 const totals = new Map<string, { total: number; at: number; version: number }>()
+const MAX_CACHED = 500
 let writeVersion = 0
 
 /** Call after a write that can change list membership: cached totals are dropped at once. */
@@ -125,6 +126,8 @@ export function runList<F extends { q?: string; sort?: string; dir?: 'asc' | 'de
       // 30 ms, over 440,000 events).
       const sql = `select count(*) as n from (select t.id from ${spec.from} ${where} limit -1)`
       total = (q.prepare(sql).get(...named, ...values) as { n: number }).n
+      // Every distinct filter adds an entry: keep the newest few hundred.
+      if (totals.size >= MAX_CACHED) totals.delete(totals.keys().next().value as string)
       totals.set(cacheKey, { total, at: Date.now(), version: writeVersion })
     }
   }
@@ -172,6 +175,7 @@ export function cached<T>(key: string, ttlMs: number, compute: () => T): T {
   const hit = cache.get(key)
   if (hit && hit.version === writeVersion && Date.now() - hit.at < ttlMs) return hit.value as T
   const value = compute()
+  if (cache.size >= MAX_CACHED) cache.delete(cache.keys().next().value as string)
   cache.set(key, { value, at: Date.now(), version: writeVersion })
   return value
 }

@@ -1,6 +1,6 @@
 import { randomBytes } from 'node:crypto'
 import { createSessionStorage } from 'react-router'
-import { getDb } from './db'
+import { getDb, type Db } from './db'
 import { env, secureCookies, sessionSecret } from './env'
 
 interface SessionData {
@@ -56,9 +56,9 @@ export const sessionStorage = createSessionStorage<SessionData>({
   },
 })
 
-/** Revokes every live session of a user (deactivation, role change). */
-export function revokeSessionsOf(userId: number) {
-  getDb()
-    .$client.prepare("update sessions set revoked_at = strftime('%Y-%m-%dT%H:%M:%fZ','now') where user_id = ? and revoked_at is null")
+/** Revokes every live session of a user (deactivation, role change), inside the caller's transaction. */
+export function revokeSessionsOf(db: Db, userId: number) {
+  db.$client
+    .prepare("update sessions set revoked_at = strftime('%Y-%m-%dT%H:%M:%fZ','now') where user_id = ? and revoked_at is null")
     .run(userId)
 }

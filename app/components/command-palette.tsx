@@ -1,4 +1,4 @@
-import { createContext, useContext, useEffect, useMemo, useState } from 'react'
+import { createContext, useContext, useEffect, useMemo, useRef, useState } from 'react'
 import { useNavigate } from 'react-router'
 import useSWR from 'swr'
 import type { Section } from '~/utils/sections'
@@ -24,9 +24,13 @@ export function PaletteActionsProvider({ children }: { children: React.ReactNode
 
 export function usePaletteActions(actions: PaletteAction[]) {
   const ctx = useContext(ActionsContext)
+  // Entries are republished only when their labels change, so each one runs the newest action of
+  // its id: the selection or technician chosen since then, not the one seen at publish time.
+  const latest = useRef(actions)
+  latest.current = actions
   const key = actions.map((a) => a.id + a.label).join('|')
   useEffect(() => {
-    ctx?.setActions(actions)
+    ctx?.setActions(actions.map((a) => ({ ...a, run: () => latest.current.find((x) => x.id === a.id)?.run() })))
     return () => ctx?.setActions([])
     // eslint-disable-next-line react-hooks/exhaustive-deps
   }, [key])

@@ -67,7 +67,7 @@ export function DataTable<Row extends { id: number }>(p: DataTableProps<Row>) {
   const navigate = useNavigate()
   const scrollRef = useRef<HTMLDivElement>(null)
   const pages = useRef(new Map<string, Page<Row>>())
-  const [, setVersion] = useState(0)
+  const [version, setVersion] = useState(0)
   const [total, setTotal] = useState<{ n: number; exact: boolean } | null>(null)
   const [error, setError] = useState<string | null>(null)
   const [cursor, setCursor] = useState(0)
@@ -159,7 +159,7 @@ export function DataTable<Row extends { id: number }>(p: DataTableProps<Row>) {
     }
     return out
     // eslint-disable-next-line react-hooks/exhaustive-deps
-  }, [first, last, count, pages.current.size, shownQuery, stale])
+  }, [first, last, count, version, shownQuery, stale])
 
   const table = useReactTable({
     data: visibleRows,
@@ -205,14 +205,14 @@ export function DataTable<Row extends { id: number }>(p: DataTableProps<Row>) {
   useShortcut('row-down', () => moveTo(cursor + 1), count > 0)
   useShortcut('row-up', () => moveTo(cursor - 1), count > 0)
   useShortcut('toggle-select', () => toggle(cursor), count > 0)
-  useShortcut('extend-down', () => {
-    toggle(cursor, true)
-    toggle(moveTo(cursor + 1), true)
-  }, count > 0)
-  useShortcut('extend-up', () => {
-    toggle(cursor, true)
-    toggle(moveTo(cursor - 1), true)
-  }, count > 0)
+  // Both rows join the selection in one update: two updates from the same snapshot would drop one.
+  const extend = (step: 1 | -1) => {
+    const from = rowAt(cursor)
+    const to = rowAt(moveTo(cursor + step))
+    setSelection({ ...selection, ...(from && { [from.id]: true }), ...(to && { [to.id]: true }) })
+  }
+  useShortcut('extend-down', () => extend(1), count > 0)
+  useShortcut('extend-up', () => extend(-1), count > 0)
   useShortcut('open', () => {
     const row = rowAt(cursor)
     if (row && p.rowHref) navigate(p.rowHref(row))

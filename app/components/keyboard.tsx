@@ -9,8 +9,12 @@ interface Registry {
 
 const KeyboardContext = createContext<Registry | null>(null)
 
+// Only places that take typed text count as fields; a focused checkbox or button does not.
 const editable = (t: EventTarget | null) =>
-  t instanceof HTMLElement && (t.isContentEditable || ['INPUT', 'TEXTAREA', 'SELECT'].includes(t.tagName))
+  t instanceof HTMLElement &&
+  (t.isContentEditable || t.matches('input:not([type=checkbox],[type=radio],[type=button],[type=submit],[type=reset]), textarea, select'))
+// Enter on a focused control is that control's own (a button presses, a link follows).
+const activates = (t: EventTarget | null) => t instanceof HTMLElement && t.closest('button, a[href], summary, [role=button], input') !== null
 
 // Sequences (g then a letter) wait this long for their second key.
 const SEQUENCE_MS = 1200
@@ -37,6 +41,7 @@ export function KeyboardProvider({ children }: { children: React.ReactNode }) {
       const inField = editable(e.target)
       // While typing, only the palette chord and Escape act; everything else is text.
       if (inField && chord !== 'mod+k' && chord !== 'Escape') return
+      if (chord === 'Enter' && activates(e.target)) return
       let typed = chord
       if (pending.current && Date.now() - pending.current.at < SEQUENCE_MS) {
         typed = `${pending.current.first} ${chord}`

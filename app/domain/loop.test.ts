@@ -87,6 +87,11 @@ describe('diagnosis', () => {
     expect(d.findings).toEqual([expect.objectContaining({ code: 'unexplained', state: 'alarm' })])
   })
 
+  it('names no wiring fault the readings do not show when only the record is wrong', () => {
+    const d = diagnose({ ...base, alarmTerminal: 'NC' }, { alarm: 5, trouble: 'open' })
+    expect(d.findings.map((f) => f.code)).toEqual(['alarm-on-nc'])
+  })
+
   it('defers to the fire alarm contractor in every finding', () => {
     const d = diagnose({ ...base, alarmTerminal: 'NC', eolPlacement: 'across-pair' }, { normal: 3, alarm: 'open' })
     for (const f of d.findings) expect(f.message).toMatch(/fire alarm contractor/)

@@ -208,7 +208,7 @@ function arrangementFindings(a: Arrangement, line: number): Finding[] {
   const findings: Finding[] = []
   const model = defaultContactModel(a.supervisoryLabelledIn ?? 'de-energized')
   if (a.alarmTerminal === 'NC') {
-    findings.push({ code: 'alarm-on-nc', state: null, message: `Recorded with the alarm contact on NC: the panel would see a short at rest and an open (trouble, not alarm) when the detector trips. It should use NO. ${DEFER}` })
+    findings.push({ code: 'alarm-on-nc', state: null, message: `Recorded with the alarm contact on NC: the panel would see a short at rest, and only the resistor (normal) when the detector trips, so a real alarm never reaches it. It should use NO. ${DEFER}` })
   }
   if (a.eolPlacement === 'across-pair') {
     findings.push({ code: 'not-supervised', state: null, message: `Recorded with the resistor straight across the pair: trouble and loss of power at the detector would not reach the panel. The resistor belongs in series through the supervisory contact. ${DEFER}` })
@@ -238,9 +238,10 @@ export function diagnose(a: Arrangement, readings: Readings): Diagnosis {
   const offRecord = taken.filter((s) => !asRecordedSignature(s, a, line).includes(measured[s] as Klass))
 
   if (offRecord.length > 0) {
-    const explained = CANDIDATES.filter(
-      (c) => fits(c.signature) && (c.code !== 'line-resistance-high' || consistentExtra(a, readings, line)),
-    )
+    const explained = CANDIDATES.filter((c) => fits(c.signature) && (c.code !== 'line-resistance-high' || consistentExtra(a, readings, line)))
+    // Readings that fit a correct loop name no wiring fault of their own; the record's faults are
+    // already flagged above, and a state not measured leaves the verdict incomplete.
+    const fitsCorrect = explained.some((c) => c.code === null)
     if (explained.length === 0) {
       for (const s of offRecord) {
         const e = expected[s]
@@ -252,7 +253,7 @@ export function diagnose(a: Arrangement, readings: Readings): Diagnosis {
         })
       }
     }
-    for (const c of explained) {
+    for (const c of fitsCorrect ? [] : explained) {
       if (c.code === null || findings.some((f) => f.code === c.code)) continue
       findings.push({ code: c.code, state: offRecord[0], message: c.message(a, readings, line) })
     }

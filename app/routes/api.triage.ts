@@ -19,7 +19,11 @@ export async function loader({ request }: Route.LoaderArgs) {
   return Response.json({ ...triageList(db, query, officeToday()), counts: reasonCounts(db) })
 }
 
-const ids = z.array(z.coerce.number().int().positive()).min(1, 'Select at least one detector').max(500, 'At most 500 at a time')
+const ids = z
+  .array(z.coerce.number().int().positive())
+  .min(1, 'Select at least one detector')
+  .max(500, 'At most 500 at a time')
+  .transform((list) => [...new Set(list)])
 const body = z.discriminatedUnion('intent', [
   z.object({ intent: z.literal('acknowledge'), ids, note: z.string().trim().max(500).optional() }),
   z.object({ intent: z.literal('assign'), ids, technicianId: z.coerce.number().int().positive() }),
@@ -32,9 +36,14 @@ const body = z.discriminatedUnion('intent', [
   }),
 ])
 
+/** A form post carries one `ids` field per detector. */
+function formBody(form: FormData) {
+  return { ...Object.fromEntries(form), ids: form.getAll('ids') }
+}
+
 export async function action({ request }: Route.ActionArgs) {
   const user = await requireUser(request, 'schedule:visits')
-  const raw = request.headers.get('Content-Type')?.includes('json') ? await request.json().catch(() => null) : Object.fromEntries(await request.formData())
+  const raw = request.headers.get('Content-Type')?.includes('json') ? await request.json().catch(() => null) : formBody(await request.formData())
   const parsed = body.safeParse(raw)
   if (!parsed.success) {
     return Response.json({ error: 'Invalid request', issues: parsed.error.issues.map((i) => ({ path: i.path.join('.'), message: i.message })) }, { status: 400 })

@@ -38,14 +38,16 @@ export async function action({ request }: Route.ActionArgs) {
   const input = parsed.data
   if (input.intent === 'save') {
     const id = q.transaction(() => {
-      const { lastInsertRowid } = q
+      const before = q.prepare('select query from saved_views where user_id = ? and page = ? and name = ?').get(user.id, input.page, input.name)
+      // `returning` gives the row's own id on both paths; lastInsertRowid would not on an update.
+      const row = q
         .prepare(
           `insert into saved_views (user_id, page, name, query) values (?, ?, ?, ?)
-           on conflict (user_id, page, name) do update set query = excluded.query`,
+           on conflict (user_id, page, name) do update set query = excluded.query returning id`,
         )
-        .run(user.id, input.page, input.name, input.query)
-      writeAudit(db, { actorId: user.id, action: 'view.save', entity: 'saved_view', entityId: Number(lastInsertRowid), after: input })
-      return Number(lastInsertRowid)
+        .get(user.id, input.page, input.name, input.query) as { id: number }
+      writeAudit(db, { actorId: user.id, action: 'view.save', entity: 'saved_view', entityId: row.id, before, after: input })
+      return row.id
     })()
     return Response.json({ ok: true, id })
   }

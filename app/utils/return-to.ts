@@ -9,7 +9,10 @@ export function safeReturnTo(value: string | null | undefined, fallback = '/'): 
     const url = new URL(value, base)
     if (url.origin !== base) return fallback
     if (url.pathname.startsWith('/auth/') || url.pathname === '/sign-in') return fallback
-    return url.pathname + url.search + url.hash
+    // Check what comes out, not what went in: dot segments can collapse "/.//x" into "//x".
+    const out = url.pathname + url.search + url.hash
+    if (out.startsWith('//') || out.includes('\\')) return fallback
+    return out
   } catch {
     return fallback
   }

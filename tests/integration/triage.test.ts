@@ -83,6 +83,8 @@ describe('triage queue', () => {
     expect(q().prepare(`select count(*) as n from detectors where assigned_to = ? and id in (${ids.join(',')})`).get(tech)).toEqual({ n: 2 })
     expect((await post({ intent: 'assign', ids, technicianId: userIdByEmail(data.db, 'manager@ductkeeper.test') })).status).toBe(409)
     expect((await post({ intent: 'assign', ids: [], technicianId: tech })).status).toBe(400)
+    // The same detector twice is one detector, not a refusal.
+    expect((await post({ intent: 'assign', ids: [ids[0], ids[0]], technicianId: tech })).status).toBe(200)
     expect((await post({ intent: 'explode', ids })).status).toBe(400)
     expect((await fetch(`${server.url}/api/triage?reason=bogus`, { headers: { Cookie: cookie.lead } })).status).toBe(400)
   })

@@ -55,7 +55,7 @@ export function changeRole(db: Db, actorId: number, userId: number, role: Role) 
     }
     db.$client.prepare('update users set role = ? where id = ?').run(role, userId)
     writeAudit(db, { actorId, action: 'user.change-role', entity: 'user', entityId: userId, before: { role: before.role }, after: { role } })
-    revokeSessionsOf(userId)
+    revokeSessionsOf(db, userId)
   })()
 }
 
@@ -69,7 +69,7 @@ export function setActive(db: Db, actorId: number, userId: number, active: boole
     }
     db.$client.prepare('update users set active = ? where id = ?').run(active ? 1 : 0, userId)
     if (!active) {
-      revokeSessionsOf(userId)
+      revokeSessionsOf(db, userId)
       db.$client.prepare("update api_tokens set revoked_at = strftime('%Y-%m-%dT%H:%M:%fZ','now') where user_id = ? and revoked_at is null").run(userId)
     }
     writeAudit(db, { actorId, action: active ? 'user.reactivate' : 'user.deactivate', entity: 'user', entityId: userId, before: { active: Boolean(before.active) }, after: { active } })
