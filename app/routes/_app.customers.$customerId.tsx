@@ -10,6 +10,7 @@ import { daysBetween } from '~/domain/dates'
 import type { RouteAccess } from '~/domain/permissions'
 import { formatCount, formatDay, percent } from '~/utils/format'
 import type { Route } from './+types/_app.customers.$customerId'
+import { Figure } from '~/components/ui/facts'
 
 export const handle = { access: { loader: 'view:fleet' } satisfies RouteAccess }
 
@@ -233,16 +234,6 @@ export default function Customer({ loaderData }: Route.ComponentProps) {
           </p>
         )}
       </section>
-    </div>
-  )
-}
-
-function Figure({ label, value, note, tone }: { label: string; value: number; note?: string; tone?: string }) {
-  return (
-    <div className="rounded-md border border-line bg-panel px-3 py-2 sm:px-4 sm:py-3">
-      <div className="text-xs font-medium text-ink-faint uppercase">{label}</div>
-      <div className={`mt-1 font-mono text-xl sm:text-2xl font-semibold tabular-nums ${value > 0 && tone ? tone : ''}`}>{formatCount(value)}</div>
-      {note && <div className="text-xs text-ink-faint">{note}</div>}
     </div>
   )
 }

@@ -14,6 +14,7 @@ import type { RouteAccess } from '~/domain/permissions'
 import { TASK_LABELS } from '~/domain/schedule'
 import { formatCount, formatDay } from '~/utils/format'
 import type { Route } from './+types/_app.devices.$deviceId'
+import { Fact } from '~/components/ui/facts'
 
 export const handle = { access: { loader: 'view:fleet' } satisfies RouteAccess }
 
@@ -325,14 +326,5 @@ export default function Device({ loaderData }: Route.ComponentProps) {
         <EventTimeline events={r.events} timeZone={d.timeZone} />
       </section>
     </div>
-  )
-}
-
-function Fact({ label, children }: { label: string; children: React.ReactNode }) {
-  return (
-    <>
-      <dt className="text-ink-faint">{label}</dt>
-      <dd>{children}</dd>
-    </>
   )
 }

@@ -8,6 +8,7 @@ import { StateBadge } from '~/components/state-badge'
 import type { RouteAccess } from '~/domain/permissions'
 import { formatCount, formatDay, percent } from '~/utils/format'
 import type { Route } from './+types/_app.overview'
+import { Figure } from '~/components/ui/facts'
 
 export const meta: Route.MetaFunction = () => [{ title: 'Overview · Ductkeeper' }]
 
@@ -169,15 +170,6 @@ export default function Overview({ loaderData }: Route.ComponentProps) {
   )
 }
 
-function Figure({ label, value, note, tone }: { label: string; value: number; note?: string; tone?: string }) {
-  return (
-    <div className="rounded-md border border-line bg-panel px-4 py-3">
-      <div className="text-xs font-medium text-ink-faint uppercase">{label}</div>
-      <div className={`mt-1 font-mono text-2xl font-semibold tabular-nums ${tone ?? ''}`}>{formatCount(value)}</div>
-      {note && <div className="text-xs text-ink-faint">{note}</div>}
-    </div>
-  )
-}
 
 function Row({ label, value }: { label: React.ReactNode; value: number }) {
   return (

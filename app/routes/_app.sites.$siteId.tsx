@@ -20,6 +20,7 @@ import { StateBadge } from '~/components/state-badge'
 import type { RouteAccess } from '~/domain/permissions'
 import { formatCount, formatDay } from '~/utils/format'
 import type { Route } from './+types/_app.sites.$siteId'
+import { Fact } from '~/components/ui/facts'
 
 export const handle = { access: { loader: 'view:fleet' } satisfies RouteAccess }
 
@@ -445,14 +446,5 @@ function SectionHead({ id, title, shown, total }: { id: string; title: string; s
         {total > shown ? `Showing ${formatCount(shown)} of ${formatCount(total)}` : formatCount(total)}
       </span>
     </div>
-  )
-}
-
-function Fact({ label, children }: { label: string; children: React.ReactNode }) {
-  return (
-    <>
-      <dt className="text-ink-faint">{label}</dt>
-      <dd className="min-w-0">{children}</dd>
-    </>
   )
 }

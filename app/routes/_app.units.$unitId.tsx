@@ -13,6 +13,7 @@ import { CONTROL_VOLTS, currentFor, powerBudget, voltageDrop } from '~/domain/po
 import { detectorRequirements } from '~/domain/requirements'
 import { formatCount } from '~/utils/format'
 import type { Route } from './+types/_app.units.$unitId'
+import { Fact } from '~/components/ui/facts'
 
 export const handle = { access: { loader: 'view:fleet' } satisfies RouteAccess }
 
@@ -362,14 +363,5 @@ export default function Unit({ loaderData }: Route.ComponentProps) {
         </section>
       </div>
     </div>
-  )
-}
-
-function Fact({ label, children }: { label: string; children: React.ReactNode }) {
-  return (
-    <>
-      <dt className="text-ink-faint">{label}</dt>
-      <dd className="min-w-0">{children}</dd>
-    </>
   )
 }
