@@ -1,28 +1,14 @@
 import type { Browser, Page } from 'playwright-core'
-import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { launchBrowser } from '#tests/setup/browser'
-import { startServer } from '#tests/setup/server'
+import { describe, expect, it } from 'vitest'
+import { useSeededServer } from '#tests/setup/fixture'
 import { sessionCookieFor, userIdByEmail } from '#tests/setup/sessions'
-import { seededDb } from '#tests/setup/temp-db'
 
 describe('a keyboard-only session in Chromium', () => {
-  let server: Awaited<ReturnType<typeof startServer>>
-  let data: ReturnType<typeof seededDb>
-  let browser: Browser
-  beforeAll(async () => {
-    data = seededDb('small')
-    server = await startServer(data.path)
-    browser = await launchBrowser()
-  })
-  afterAll(async () => {
-    await browser?.close()
-    await server?.stop()
-    data?.cleanup()
-  })
+  const t = useSeededServer('small', { browser: true })
 
   async function signedInPage(): Promise<Page> {
-    const { cookie } = await sessionCookieFor(data.db, userIdByEmail(data.db, 'lead@ductkeeper.test'))
-    const context = await browser.newContext()
+    const { cookie } = await sessionCookieFor(t.data.db, userIdByEmail(t.data.db, 'lead@ductkeeper.test'))
+    const context = await t.browser.newContext()
     const [name, ...value] = cookie.split('=')
     await context.addCookies([{ name, value: value.join('='), domain: '127.0.0.1', path: '/' }])
     const page = await context.newPage()
@@ -37,11 +23,11 @@ describe('a keyboard-only session in Chromium', () => {
   }
 
   it('palette → site by address → detector → back → overdue filter → select three → help', async () => {
-    const site = data.db.$client.prepare("select s.id, s.name, s.street from sites s where exists (select 1 from detectors d where d.site_id = s.id) order by s.id limit 1").get() as { id: number; name: string; street: string }
-    const detector = data.db.$client.prepare('select id, tag from detectors where site_id = ? order by id limit 1').get(site.id) as { id: number; tag: string }
+    const site = t.data.db.$client.prepare("select s.id, s.name, s.street from sites s where exists (select 1 from detectors d where d.site_id = s.id) order by s.id limit 1").get() as { id: number; name: string; street: string }
+    const detector = t.data.db.$client.prepare('select id, tag from detectors where site_id = ? order by id limit 1').get(site.id) as { id: number; tag: string }
     const streetWord = site.street.split(' ')[1] // "4897 Birchmont Drive" → "Birchmont"
     const page = await signedInPage()
-    await page.goto(`${server.url}/triage`, { waitUntil: 'networkidle' })
+    await page.goto(`${t.server.url}/triage`, { waitUntil: 'networkidle' })
 
     const palette = page.getByRole('dialog', { name: 'Command palette' })
     // Typing starts once the palette's input has focus, as a person would see the caret first.
@@ -64,25 +50,25 @@ describe('a keyboard-only session in Chromium', () => {
     await page.keyboard.type(`${streetWord} ${site.name.split(' ')[0]}`)
     await palette.getByRole('option', { name: new RegExp(site.name.replace(/[.*+?^${}()|[\]\\]/g, '\\$&')) }).first().waitFor()
     await choose(`/sites/${site.id}`)
-    await page.waitForURL(`${server.url}/sites/${site.id}`)
+    await page.waitForURL(`${t.server.url}/sites/${site.id}`)
     await page.getByRole('heading', { level: 1 }).waitFor()
 
     await openPalette()
     await page.keyboard.type(`${detector.tag} ${streetWord}`)
     await palette.locator(`[cmdk-item][data-value="/devices/${detector.id}"]`).waitFor()
     await choose(`/devices/${detector.id}`)
-    await page.waitForURL(`${server.url}/devices/${detector.id}`)
+    await page.waitForURL(`${t.server.url}/devices/${detector.id}`)
     await page.getByRole('heading', { level: 1, name: detector.tag }).waitFor()
 
     // The browser's own Back (Alt+Left) is browser chrome, which a headless page never receives:
     // ask the browser for the same history step.
     await page.goBack()
-    await page.waitForURL(`${server.url}/sites/${site.id}`)
+    await page.waitForURL(`${t.server.url}/sites/${site.id}`)
 
     // g then d: the detectors list; / to the filter; Tab to the "Due" filter; choose Overdue.
     await page.keyboard.press('g')
     await page.keyboard.press('d')
-    await page.waitForURL(`${server.url}/devices`)
+    await page.waitForURL(`${t.server.url}/devices`)
     await page.getByRole('searchbox').waitFor()
     await page.keyboard.press('/')
     await expect(page.evaluate(() => document.activeElement?.getAttribute('type'))).resolves.toBe('search')
@@ -92,7 +78,7 @@ describe('a keyboard-only session in Chromium', () => {
     await page.keyboard.press('ArrowDown')
     await page.waitForURL(/due=overdue/)
     await page.keyboard.press('Escape')
-    const overdue = (data.db.$client.prepare("select count(*) as n from detectors where due_status = 'overdue'").get() as { n: number }).n
+    const overdue = (t.data.db.$client.prepare("select count(*) as n from detectors where due_status = 'overdue'").get() as { n: number }).n
     await page.getByRole('status').filter({ hasText: `${overdue} detectors` }).waitFor()
 
     await page.keyboard.press('x')
@@ -116,7 +102,7 @@ describe('a keyboard-only session in Chromium', () => {
 
   it('never fires a shortcut while typing in a field', async () => {
     const page = await signedInPage()
-    await page.goto(`${server.url}/devices`, { waitUntil: 'networkidle' })
+    await page.goto(`${t.server.url}/devices`, { waitUntil: 'networkidle' })
     await page.keyboard.press('/')
     await page.keyboard.type('gx?j')
     await expect(page.evaluate(() => (document.activeElement as HTMLInputElement).value)).resolves.toBe('gx?j')

@@ -1,37 +1,22 @@
-import type { Browser } from 'playwright-core'
-import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { launchBrowser } from '#tests/setup/browser'
-import { startServer } from '#tests/setup/server'
+import { describe, expect, it } from 'vitest'
+import { useSeededServer } from '#tests/setup/fixture'
 import { signInAs } from '#tests/setup/sign-in-browser'
-import { seededDb } from '#tests/setup/temp-db'
 
 describe('app shell in Chromium', () => {
-  let server: Awaited<ReturnType<typeof startServer>>
-  let data: ReturnType<typeof seededDb>
-  let browser: Browser
-  beforeAll(async () => {
-    data = seededDb('small')
-    server = await startServer(data.path)
-    browser = await launchBrowser()
-  })
-  afterAll(async () => {
-    await browser?.close()
-    await server?.stop()
-    data?.cleanup()
-  })
+  const t = useSeededServer('small', { browser: true })
 
   it('renders the overview with real figures in the shipped fonts', async () => {
-    const page = await browser.newPage()
+    const page = await t.browser.newPage()
     const fontRequests: string[] = []
     page.on('request', (r) => r.url().match(/\.woff2?$/) && fontRequests.push(r.url()))
-    await signInAs(page, server.url, 'lead@ductkeeper.test')
+    await signInAs(page, t.server.url, 'lead@ductkeeper.test')
     const errors: string[] = []
     page.on('console', (m) => m.type() === 'error' && errors.push(m.text()))
-    await page.goto(`${server.url}/overview`, { waitUntil: 'networkidle' })
+    await page.goto(`${t.server.url}/overview`, { waitUntil: 'networkidle' })
 
     await expect(page.getByRole('heading', { name: 'Overview', level: 1 }).isVisible()).resolves.toBe(true)
     await expect(page.getByRole('navigation', { name: 'Sections' }).isVisible()).resolves.toBe(true)
-    const detectors = data.db.$client.prepare('select count(*) as n from detectors').get() as { n: number }
+    const detectors = t.data.db.$client.prepare('select count(*) as n from detectors').get() as { n: number }
     const figure = page.locator('section[aria-label="Fleet"] div', { hasText: /^Detectors/ }).first()
     await expect(figure.innerText()).resolves.toContain(String(detectors.n))
     await expect(page.getByRole('note', { name: 'Safety caution' }).isVisible()).resolves.toBe(true)
@@ -51,7 +36,7 @@ describe('app shell in Chromium', () => {
     expect(fonts.inter && fonts.mono).toBe(true)
     expect(fontRequests.length).toBeGreaterThan(0)
     // The provider's own page uses system fonts; every font file came from the app's origin.
-    for (const url of fontRequests) expect(url.startsWith(server.url)).toBe(true)
+    for (const url of fontRequests) expect(url.startsWith(t.server.url)).toBe(true)
     expect(errors).toEqual([])
     await page.close()
   })

@@ -2,6 +2,7 @@ import { pathToFileURL } from 'node:url'
 import { resolve } from 'node:path'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { allows, ROLE_KEYS, type Access, type Role, type RouteAccess } from '~/domain/permissions'
+import { DEMO_EMAIL } from '#tests/setup/fixture'
 import { startServer } from '#tests/setup/server'
 import { sessionCookieFor, userIdByEmail } from '#tests/setup/sessions'
 import { seededDb } from '#tests/setup/temp-db'
@@ -12,14 +13,6 @@ interface BuiltRoute {
   path?: string
   index?: boolean
   module: { default?: unknown; loader?: unknown; action?: unknown; handle?: { access?: RouteAccess; sampleQuery?: string; redirects?: boolean } }
-}
-
-const EMAIL: Record<Role, string> = {
-  admin: 'admin@ductkeeper.test',
-  lead: 'lead@ductkeeper.test',
-  office: 'office@ductkeeper.test',
-  technician: 'tech@ductkeeper.test',
-  manager: 'manager@ductkeeper.test',
 }
 
 // Every route comes from the production build, which is made from app/routes.ts: a new route
@@ -63,7 +56,7 @@ describe('route × role matrix', () => {
   async function check(route: BuiltRoute, method: 'GET' | 'POST', access: Access, role: Role | null) {
     const path = fullPath(route)
     // A fresh session per request: probing POST /sign-out revokes the one it was sent with.
-    const cookie = role ? (await sessionCookieFor(data.db, userIdByEmail(data.db, EMAIL[role]))).cookie : ''
+    const cookie = role ? (await sessionCookieFor(data.db, userIdByEmail(data.db, DEMO_EMAIL[role]))).cookie : ''
     const isApi = path.startsWith('/api/')
     const res = await fetch(server.url + path, {
       method,
@@ -118,7 +111,7 @@ describe('route × role matrix', () => {
         const res = await fetch(server.url + fullPath(route), {
           method: 'POST',
           redirect: 'manual',
-          headers: { ...headers, Cookie: (await sessionCookieFor(data.db, userIdByEmail(data.db, EMAIL.admin))).cookie, 'Content-Type': 'application/x-www-form-urlencoded' },
+          headers: { ...headers, Cookie: (await sessionCookieFor(data.db, userIdByEmail(data.db, DEMO_EMAIL.admin))).cookie, 'Content-Type': 'application/x-www-form-urlencoded' },
           body: 'intent=matrix-probe',
         })
         // With a foreign Origin header React Router itself refuses first (400); with none, Ductkeeper does (403).
