@@ -1,8 +1,7 @@
-import { daysBetween } from '~/domain/dates'
 import { auditDelay } from '~/domain/delay-audit'
 import { summarizeDue } from '~/domain/schedule'
-import { triage } from '~/domain/triage'
 import type { Db } from './db'
+import { derivedFields } from './derived'
 import { listsChanged } from './list-query'
 import { officeToday } from './today'
 
@@ -55,13 +54,14 @@ export function refreshDerived(db: Db, today: string): { checked: number; change
     for (const r of rows) {
       const due = summarizeDue(r, today)
       const delay = auditDelay({ delaySeconds: r.delaySeconds, policySeconds: r.policySeconds }).agreement
-      const { score } = triage({
+      const { riskScore: score } = derivedFields({
         state: r.state,
         dueStatus: due.dueStatus,
-        daysOverdue: Math.max(0, daysBetween(due.nextDueOn, today)),
+        nextDueOn: due.nextDueOn,
+        today,
         lastResult: r.lastResult,
         diagnosisFailed: r.loopVerdict === 'fail',
-        troubles30d: r.troubles30d,
+        troubles30: r.troubles30d,
         environment: r.environment,
         housing: r.housing,
         delayAgreement: delay,

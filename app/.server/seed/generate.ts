@@ -17,7 +17,7 @@ import {
   TECH_NOTES,
 } from './names'
 import { withBulkLoad } from './bulk'
-import { derivedFields } from './derive'
+import { derivedFields } from '../derived'
 import type { Awg } from '~/domain/conductors'
 import { correctTerminals, diagnose, expectedReadings, type Arrangement, type Reading, type Readings } from '~/domain/loop'
 

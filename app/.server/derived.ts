@@ -3,7 +3,7 @@ import type { DelayAgreement } from '~/domain/delay-audit'
 import type { DueStatus, Environment } from '~/domain/schedule'
 import { triage, type TriageInput } from '~/domain/triage'
 
-/** The stored risk score, from the same engine the console explains it with. */
+/** The stored risk score, from the same engine the console explains it with (seed and daily refresh). */
 export function derivedFields(o: {
   state: TriageInput['state']
   dueStatus: DueStatus
