@@ -1,5 +1,32 @@
 import { sql } from 'drizzle-orm'
 import { index, integer, primaryKey, real, sqliteTable, text, uniqueIndex } from 'drizzle-orm/sqlite-core'
+import { ROLE_KEYS } from '~/domain/permissions'
+import {
+  CODE_BASES,
+  CUSTOMER_KINDS,
+  DELAY_AGREEMENTS,
+  DETECTOR_STATES,
+  DUCT_SHAPES,
+  DUE_STATUSES,
+  ENVIRONMENTS,
+  EOL_PLACEMENTS,
+  EVENT_KINDS,
+  HOUSINGS,
+  LABELLINGS,
+  LOOP_VERDICTS,
+  NOTIFY_METHODS,
+  OUTCOMES,
+  POSITIONS,
+  READING_KINDS,
+  SHUTDOWN_INPUTS,
+  TASKS,
+  TERMINALS,
+  TEST_STATIONS,
+  UNIT_KINDS,
+  VISIT_KINDS,
+  VISIT_RESULTS,
+  VISIT_STATUSES,
+} from '~/domain/vocabulary'
 
 // Dates of work (tests, visits) are calendar days as 'YYYY-MM-DD' text in the site's own time zone;
 // instants (events, sessions, audit) are ISO-8601 UTC text. Both sort correctly as text.
@@ -15,7 +42,7 @@ export const monitoringCompanies = sqliteTable('monitoring_companies', {
   phone: text('phone').notNull(),
   email: text('email'),
   // How the central station wants to hear about work before it starts.
-  notifyMethod: text('notify_method', { enum: ['phone', 'email', 'portal'] }).notNull(),
+  notifyMethod: text('notify_method', { enum: NOTIFY_METHODS }).notNull(),
   notifyLeadMinutes: integer('notify_lead_minutes').notNull().default(15),
   hours: text('hours').notNull().default('24/7'),
   notes: text('notes'),
@@ -27,7 +54,7 @@ export const customers = sqliteTable(
   {
     id: id(),
     name: text('name').notNull(),
-    kind: text('kind', { enum: ['restaurant', 'retail', 'office', 'school', 'healthcare'] }).notNull(),
+    kind: text('kind', { enum: CUSTOMER_KINDS }).notNull(),
     contactName: text('contact_name'),
     contactEmail: text('contact_email'),
     contactPhone: text('contact_phone'),
@@ -53,7 +80,7 @@ export const sites = sqliteTable(
     jurisdiction: text('jurisdiction').notNull(),
     ahjName: text('ahj_name').notNull(),
     ahjContact: text('ahj_contact'),
-    codeBasis: text('code_basis', { enum: ['nfpa90a', 'imc'] }).notNull(),
+    codeBasis: text('code_basis', { enum: CODE_BASES }).notNull(),
     monitoringCompanyId: integer('monitoring_company_id').references(() => monitoringCompanies.id),
     monitoringAccount: text('monitoring_account'),
     // The reporting delay agreed with the monitoring company, in seconds (0 = report at once).
@@ -76,12 +103,12 @@ export const units = sqliteTable(
       .notNull()
       .references(() => sites.id),
     tag: text('tag').notNull(),
-    kind: text('kind', { enum: ['rtu', 'ahu', 'mau', 'erv', 'fcu'] }).notNull(),
+    kind: text('kind', { enum: UNIT_KINDS }).notNull(),
     location: text('location'),
-    shutdownInput: text('shutdown_input', { enum: ['break-to-stop', 'make-to-stop'] }).notNull(),
+    shutdownInput: text('shutdown_input', { enum: SHUTDOWN_INPUTS }).notNull(),
     supplyCfm: integer('supply_cfm').notNull(),
     returnCfm: integer('return_cfm').notNull(),
-    ductShape: text('duct_shape', { enum: ['rectangular', 'round'] }).notNull(),
+    ductShape: text('duct_shape', { enum: DUCT_SHAPES }).notNull(),
     ductWidthIn: real('duct_width_in'),
     ductHeightIn: real('duct_height_in'),
     ductDiameterIn: real('duct_diameter_in'),
@@ -99,7 +126,7 @@ export const units = sqliteTable(
 export const detectorModels = sqliteTable('detector_models', {
   id: id(),
   name: text('name').notNull().unique(),
-  supervisoryLabelledIn: text('supervisory_labelled_in', { enum: ['de-energized', 'normal'] })
+  supervisoryLabelledIn: text('supervisory_labelled_in', { enum: LABELLINGS })
     .notNull()
     .default('de-energized'),
   auxContacts: integer('aux_contacts').notNull().default(2),
@@ -110,10 +137,6 @@ export const detectorModels = sqliteTable('detector_models', {
   pressureMinInWc: real('pressure_min_in_wc').notNull(),
   pressureMaxInWc: real('pressure_max_in_wc').notNull(),
 })
-
-export const detectorStates = ['normal', 'alarm', 'trouble', 'supervisory', 'out-of-service'] as const
-export const environments = ['clean', 'dusty', 'kitchen', 'humid'] as const
-export const dueStatuses = ['ok', 'due-soon', 'overdue'] as const
 
 export const detectors = sqliteTable(
   'detectors',
@@ -134,28 +157,28 @@ export const detectors = sqliteTable(
       .references(() => detectorModels.id),
     tag: text('tag').notNull(),
     serial: text('serial'),
-    position: text('position', { enum: ['supply', 'return'] }).notNull(),
+    position: text('position', { enum: POSITIONS }).notNull(),
     headsFitted: integer('heads_fitted').notNull().default(1),
-    housing: text('housing', { enum: ['standard', 'nema4', 'nema4x'] }).notNull(),
-    environment: text('environment', { enum: environments }).notNull(),
+    housing: text('housing', { enum: HOUSINGS }).notNull(),
+    environment: text('environment', { enum: ENVIRONMENTS }).notNull(),
     // Set on the module's switches; null when nobody has recorded it.
     delaySeconds: integer('delay_seconds'),
     delayObservedOn: text('delay_observed_on'),
     installedOn: text('installed_on').notNull(),
     eolOhms: integer('eol_ohms').notNull(),
-    eolPlacement: text('eol_placement', { enum: ['through-supervisory', 'across-pair'] }).notNull(),
-    alarmTerminal: text('alarm_terminal', { enum: ['NO', 'NC'] }).notNull(),
-    supervisoryTerminal: text('supervisory_terminal', { enum: ['NO', 'NC'] }).notNull(),
+    eolPlacement: text('eol_placement', { enum: EOL_PLACEMENTS }).notNull(),
+    alarmTerminal: text('alarm_terminal', { enum: TERMINALS }).notNull(),
+    supervisoryTerminal: text('supervisory_terminal', { enum: TERMINALS }).notNull(),
     conductorAwg: integer('conductor_awg').notNull(),
     conductorStranded: integer('conductor_stranded', { mode: 'boolean' }).notNull(),
     runFeet: integer('run_feet').notNull(),
-    testStation: text('test_station', { enum: ['none', 'key', 'magnet'] }).notNull().default('none'),
+    testStation: text('test_station', { enum: TEST_STATIONS }).notNull().default('none'),
     testStationFeet: integer('test_station_feet'),
     velocityMinFpm: integer('velocity_min_fpm').notNull(),
     velocityMaxFpm: integer('velocity_max_fpm').notNull(),
     pressureMinInWc: real('pressure_min_in_wc').notNull(),
     pressureMaxInWc: real('pressure_max_in_wc').notNull(),
-    state: text('state', { enum: detectorStates }).notNull().default('normal'),
+    state: text('state', { enum: DETECTOR_STATES }).notNull().default('normal'),
     lastVisualOn: text('last_visual_on'),
     lastFunctionalOn: text('last_functional_on'),
     lastSensitivityOn: text('last_sensitivity_on'),
@@ -163,16 +186,24 @@ export const detectors = sqliteTable(
     sensitivityStreak: integer('sensitivity_streak').notNull().default(0),
     lastCleanedOn: text('last_cleaned_on'),
     cleaningIntervalDays: integer('cleaning_interval_days'),
-    lastResult: text('last_result', { enum: ['pass', 'fail'] }),
+    lastResult: text('last_result', { enum: OUTCOMES }),
     // Kept in step by the writes (from the trade engine) so the fleet can be filtered and sorted in SQL.
+    nextVisualOn: text('next_visual_on'),
+    nextFunctionalOn: text('next_functional_on'),
+    nextSensitivityOn: text('next_sensitivity_on'),
+    nextCleaningOn: text('next_cleaning_on'),
     nextDueOn: text('next_due_on'),
-    dueStatus: text('due_status', { enum: dueStatuses }).notNull().default('ok'),
-    delayAgreement: text('delay_agreement', { enum: ['agree', 'disagree', 'unknown'] })
+    dueStatus: text('due_status', { enum: DUE_STATUSES }).notNull().default('ok'),
+    delayAgreement: text('delay_agreement', { enum: DELAY_AGREEMENTS })
       .notNull()
       .default('unknown'),
     riskScore: integer('risk_score').notNull().default(0),
+    // The engine's reason codes behind the score, as ',code,code,' so one reason filters with LIKE.
+    riskReasons: text('risk_reasons').notNull().default(''),
     // The last loop diagnosis from the engine, kept so the triage queue can filter on it in SQL.
-    loopVerdict: text('loop_verdict', { enum: ['pass', 'fail', 'incomplete'] }),
+    loopVerdict: text('loop_verdict', { enum: LOOP_VERDICTS }),
+    // The diagnosis's finding codes, comma separated; empty when the loop passed or was not measured.
+    loopFindings: text('loop_findings').notNull().default(''),
     assignedTo: integer('assigned_to').references(() => users.id),
     acknowledgedAt: text('acknowledged_at'),
     acknowledgedBy: integer('acknowledged_by').references(() => users.id),
@@ -204,7 +235,7 @@ export const users = sqliteTable('users', {
   id: id(),
   email: text('email').notNull().unique(),
   name: text('name').notNull(),
-  role: text('role')
+  role: text('role', { enum: ROLE_KEYS })
     .notNull()
     .references(() => roles.key),
   active: integer('active', { mode: 'boolean' }).notNull().default(true),
@@ -224,10 +255,10 @@ export const visits = sqliteTable(
     siteId: integer('site_id')
       .notNull()
       .references(() => sites.id),
-    kind: text('kind', { enum: ['inspection', 'test', 'cleaning', 'repair', 'commissioning'] }).notNull(),
+    kind: text('kind', { enum: VISIT_KINDS }).notNull(),
     scheduledOn: text('scheduled_on').notNull(),
     technicianId: integer('technician_id').references(() => users.id),
-    status: text('status', { enum: ['planned', 'notified', 'in-progress', 'done', 'cancelled'] })
+    status: text('status', { enum: VISIT_STATUSES })
       .notNull()
       .default('planned'),
     notes: text('notes'),
@@ -252,13 +283,41 @@ export const visitDetectors = sqliteTable(
       .notNull()
       .references(() => detectors.id),
     tasks: text('tasks').notNull(), // comma list: visual,functional,sensitivity,cleaning
-    result: text('result', { enum: ['pending', 'pass', 'fail', 'skipped'] })
+    result: text('result', { enum: VISIT_RESULTS })
       .notNull()
       .default('pending'),
     notes: text('notes'),
     completedAt: text('completed_at'),
   },
   (t) => [primaryKey({ columns: [t.visitId, t.detectorId] }), index('visit_detectors_detector_idx').on(t.detectorId)],
+)
+
+// The history of work: one row per task done on a detector at a visit. A detector's last-test and
+// last-cleaning dates, last result and sensitivity streak are read from here (see app/domain/derive.ts).
+export const taskResults = sqliteTable(
+  'task_results',
+  {
+    id: id(),
+    detectorId: integer('detector_id')
+      .notNull()
+      .references(() => detectors.id),
+    visitId: integer('visit_id')
+      .notNull()
+      .references(() => visits.id),
+    task: text('task', { enum: TASKS }).notNull(),
+    doneOn: text('done_on').notNull(),
+    // A cleaning passes when done; a sensitivity test passes when the reading is inside the listed range.
+    outcome: text('outcome', { enum: OUTCOMES }).notNull(),
+    // The sensitivity reading in %/ft obscuration, where the task measured one.
+    value: real('value'),
+    notes: text('notes'),
+    recordedBy: integer('recorded_by').references(() => users.id),
+    recordedAt: createdAt(),
+  },
+  (t) => [
+    index('task_results_detector_idx').on(t.detectorId, t.task, t.doneOn),
+    index('task_results_visit_idx').on(t.visitId),
+  ],
 )
 
 export const readings = sqliteTable(
@@ -272,19 +331,7 @@ export const readings = sqliteTable(
     takenAt: text('taken_at').notNull(),
     // loop-* in ohms (open = over-range), input-* in volts AC, velocity in ft/min,
     // pressure in inches of water column, sensitivity in %/ft obscuration.
-    kind: text('kind', {
-      enum: [
-        'loop-normal',
-        'loop-alarm',
-        'loop-trouble',
-        'loop-unpowered',
-        'input-normal',
-        'input-alarm',
-        'velocity',
-        'pressure',
-        'sensitivity',
-      ],
-    }).notNull(),
+    kind: text('kind', { enum: READING_KINDS }).notNull(),
     value: real('value'),
     open: integer('open', { mode: 'boolean' }).notNull().default(false),
     takenBy: integer('taken_by').references(() => users.id),
@@ -303,7 +350,7 @@ export const notifications = sqliteTable(
     monitoringCompanyId: integer('monitoring_company_id').references(() => monitoringCompanies.id),
     notifiedAt: text('notified_at').notNull(),
     notifiedBy: integer('notified_by').references(() => users.id),
-    method: text('method', { enum: ['phone', 'email', 'portal'] }).notNull(),
+    method: text('method', { enum: NOTIFY_METHODS }).notNull(),
     spokeWith: text('spoke_with').notNull(),
     confirmation: text('confirmation'),
     inTestFrom: text('in_test_from').notNull(),
@@ -314,18 +361,6 @@ export const notifications = sqliteTable(
   (t) => [index('notifications_site_idx').on(t.siteId, t.notifiedAt), index('notifications_visit_idx').on(t.visitId)],
 )
 
-export const eventKinds = [
-  'alarm',
-  'trouble',
-  'supervisory',
-  'restore',
-  'test',
-  'reset',
-  'cleaning',
-  'notice',
-  'change',
-] as const
-
 export const events = sqliteTable(
   'events',
   {
@@ -335,7 +370,7 @@ export const events = sqliteTable(
       .references(() => sites.id),
     detectorId: integer('detector_id').references(() => detectors.id),
     occurredAt: text('occurred_at').notNull(),
-    kind: text('kind', { enum: eventKinds }).notNull(),
+    kind: text('kind', { enum: EVENT_KINDS }).notNull(),
     detail: text('detail'),
     userId: integer('user_id').references(() => users.id),
   },

@@ -1,17 +1,8 @@
 import type { DelayAgreement } from './delay-audit'
 import type { DueStatus, Environment } from './schedule'
+import type { ReasonCode } from './vocabulary'
 
-export type TriageReasonCode =
-  | 'in-trouble'
-  | 'in-alarm'
-  | 'out-of-service'
-  | 'overdue'
-  | 'failed-test'
-  | 'failed-diagnosis'
-  | 'repeated-troubles'
-  | 'humid-unrated'
-  | 'delay-disagrees'
-  | 'delay-unknown'
+export type TriageReasonCode = ReasonCode
 
 export interface TriageInput {
   state: 'normal' | 'alarm' | 'trouble' | 'supervisory' | 'out-of-service'

@@ -1,5 +1,5 @@
 import { z } from 'zod'
-import { detectorStates, dueStatuses, environments } from '../schema'
+import { DETECTOR_STATES, DUE_STATUSES, ENVIRONMENTS, HOUSINGS, DELAY_AGREEMENTS, LOOP_VERDICTS, POSITIONS } from '~/domain/vocabulary'
 import { ftsIds, ftsQuery, idParam, isoDate, multi, pagingSchema, type ListSpec, whereBuilder } from '../list-query'
 
 const SORTS = {
@@ -21,13 +21,13 @@ const SORTS = {
 } as const
 
 export const deviceQuery = pagingSchema(Object.keys(SORTS) as [keyof typeof SORTS, ...Array<keyof typeof SORTS>]).extend({
-  state: multi(detectorStates),
-  due: multi(dueStatuses),
-  environment: multi(environments),
-  housing: multi(['standard', 'nema4', 'nema4x'] as const),
-  delay: multi(['agree', 'disagree', 'unknown'] as const),
-  loop: multi(['pass', 'fail', 'incomplete'] as const),
-  position: multi(['supply', 'return'] as const),
+  state: multi(DETECTOR_STATES),
+  due: multi(DUE_STATUSES),
+  environment: multi(ENVIRONMENTS),
+  housing: multi(HOUSINGS),
+  delay: multi(DELAY_AGREEMENTS),
+  loop: multi(LOOP_VERDICTS),
+  position: multi(POSITIONS),
   customer: idParam.optional(),
   site: idParam.optional(),
   unit: idParam.optional(),

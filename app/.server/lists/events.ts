@@ -1,7 +1,7 @@
 import { z } from 'zod'
 import { addDays } from '~/domain/dates'
 import type { Db } from '../db'
-import { eventKinds } from '../schema'
+import { EVENT_KINDS } from '~/domain/vocabulary'
 import { ftsIds, ftsQuery, idParam, inList, isoDate, multi, pagingSchema, type ListSpec, whereBuilder } from '../list-query'
 
 const SORTS = {
@@ -24,7 +24,7 @@ const bound = z.union([isoDate, z.iso.datetime({ offset: true })], { error: 'Use
 
 export const eventQuery = pagingSchema(Object.keys(SORTS) as [keyof typeof SORTS, ...Array<keyof typeof SORTS>])
   .extend({
-    kind: multi(eventKinds),
+    kind: multi(EVENT_KINDS),
     site: idParam.optional(),
     detector: idParam.optional(),
     customer: idParam.optional(),

@@ -1,36 +1,15 @@
 import { z } from 'zod'
 import { daysBetween } from '~/domain/dates'
-import { triage, type TriageReason, type TriageReasonCode } from '~/domain/triage'
+import { triage, type TriageReason } from '~/domain/triage'
+import { REASON_CODES, type ReasonCode } from '~/domain/vocabulary'
 import type { Db } from '../db'
 import { cached, idParam, multi, pagingSchema, runList, type ListResult, type ListSpec } from '../list-query'
 import { deviceList, deviceQuery, type DeviceListRow } from './devices'
 
-export const REASON_CODES = [
-  'in-trouble',
-  'in-alarm',
-  'out-of-service',
-  'overdue',
-  'failed-test',
-  'failed-diagnosis',
-  'repeated-troubles',
-  'humid-unrated',
-  'delay-disagrees',
-  'delay-unknown',
-] as const satisfies readonly TriageReasonCode[]
+export { REASON_CODES }
 
-// Each reason as SQL over the stored fields, the same conditions the engine scores.
-const REASON_SQL: Record<(typeof REASON_CODES)[number], string> = {
-  'in-trouble': "t.state = 'trouble'",
-  'in-alarm': "t.state in ('alarm', 'supervisory')",
-  'out-of-service': "t.state = 'out-of-service'",
-  overdue: "t.due_status = 'overdue'",
-  'failed-test': "t.last_result = 'fail'",
-  'failed-diagnosis': "t.loop_verdict = 'fail'",
-  'repeated-troubles': 't.troubles_30d >= 2',
-  'humid-unrated': "t.environment = 'humid' and t.housing = 'standard'",
-  'delay-disagrees': "t.delay_agreement = 'disagree'",
-  'delay-unknown': "t.delay_agreement = 'unknown'",
-}
+// Each reason filters on the codes the derivation stored (',a,b,'), never on a restated rule.
+const reasonSql = (code: ReasonCode) => `t.risk_reasons like '%,${code},%'`
 
 export const triageQuery = pagingSchema(Object.keys(deviceList.sorts) as [string, ...string[]]).extend({
   reason: multi(REASON_CODES),
@@ -64,7 +43,7 @@ const spec: ListSpec<TriageQuery> = {
     const params: unknown[] = []
     if (f.acknowledged === 'hide') clauses.push('t.acknowledged_at is null')
     if (f.acknowledged === 'only') clauses.push('t.acknowledged_at is not null')
-    if (f.reason?.length) clauses.push(`(${f.reason.map((r) => REASON_SQL[r]).join(' or ')})`)
+    if (f.reason?.length) clauses.push(`(${f.reason.map(reasonSql).join(' or ')})`)
     if (f.assignedTo) {
       clauses.push('t.assigned_to = ?')
       params.push(f.assignedTo)
@@ -103,7 +82,7 @@ export function triageList(db: Db, query: TriageQuery, today: string): ListResul
 /** How many open (unacknowledged) detectors carry each reason: one pass over the table, kept briefly. */
 export function reasonCounts(db: Db): Record<(typeof REASON_CODES)[number], number> & { open: number } {
   return cached('triage-reason-counts', 15_000, () => {
-    const sums = REASON_CODES.map((c) => `sum(${REASON_SQL[c]}) as "${c}"`).join(', ')
+    const sums = REASON_CODES.map((c) => `sum(${reasonSql(c)}) as "${c}"`).join(', ')
     return db.$client
       .prepare(`select count(*) as open, ${sums} from detectors t where t.risk_score > 0 and t.acknowledged_at is null`)
       .get() as Record<(typeof REASON_CODES)[number], number> & { open: number }

@@ -66,7 +66,8 @@ export function overviewFigures(db: Db, today: IsoDate): OverviewFigures {
     attention: q
       .prepare(
         `select d.id, d.tag, s.name as siteName, d.state, d.due_status as dueStatus, d.risk_score as riskScore
-         from detectors d join sites s on s.id = d.site_id order by d.risk_score desc, d.id limit 8`,
+         from detectors d join sites s on s.id = d.site_id
+         where d.risk_score > 0 and d.acknowledged_at is null order by d.risk_score desc, d.id limit 8`,
       )
       .all() as OverviewFigures['attention'],
     upcomingVisits: q

@@ -1,7 +1,8 @@
 import type Database from 'better-sqlite3'
-import { addDays, addMonths, daysBetween, type IsoDate } from '~/domain/dates'
-import { auditDelay } from '~/domain/delay-audit'
-import { CLEANING_INTERVAL_DAYS, summarizeDue, type Environment } from '~/domain/schedule'
+import { addDays, daysBetween, type IsoDate } from '~/domain/dates'
+import { deriveDetector, workFacts, type TaskResult } from '~/domain/derive'
+import { CLEANING_INTERVAL_DAYS, nextSensitivityDue, type Environment } from '~/domain/schedule'
+import type { Task } from '~/domain/vocabulary'
 import {
   CITIES,
   DEMO_USERS,
@@ -17,16 +18,17 @@ import {
   TECH_NOTES,
 } from './names'
 import { withBulkLoad } from './bulk'
-import { derivedFields } from '../derived'
 import type { Awg } from '~/domain/conductors'
-import { correctTerminals, diagnose, expectedReadings, type Arrangement, type Reading, type Readings } from '~/domain/loop'
+import { correctTerminals, expectedReadings, type Arrangement, type Reading, type Readings } from '~/domain/loop'
 
 export type Scale = 'small' | 'demo' | 'stress'
 
-export const SCALES: Record<Scale, { detectors: number; eventsPerDetector: number; customers: number }> = {
-  small: { detectors: 200, eventsPerDetector: 10, customers: 5 },
-  demo: { detectors: 10_500, eventsPerDetector: 26, customers: 40 },
-  stress: { detectors: 101_000, eventsPerDetector: 21, customers: 320 },
+// historyYears: how long ago the contractor took the program over; its records (visits, results,
+// notices) begin then, and every detector's record is worked out from them.
+export const SCALES: Record<Scale, { detectors: number; eventsPerDetector: number; customers: number; historyYears: number }> = {
+  small: { detectors: 200, eventsPerDetector: 10, customers: 5, historyYears: 5 },
+  demo: { detectors: 10_500, eventsPerDetector: 26, customers: 40, historyYears: 5 },
+  stress: { detectors: 101_000, eventsPerDetector: 21, customers: 320, historyYears: 3 },
 }
 
 /** mulberry32: a small, fast, seeded generator, so the same scale always yields the same data. */
@@ -55,6 +57,8 @@ export interface SeedCounts {
   events: number
   readings: number
   visits: number
+  results: number
+  notifications: number
 }
 
 const EOL_BY_MONITOR = [15_000, 4_700, 3_900, 10_000]
@@ -67,7 +71,7 @@ const DELAY_POLICIES = [0, 0, 180, 300]
 export function seed(sqlite: Database.Database, scale: Scale, today: IsoDate): SeedCounts {
   const cfg = SCALES[scale]
   const r = rng(0xd5c7 + cfg.detectors)
-  const counts: SeedCounts = { customers: 0, sites: 0, units: 0, detectors: 0, events: 0, readings: 0, visits: 0 }
+  const counts: SeedCounts = { customers: 0, sites: 0, units: 0, detectors: 0, events: 0, readings: 0, visits: 0, results: 0, notifications: 0 }
   const now = `${today}T12:00:00.000Z`
 
   const ins = (table: string, cols: string[]) =>
@@ -80,12 +84,13 @@ export function seed(sqlite: Database.Database, scale: Scale, today: IsoDate): S
   const insCustomer = ins('customers', ['id', 'name', 'kind', 'contact_name', 'contact_email', 'contact_phone', 'created_at'])
   const insSite = ins('sites', ['id', 'customer_id', 'name', 'street', 'city', 'region', 'postal_code', 'time_zone', 'jurisdiction', 'ahj_name', 'ahj_contact', 'code_basis', 'monitoring_company_id', 'monitoring_account', 'delay_policy_seconds', 'access_notes', 'created_at'])
   const insUnit = ins('units', ['id', 'site_id', 'tag', 'kind', 'location', 'shutdown_input', 'supply_cfm', 'return_cfm', 'duct_shape', 'duct_width_in', 'duct_height_in', 'duct_diameter_in', 'storeys_served', 'shared_plenum', 'area_detection', 'transformer_va', 'created_at'])
-  const detectorCols = ['id', 'unit_id', 'site_id', 'customer_id', 'model_id', 'tag', 'serial', 'position', 'heads_fitted', 'housing', 'environment', 'delay_seconds', 'delay_observed_on', 'installed_on', 'eol_ohms', 'eol_placement', 'alarm_terminal', 'supervisory_terminal', 'conductor_awg', 'conductor_stranded', 'run_feet', 'test_station', 'test_station_feet', 'velocity_min_fpm', 'velocity_max_fpm', 'pressure_min_in_wc', 'pressure_max_in_wc', 'state', 'last_visual_on', 'last_functional_on', 'last_sensitivity_on', 'sensitivity_streak', 'last_cleaned_on', 'last_result', 'next_due_on', 'due_status', 'delay_agreement', 'risk_score', 'troubles_30d', 'loop_verdict', 'updated_at']
+  const detectorCols = ['id', 'unit_id', 'site_id', 'customer_id', 'model_id', 'tag', 'serial', 'position', 'heads_fitted', 'housing', 'environment', 'delay_seconds', 'delay_observed_on', 'installed_on', 'eol_ohms', 'eol_placement', 'alarm_terminal', 'supervisory_terminal', 'conductor_awg', 'conductor_stranded', 'run_feet', 'test_station', 'test_station_feet', 'velocity_min_fpm', 'velocity_max_fpm', 'pressure_min_in_wc', 'pressure_max_in_wc', 'state', 'last_visual_on', 'last_functional_on', 'last_sensitivity_on', 'sensitivity_streak', 'last_cleaned_on', 'last_result', 'next_visual_on', 'next_functional_on', 'next_sensitivity_on', 'next_cleaning_on', 'next_due_on', 'due_status', 'delay_agreement', 'risk_score', 'risk_reasons', 'troubles_30d', 'loop_verdict', 'loop_findings', 'updated_at']
   const insDetector = ins('detectors', detectorCols)
   const insEvent = ins('events', ['site_id', 'detector_id', 'occurred_at', 'kind', 'detail', 'user_id'])
   const insReading = ins('readings', ['detector_id', 'visit_id', 'taken_at', 'kind', 'value', 'open', 'taken_by'])
   const insVisit = ins('visits', ['id', 'site_id', 'kind', 'scheduled_on', 'technician_id', 'status', 'notes', 'created_by', 'created_at'])
   const insVisitDetector = ins('visit_detectors', ['visit_id', 'detector_id', 'tasks', 'result', 'notes', 'completed_at'])
+  const insResult = ins('task_results', ['detector_id', 'visit_id', 'task', 'done_on', 'outcome', 'value', 'recorded_by', 'created_at'])
   const insNotice = ins('notifications', ['site_id', 'visit_id', 'monitoring_company_id', 'notified_at', 'notified_by', 'method', 'spoke_with', 'confirmation', 'in_test_from', 'in_test_until', 'site_contact_told', 'cleared_at'])
 
   const techIds = DEMO_USERS.map((u, i) => ({ ...u, id: i + 1 }))
@@ -154,6 +159,7 @@ export function seed(sqlite: Database.Database, scale: Scale, today: IsoDate): S
       const codeBasis = CITIES.indexOf(place) % 3 === 0 ? 'nfpa90a' : 'imc'
       insSite.run(siteId, c.id, siteName, street, place.city, place.region, `${place.zip}${String(r.int(100, 999))}`, place.tz, `City of ${place.city}`, `${place.city} Fire Prevention Bureau`, `fireprevention@${place.city.toLowerCase().replace(/[^a-z]+/g, '')}.test`, codeBasis, monitor, `AC-${String(100000 + siteId * 37).slice(-6)}`, policy, r.chance(0.4) ? r.pick(['Roof hatch key at front desk.', 'Ladder on site; call manager on arrival.', 'After 14:00 only: kitchen busy at lunch.', 'Escort required in patient areas.']) : null, now)
       counts.sites++
+      const siteVisits = writeSiteHistory(siteId, monitor, c.kind)
 
       const unitCount = c.kind === 'restaurant' ? r.int(2, 4) : c.kind === 'retail' ? r.int(3, 9) : r.int(2, 7)
       for (let u = 1; u <= unitCount && detectorId < cfg.detectors; u++) {
@@ -176,16 +182,61 @@ export function seed(sqlite: Database.Database, scale: Scale, today: IsoDate): S
         for (const position of positions) {
           if (detectorId >= cfg.detectors) break
           detectorId++
-          writeDetector(detectorId, { siteId, unitId, customerId: c.id, kind: c.kind, position, monitor, policy, unitTag: `${isAhu ? 'AHU' : 'RTU'}-${u}` })
+          writeDetector(detectorId, { siteId, unitId, customerId: c.id, kind: c.kind, position, monitor, policy, unitTag: `${isAhu ? 'AHU' : 'RTU'}-${u}`, visits: siteVisits })
         }
       }
-      writeVisits(siteId, monitor)
+      writePlannedVisit(siteId)
     }
   })
 
+  interface SiteVisit {
+    id: number
+    on: IsoDate
+    kind: 'test' | 'inspection'
+    tech: number
+  }
+
+  /**
+   * The site's program since the contractor took it over: a visit every quarter (restaurants, for the
+   * kitchen cleaning) or every half year, one a year being the annual test, each with its notice to
+   * the monitoring company logged and cleared. A few sites have lapsed and not been visited for a year.
+   */
+  function writeSiteHistory(site: number, monitor: number, kind: string): SiteVisit[] {
+    const m = MONITORING_COMPANIES[monitor - 1]
+    const every = kind === 'restaurant' ? 91 : 182
+    const perYear = Math.round(365 / every)
+    const testPhase = r.int(0, perYear - 1)
+    const start = addDays(today, -cfg.historyYears * 365)
+    const lapsed = r.chance(0.05)
+    let on = addDays(today, lapsed ? -r.int(380, 700) : -r.int(3, every - 3))
+    const dates: IsoDate[] = []
+    while (on >= start) {
+      dates.push(on)
+      on = addDays(on, -every + r.int(-6, 6))
+    }
+    dates.reverse()
+    const out: SiteVisit[] = []
+    dates.forEach((day, k) => {
+      visitId++
+      const tech = r.pick(techIds)
+      const visitKind = (k + testPhase) % perYear === 0 ? 'test' : 'inspection'
+      insVisit.run(visitId, site, visitKind, day, tech, 'done', visitKind === 'test' ? 'Annual test, inspection and cleaning.' : 'Inspection and cleaning round.', officeId, `${addDays(day, -14)}T15:00:00.000Z`)
+      counts.visits++
+      const spoke = r.pick(['Operator 14', 'Dispatcher Ruiz', 'Desk K. Amani', 'Operator 7'])
+      const confirmation = `CF${String(visitId * 91 + 10000).slice(-5)}`
+      insNotice.run(site, visitId, monitor, `${day}T14:05:00.000Z`, tech, m.method, spoke, confirmation, `${day}T14:10:00.000Z`, `${day}T18:10:00.000Z`, 'Manager on duty', `${day}T18:02:00.000Z`)
+      counts.notifications++
+      // The notice's own entry in the site's timeline: one per logged notice, so counts and timeline agree.
+      insEvent.run(site, null, `${day}T14:05:00.000Z`, 'notice', `Monitoring company told (${spoke}, confirmation ${confirmation}); system in test`, tech)
+      counts.events++
+      out.push({ id: visitId, on: day, kind: visitKind, tech })
+    })
+    return out
+  }
+
   function writeDetector(
     id: number,
-    o: { siteId: number; unitId: number; customerId: number; kind: string; position: 'supply' | 'return'; monitor: number; policy: number; unitTag: string },
+    o: { siteId: number; unitId: number; customerId: number; kind: string; position: 'supply' | 'return'; monitor: number; policy: number; unitTag: string; visits: SiteVisit[] },
   ) {
     const modelIdx = r.chance(0.08) ? 2 : r.chance(0.3) ? 1 : 0
     const model = DETECTOR_MODELS[modelIdx]
@@ -199,14 +250,10 @@ export function seed(sqlite: Database.Database, scale: Scale, today: IsoDate): S
             : 'clean'
     const housing = env === 'humid' ? (r.chance(0.55) ? 'nema4x' : 'standard') : r.chance(0.04) ? 'nema4' : 'standard'
     const installedOn = addDays(today, -r.int(400, 6000))
-    const skipped = r.chance(0.12) // tests skipped: the common way a miswire goes uncaught
-    const lastFunctional = skipped ? (r.chance(0.3) ? null : addDays(today, -r.int(380, 900))) : addDays(today, -r.int(5, 360))
-    const lastVisual = lastFunctional && !skipped ? addDays(today, -r.int(5, 186)) : lastFunctional
-    const yearsInService = daysBetween(installedOn, today) / 365
-    const streak = yearsInService > 5 ? r.int(2, 4) : yearsInService > 3 ? r.int(1, 2) : yearsInService > 1.2 ? 1 : 0
-    const lastSensitivity = streak === 0 ? null : addDays(today, -r.int(30, streak >= 3 ? 1500 : 700))
-    const lastCleaned = skipped ? lastFunctional : addDays(today, -r.int(5, Math.round(CLEANING_INTERVAL_DAYS[env] * 1.04)))
-    const clampToInstall = (d: IsoDate | null) => (d && d < installedOn ? installedOn : d)
+    // Left out of the rounds (no access, unit replaced, never added to the list): the common way a
+    // miswire goes uncaught. Some were left out from the start and have no result on record at all.
+    const skipped = r.chance(0.12)
+    const skippedFrom = skipped ? (r.chance(0.3) ? '0000-01-01' : addDays(today, -r.int(380, 900))) : '9999-12-31'
 
     // About one in twenty-five carries an installation miswire.
     const miswire = r.chance(0.04) ? r.pick(['alarm-nc', 'eol-across', 'sup-wrong', 'eol-missing', 'eol-wrong'] as const) : null
@@ -217,19 +264,6 @@ export function seed(sqlite: Database.Database, scale: Scale, today: IsoDate): S
     const delay = r.chance(0.1) ? null : r.chance(0.08) ? DELAY_POLICIES[(o.monitor + 1) % 4] === o.policy ? (o.policy === 0 ? 180 : 0) : DELAY_POLICIES[(o.monitor + 1) % 4] : o.policy
     const troubles30 = env === 'humid' && housing === 'standard' ? r.int(0, 4) : r.chance(0.03) ? r.int(1, 3) : 0
     const state = troubles30 > 2 || r.chance(0.025) ? 'trouble' : r.chance(0.003) ? 'supervisory' : r.chance(0.004) ? 'out-of-service' : 'normal'
-    const lastResult = lastFunctional ? (miswire && !skipped ? 'fail' : r.chance(0.03) ? 'fail' : 'pass') : null
-
-    const sched = {
-      installedOn,
-      environment: env,
-      lastVisualOn: clampToInstall(lastVisual),
-      lastFunctionalOn: clampToInstall(lastFunctional),
-      lastSensitivityOn: clampToInstall(lastSensitivity),
-      sensitivityStreak: streak,
-      lastCleanedOn: clampToInstall(lastCleaned),
-    }
-    const due = summarizeDue(sched, today)
-    const audit = auditDelay({ delaySeconds: delay, policySeconds: o.policy })
     const recorded: Arrangement = {
       eolOhms: eol,
       eolPlacement: miswire === 'eol-across' ? 'across-pair' : 'through-supervisory',
@@ -240,25 +274,81 @@ export function seed(sqlite: Database.Database, scale: Scale, today: IsoDate): S
       conductor: { awg: awg as Awg, stranded, oneWayFeet: runFeet },
       measuredAt: 'panel',
     }
-    const readings = sched.lastFunctionalOn ? meterReadings(recorded, miswire) : null
-    const loopVerdict = readings ? diagnose(recorded, readings).verdict : null
-    const diagnosisFailed = loopVerdict === 'fail'
-    const derived = derivedFields({ state, dueStatus: due.dueStatus, nextDueOn: due.nextDueOn, today, lastResult, troubles30, environment: env, housing, delayAgreement: audit.agreement, diagnosisFailed })
+
+    // History first: the work done at each of the site's visits, in order, each task deciding from
+    // the results so far whether it was due.
+    const results: Array<TaskResult & { visitId: number; tech: number; value: number | null }> = []
+    const worked = o.visits.filter((v) => v.on >= installedOn && v.on < skippedFrom)
+    const cleaningDays = CLEANING_INTERVAL_DAYS[env]
+    const lastTestVisit = [...worked].reverse().find((v) => v.kind === 'test')
+    const visitsDone: Array<{ visit: SiteVisit; tasks: Task[]; failed: boolean }> = []
+    for (const v of worked) {
+      const facts = workFacts(results)
+      const tasks: Task[] = ['visual']
+      if (v.kind === 'test') tasks.push('functional')
+      const sensitivityDue = nextSensitivityDue({ installedOn, environment: env, ...facts }).dueOn
+      if (v.kind === 'test' && sensitivityDue <= addDays(v.on, 60)) tasks.push('sensitivity')
+      if (v.kind === 'test' || !facts.lastCleanedOn || addDays(facts.lastCleanedOn, cleaningDays) <= addDays(v.on, 45)) tasks.push('cleaning')
+      let failed = false
+      for (const task of tasks) {
+        // Miswired loops fail the latest functional test; a few others fail on their own.
+        const fails =
+          task === 'functional' ? v === lastTestVisit && (miswire !== null || r.chance(0.03))
+          : task === 'sensitivity' ? r.chance(0.03)
+          : task === 'visual' ? r.chance(0.01)
+          : false
+        failed ||= fails
+        const value = task === 'sensitivity' ? Math.round((fails ? r.pick([0.4, 4.6]) : 1 + r.next() * 2) * 100) / 100 : null
+        results.push({ task, doneOn: v.on, outcome: fails ? 'fail' : 'pass', visitId: v.id, tech: v.tech, value })
+      }
+      visitsDone.push({ visit: v, tasks, failed })
+    }
+    const facts = workFacts(results)
+    const readings = facts.lastFunctionalOn ? meterReadings(recorded, miswire) : null
+
+    // Trouble reports: a few recent ones feed the repeated-trouble reason; older ones are history.
+    const recentTroubleTimes = Array.from({ length: troubles30 }, () => `${addDays(today, -r.int(1, 29))}T0${r.int(0, 9)}:15:00.000Z`)
+    if (state === 'trouble' && troubles30 === 0) recentTroubleTimes.push(`${addDays(today, -r.int(0, 6))}T${String(r.int(10, 23))}:${String(r.int(10, 59))}:00.000Z`)
+    const derived = deriveDetector(
+      { installedOn, environment: env, housing, state, delaySeconds: delay, cleaningIntervalDays: null, arrangement: recorded },
+      { delayPolicySeconds: o.policy },
+      { results, loopReadings: readings ?? {}, troubles: recentTroubleTimes },
+      today,
+    ).stored
 
     insDetector.run(
       id, o.unitId, o.siteId, o.customerId, modelIdx + 1,
       `${o.unitTag}-${o.position === 'supply' ? 'S' : 'R'}`, `DK${String(1_000_000 + id * 13).slice(-7)}`,
-      o.position, modelIdx === 1 ? 2 : 1, housing, env, delay, delay === null ? null : sched.lastVisualOn, installedOn,
+      o.position, modelIdx === 1 ? 2 : 1, housing, env, delay, delay === null ? null : facts.lastVisualOn, installedOn,
       recorded.eolOhms, recorded.eolPlacement, recorded.alarmTerminal, recorded.supervisoryTerminal,
       awg, stranded ? 1 : 0, runFeet, r.chance(0.3) ? (r.chance(0.5) ? 'key' : 'magnet') : 'none', r.chance(0.3) ? r.int(20, 300) : null,
       model.vmin, model.vmax, model.pmin, model.pmax, state,
-      sched.lastVisualOn, sched.lastFunctionalOn, sched.lastSensitivityOn, streak, sched.lastCleanedOn, lastResult,
-      due.nextDueOn, due.dueStatus, audit.agreement, derived.riskScore, troubles30, loopVerdict, now,
+      derived.lastVisualOn, derived.lastFunctionalOn, derived.lastSensitivityOn, derived.sensitivityStreak, derived.lastCleanedOn, derived.lastResult,
+      derived.nextVisualOn, derived.nextFunctionalOn, derived.nextSensitivityOn, derived.nextCleaningOn,
+      derived.nextDueOn, derived.dueStatus, derived.delayAgreement, derived.riskScore, derived.riskReasons, derived.troubles30d,
+      derived.loopVerdict, derived.loopFindings, now,
     )
     counts.detectors++
 
-    if (sched.lastFunctionalOn && readings) writeReadings(id, sched.lastFunctionalOn, readings)
-    writeEvents(id, o.siteId, installedOn, troubles30, state)
+    for (const res of results) {
+      insResult.run(id, res.visitId, res.task, res.doneOn, res.outcome, res.value, res.tech, `${res.doneOn}T18:00:00.000Z`)
+      counts.results++
+    }
+    for (const { visit, tasks, failed } of visitsDone) {
+      const at = `${visit.on}T${String(r.int(15, 17))}:${String(r.int(10, 59))}:00.000Z`
+      insVisitDetector.run(visit.id, id, tasks.join(','), failed ? 'fail' : 'pass', null, at)
+      const tested = tasks.includes('functional') || tasks.includes('sensitivity')
+      const names = tasks.map((t) => ({ visual: 'visual inspection', functional: 'functional test', sensitivity: 'sensitivity test', cleaning: 'cleaning' })[t])
+      const done = names.length > 1 ? `${names.slice(0, -1).join(', ')} and ${names.at(-1)}` : names[0]
+      const detail = `${done[0].toUpperCase()}${done.slice(1)}: ${failed ? 'failed, see the visit' : 'passed'}${tasks.includes('cleaning') ? `. ${r.pick(TECH_NOTES)}` : ''}`
+      insEvent.run(o.siteId, id, at, tested || !tasks.includes('cleaning') ? 'test' : 'cleaning', detail, visit.tech)
+      counts.events++
+    }
+    if (facts.lastFunctionalOn && readings) {
+      const visit = visitsDone.find((v) => v.visit.on === facts.lastFunctionalOn)!.visit
+      writeReadings(id, visit, readings)
+    }
+    writeEvents(id, o.siteId, installedOn, recentTroubleTimes, Math.max(0, eventsPer - visitsDone.length - 1))
   }
 
   /** What a meter at the panel would show: the recorded wiring, or the real fault where the record hides one. */
@@ -275,11 +365,10 @@ export function seed(sqlite: Database.Database, scale: Scale, today: IsoDate): S
     return out
   }
 
-  function writeReadings(id: number, on: IsoDate, loop: Readings) {
-    const at = `${on}T${String(r.int(8, 15)).padStart(2, '0')}:${String(r.int(0, 59)).padStart(2, '0')}:00.000Z`
-    const tech = r.pick(techIds)
+  function writeReadings(id: number, visit: SiteVisit, loop: Readings) {
+    const at = `${visit.on}T${String(r.int(15, 17))}:${String(r.int(0, 59)).padStart(2, '0')}:00.000Z`
     const put = (kind: string, value: number | 'open') => {
-      insReading.run(id, null, at, kind, value === 'open' ? null : value, value === 'open' ? 1 : 0, tech)
+      insReading.run(id, visit.id, at, kind, value === 'open' ? null : value, value === 'open' ? 1 : 0, visit.tech)
       counts.readings++
     }
     put('loop-normal', loop.normal as Reading)
@@ -290,58 +379,41 @@ export function seed(sqlite: Database.Database, scale: Scale, today: IsoDate): S
   }
 
   const troubleDetails = ['Dirty head reported', 'Cover tamper opened', 'Loss of power at module', 'Water in sampling tube', 'Head missing']
-  function writeEvents(detector: number, site: number, installedOn: IsoDate, troubles30: number, state: string) {
+  /** What the panel reported over the years (troubles, restores, alarms, resets), apart from the work. */
+  function writeEvents(detector: number, site: number, installedOn: IsoDate, recentTroubles: string[], n: number) {
     const horizon = Math.min(1800, daysBetween(installedOn, today))
-    const n = eventsPer
-    for (let i = 0; i < n; i++) {
+    for (let i = 0; i < n && horizon > 31; i++) {
       const daysAgo = r.int(31, horizon)
       const t = `${addDays(today, -daysAgo)}T${String(r.int(0, 23)).padStart(2, '0')}:${String(r.int(0, 59)).padStart(2, '0')}:${String(r.int(0, 59)).padStart(2, '0')}.000Z`
       const roll = r.next()
-      const kind = roll < 0.22 ? 'test' : roll < 0.36 ? 'cleaning' : roll < 0.56 ? 'trouble' : roll < 0.74 ? 'restore' : roll < 0.86 ? 'notice' : roll < 0.93 ? 'reset' : roll < 0.97 ? 'change' : roll < 0.99 ? 'supervisory' : 'alarm'
+      const kind = roll < 0.4 ? 'trouble' : roll < 0.75 ? 'restore' : roll < 0.87 ? 'reset' : roll < 0.94 ? 'change' : roll < 0.98 ? 'supervisory' : 'alarm'
       const detail =
         kind === 'trouble' ? r.pick(troubleDetails)
-        : kind === 'test' ? r.chance(0.95) ? 'Functional test passed; unit shut down' : 'Functional test failed'
-        : kind === 'cleaning' ? r.pick(TECH_NOTES)
-        : kind === 'notice' ? 'Monitoring company told; system in test'
         : kind === 'alarm' ? 'Alarm at panel; cleared, no fire found'
         : kind === 'change' ? 'Record updated'
         : kind === 'restore' ? 'Trouble cleared at the panel'
         : kind === 'reset' ? 'Detector reset after test'
-        : null
-      insEvent.run(site, detector, t, kind, detail, kind === 'test' || kind === 'cleaning' || kind === 'notice' ? r.pick(techIds) : null)
+        : 'Supervisory at panel; cleared'
+      insEvent.run(site, detector, t, kind, detail, null)
       counts.events++
     }
-    // Recent troubles feed the triage's repeated-trouble reason.
-    for (let i = 0; i < troubles30; i++) {
-      insEvent.run(site, detector, `${addDays(today, -r.int(1, 29))}T0${r.int(0, 9)}:15:00.000Z`, 'trouble', r.pick(troubleDetails), null)
-      counts.events++
-    }
-    if (state === 'trouble' && troubles30 === 0) {
-      insEvent.run(site, detector, `${addDays(today, -r.int(0, 6))}T${String(r.int(0, 23)).padStart(2, '0')}:${String(r.int(0, 59)).padStart(2, '0')}:00.000Z`, 'trouble', r.pick(troubleDetails), null)
+    for (const t of recentTroubles) {
+      insEvent.run(site, detector, t, 'trouble', r.pick(troubleDetails), null)
       counts.events++
     }
   }
 
-  function writeVisits(site: number, monitor: number) {
-    const m = MONITORING_COMPANIES[monitor - 1]
-    // The last annual visit, done, with its notification on record.
-    const past = addDays(today, -r.int(20, 330))
+  /** An upcoming visit for part of the sites, covering their detectors that fall due soon. */
+  function writePlannedVisit(site: number) {
+    if (!r.chance(0.35)) return
+    const when = addDays(today, r.int(1, 45))
     visitId++
-    const tech = r.pick(techIds)
-    insVisit.run(visitId, site, 'test', past, tech, 'done', 'Annual functional test and cleaning.', officeId, `${addDays(past, -14)}T15:00:00.000Z`)
-    insNotice.run(site, visitId, monitor, `${past}T08:05:00.000Z`, tech, m.method, r.pick(['Operator 14', 'Dispatcher Ruiz', 'Desk K. Amani', 'Operator 7']), `CF${String(site * 91 + 10000).slice(-5)}`, `${past}T08:10:00.000Z`, `${past}T12:10:00.000Z`, 'Store manager on duty', `${past}T12:02:00.000Z`)
+    insVisit.run(visitId, site, r.chance(0.3) ? 'cleaning' : 'test', when, r.chance(0.85) ? r.pick(techIds) : null, 'planned', null, officeId, now)
+    const rows = sqlite.prepare('select id from detectors where site_id = ? and next_due_on <= ?').all(site, addDays(when, 30)) as Array<{ id: number }>
+    for (const row of rows) insVisitDetector.run(visitId, row.id, 'visual,functional,cleaning', 'pending', null, null)
     counts.visits++
-    // An upcoming visit for part of the sites, covering their detectors that fall due soon.
-    if (r.chance(0.35)) {
-      const when = addDays(today, r.int(1, 45))
-      visitId++
-      insVisit.run(visitId, site, r.chance(0.3) ? 'cleaning' : 'test', when, r.chance(0.85) ? r.pick(techIds) : null, 'planned', null, officeId, now)
-      const rows = sqlite.prepare('select id from detectors where site_id = ? and next_due_on <= ?').all(site, addDays(when, 30)) as Array<{ id: number }>
-      for (const row of rows) insVisitDetector.run(visitId, row.id, 'visual,functional,cleaning', 'pending', null, null)
-      counts.visits++
-    }
   }
 
-  withBulkLoad(sqlite, ['events', 'readings', 'visit_detectors', 'notifications'], writeFleet)
+  withBulkLoad(sqlite, ['events', 'readings', 'visits', 'visit_detectors', 'task_results', 'notifications'], writeFleet)
   return counts
 }

@@ -1,0 +1,212 @@
+// Loads what the one derivation (app/domain/derive.ts) needs from the database, and writes back what it
+// returns. Every write that changes a detector's record or history calls `rederive` inside its own
+// transaction; the daily refresh and the database check walk the fleet in id ranges through the same
+// loader, so memory stays bounded by the chunk size.
+import { and, asc, between, eq, gte, inArray, sql, type SQL } from 'drizzle-orm'
+import type { AnySQLiteColumn } from 'drizzle-orm/sqlite-core'
+import type { Awg } from '~/domain/conductors'
+import { addDays } from '~/domain/dates'
+import { deriveDetector, TROUBLE_WINDOW_DAYS, type DetectorRecord, type History, type SitePolicy, type StoredFacts, type TaskResult } from '~/domain/derive'
+import type { Arrangement, Readings } from '~/domain/loop'
+import type { Db } from './db'
+import { detectorModels, detectors, events, readings, sites, taskResults } from './schema'
+
+const LOOP_STATES = { 'loop-normal': 'normal', 'loop-alarm': 'alarm', 'loop-trouble': 'trouble', 'loop-unpowered': 'unpowered' } as const
+type LoopKind = keyof typeof LOOP_STATES
+const LOOP_KINDS = Object.keys(LOOP_STATES) as LoopKind[]
+
+export interface ArrangementFields {
+  eolOhms: number
+  eolPlacement: Arrangement['eolPlacement']
+  alarmTerminal: Arrangement['alarmTerminal']
+  supervisoryTerminal: Arrangement['supervisoryTerminal']
+  supervisoryLabelledIn: NonNullable<Arrangement['supervisoryLabelledIn']>
+  conductorAwg: number
+  conductorStranded: boolean | number
+  runFeet: number
+}
+
+/** The loop as recorded on the detector, read at the panel (where the fire alarm contractor measures). */
+export function arrangementOf(d: ArrangementFields): Arrangement {
+  return {
+    eolOhms: d.eolOhms,
+    eolPlacement: d.eolPlacement,
+    alarmTerminal: d.alarmTerminal,
+    supervisoryTerminal: d.supervisoryTerminal,
+    supervisoryLabelledIn: d.supervisoryLabelledIn,
+    conductor: { awg: d.conductorAwg as Awg, stranded: Boolean(d.conductorStranded), oneWayFeet: d.runFeet },
+    measuredAt: 'panel',
+  }
+}
+
+const recordColumns = {
+  id: detectors.id,
+  installedOn: detectors.installedOn,
+  environment: detectors.environment,
+  housing: detectors.housing,
+  state: detectors.state,
+  delaySeconds: detectors.delaySeconds,
+  cleaningIntervalDays: detectors.cleaningIntervalDays,
+  eolOhms: detectors.eolOhms,
+  eolPlacement: detectors.eolPlacement,
+  alarmTerminal: detectors.alarmTerminal,
+  supervisoryTerminal: detectors.supervisoryTerminal,
+  supervisoryLabelledIn: detectorModels.supervisoryLabelledIn,
+  conductorAwg: detectors.conductorAwg,
+  conductorStranded: detectors.conductorStranded,
+  runFeet: detectors.runFeet,
+  delayPolicySeconds: sites.delayPolicySeconds,
+  // What is stored now, to compare with the derivation.
+  lastVisualOn: detectors.lastVisualOn,
+  lastFunctionalOn: detectors.lastFunctionalOn,
+  lastSensitivityOn: detectors.lastSensitivityOn,
+  lastCleanedOn: detectors.lastCleanedOn,
+  sensitivityStreak: detectors.sensitivityStreak,
+  lastResult: detectors.lastResult,
+  nextVisualOn: detectors.nextVisualOn,
+  nextFunctionalOn: detectors.nextFunctionalOn,
+  nextSensitivityOn: detectors.nextSensitivityOn,
+  nextCleaningOn: detectors.nextCleaningOn,
+  nextDueOn: detectors.nextDueOn,
+  dueStatus: detectors.dueStatus,
+  loopVerdict: detectors.loopVerdict,
+  loopFindings: detectors.loopFindings,
+  delayAgreement: detectors.delayAgreement,
+  troubles30d: detectors.troubles30d,
+  riskScore: detectors.riskScore,
+  riskReasons: detectors.riskReasons,
+}
+
+export interface DerivationInput {
+  id: number
+  record: DetectorRecord
+  policy: SitePolicy
+  history: History
+  stored: Record<keyof StoredFacts, unknown>
+}
+
+type Selection = { ids: readonly number[] } | { fromId: number; toId: number }
+
+const onDetectors = (sel: Selection, column: AnySQLiteColumn): SQL =>
+  'ids' in sel ? inArray(column, [...sel.ids]) : between(column, sel.fromId, sel.toId)
+
+/** Record, policy, history and stored facts for the selected detectors, in id order. */
+export function derivationInputs(db: Db, sel: Selection, today: string): DerivationInput[] {
+  if ('ids' in sel && sel.ids.length === 0) return []
+  const rows = db
+    .select(recordColumns)
+    .from(detectors)
+    .innerJoin(sites, eq(sites.id, detectors.siteId))
+    .innerJoin(detectorModels, eq(detectorModels.id, detectors.modelId))
+    .where(onDetectors(sel, detectors.id))
+    .orderBy(asc(detectors.id))
+    .all()
+  const results = db
+    .select({ detectorId: taskResults.detectorId, task: taskResults.task, doneOn: taskResults.doneOn, outcome: taskResults.outcome })
+    .from(taskResults)
+    .where(onDetectors(sel, taskResults.detectorId))
+    .all()
+  const loop = db
+    .select({ detectorId: readings.detectorId, kind: readings.kind, value: readings.value, open: readings.open })
+    .from(readings)
+    .where(and(onDetectors(sel, readings.detectorId), inArray(readings.kind, LOOP_KINDS)))
+    .orderBy(asc(readings.detectorId), asc(readings.takenAt), asc(readings.id))
+    .all()
+  // Only troubles inside the window matter; an instant's day is its first ten characters.
+  const troubles = db
+    .select({ detectorId: events.detectorId, occurredAt: events.occurredAt })
+    .from(events)
+    .where(
+      and(
+        eq(events.kind, 'trouble'),
+        gte(events.occurredAt, addDays(today, -(TROUBLE_WINDOW_DAYS - 1))),
+        onDetectors(sel, events.detectorId),
+      ),
+    )
+    .all()
+
+  const byId = new Map<number, DerivationInput>()
+  for (const d of rows) {
+    const { id, delayPolicySeconds, ...rest } = d
+    byId.set(id, {
+      id,
+      record: {
+        installedOn: rest.installedOn,
+        environment: rest.environment,
+        housing: rest.housing,
+        state: rest.state,
+        delaySeconds: rest.delaySeconds,
+        cleaningIntervalDays: rest.cleaningIntervalDays,
+        arrangement: arrangementOf(rest),
+      },
+      policy: { delayPolicySeconds },
+      history: { results: [], loopReadings: {}, troubles: [] },
+      stored: rest,
+    })
+  }
+  for (const r of results) (byId.get(r.detectorId)?.history.results as TaskResult[] | undefined)?.push(r)
+  // Ordered by time, so the last one written per state is the latest.
+  for (const r of loop) {
+    const input = byId.get(r.detectorId)
+    if (input) (input.history.loopReadings as Readings)[LOOP_STATES[r.kind as LoopKind]] = r.open ? 'open' : (r.value ?? 'open')
+  }
+  for (const t of troubles) if (t.detectorId !== null) (byId.get(t.detectorId)?.history.troubles as string[] | undefined)?.push(t.occurredAt)
+  return [...byId.values()]
+}
+
+export function deriveInput(input: DerivationInput, today: string) {
+  return deriveDetector(input.record, input.policy, input.history, today)
+}
+
+function writeFacts(db: Db, id: number, facts: StoredFacts) {
+  db.update(detectors).set(facts).where(eq(detectors.id, id)).run()
+}
+
+const changed = (stored: DerivationInput['stored'], facts: StoredFacts) =>
+  (Object.keys(facts) as Array<keyof StoredFacts>).some((k) => (stored[k] ?? null) !== (facts[k] ?? null))
+
+/**
+ * Re-derives the given detectors and writes the facts that changed. Call it inside the transaction
+ * that wrote their record or history, so the record never disagrees with its history.
+ */
+export function rederive(db: Db, ids: readonly number[], today: string): number {
+  let n = 0
+  for (const input of derivationInputs(db, { ids }, today)) {
+    const facts = deriveInput(input, today).stored
+    if (changed(input.stored, facts)) {
+      writeFacts(db, input.id, facts)
+      n++
+    }
+  }
+  return n
+}
+
+/** The fleet's id range, walked in chunks by the refresh and the check. */
+export function detectorIdRange(db: Db): { min: number; max: number } | null {
+  const r = db.select({ min: sql<number | null>`min(${detectors.id})`, max: sql<number | null>`max(${detectors.id})` }).from(detectors).get()
+  return r && r.min !== null && r.max !== null ? { min: r.min, max: r.max } : null
+}
+
+export const CHUNK = 2_000
+
+/** Each chunk of the fleet's derivation inputs, in id order. */
+export function* fleetInputs(db: Db, today: string, chunk = CHUNK): Generator<DerivationInput[]> {
+  const range = detectorIdRange(db)
+  if (!range) return
+  for (let from = range.min; from <= range.max; from += chunk) yield derivationInputs(db, { fromId: from, toId: from + chunk - 1 }, today)
+}
+
+/** Re-derives the whole fleet for `today`, one short transaction per chunk; writes only what changed. */
+export function rederiveFleet(db: Db, today: string): { checked: number; changed: number } {
+  let checked = 0
+  let n = 0
+  for (const inputs of fleetInputs(db, today)) {
+    const updates = inputs.map((i) => [i, deriveInput(i, today).stored] as const).filter(([i, f]) => changed(i.stored, f))
+    db.$client.transaction(() => {
+      for (const [i, f] of updates) writeFacts(db, i.id, f)
+    }).immediate()
+    checked += inputs.length
+    n += updates.length
+  }
+  return { checked, changed: n }
+}
