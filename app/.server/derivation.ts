@@ -196,17 +196,37 @@ export function* fleetInputs(db: Db, today: string, chunk = CHUNK): Generator<De
   for (let from = range.min; from <= range.max; from += chunk) yield derivationInputs(db, { fromId: from, toId: from + chunk - 1 }, today)
 }
 
+/** Re-derives one chunk of inputs in its own short IMMEDIATE transaction; returns how many changed. */
+function rederiveChunk(db: Db, inputs: DerivationInput[], today: string): number {
+  const updates = inputs.map((i) => [i, deriveInput(i, today).stored] as const).filter(([i, f]) => changed(i.stored, f))
+  if (updates.length === 0) return 0
+  db.$client
+    .transaction(() => {
+      for (const [i, f] of updates) writeFacts(db, i.id, f)
+    })
+    .immediate()
+  return updates.length
+}
+
 /** Re-derives the whole fleet for `today`, one short transaction per chunk; writes only what changed. */
 export function rederiveFleet(db: Db, today: string): { checked: number; changed: number } {
   let checked = 0
   let n = 0
   for (const inputs of fleetInputs(db, today)) {
-    const updates = inputs.map((i) => [i, deriveInput(i, today).stored] as const).filter(([i, f]) => changed(i.stored, f))
-    db.$client.transaction(() => {
-      for (const [i, f] of updates) writeFacts(db, i.id, f)
-    }).immediate()
+    n += rederiveChunk(db, inputs, today)
     checked += inputs.length
-    n += updates.length
+  }
+  return { checked, changed: n }
+}
+
+/** The same walk, handing the event loop back between chunks so requests are answered meanwhile. */
+export async function rederiveFleetInTurns(db: Db, today: string): Promise<{ checked: number; changed: number }> {
+  let checked = 0
+  let n = 0
+  for (const inputs of fleetInputs(db, today)) {
+    n += rederiveChunk(db, inputs, today)
+    checked += inputs.length
+    await new Promise((resolve) => setImmediate(resolve))
   }
   return { checked, changed: n }
 }

@@ -7,9 +7,9 @@ const EVERY_MS = 10 * 60_000
 /** Starts once per process: keeps the derived fleet columns true to the office's calendar day. */
 export function startBackgroundJobs() {
   if (globalJobs.__ductkeeperJobs || process.env.DUCTKEEPER_JOBS === 'off') return
-  const tick = () => {
+  const tick = async () => {
     try {
-      const result = refreshIfNewDay(getDb())
+      const result = await refreshIfNewDay(getDb())
       if (result) console.log(`Derived fleet fields refreshed for the day: ${result.changed} of ${result.checked} detectors changed`)
     } catch (error) {
       console.error('Refreshing derived fleet fields failed', error)

@@ -1,5 +1,5 @@
 import type { Db } from './db'
-import { rederiveFleet } from './derivation'
+import { rederiveFleet, rederiveFleetInTurns } from './derivation'
 import { listsChanged } from './list-query'
 import { officeToday } from './today'
 
@@ -16,10 +16,15 @@ export function refreshDerived(db: Db, today: string): { checked: number; change
 
 let lastDay: string | null = null
 
-/** Refreshes once per office day: at first use, then whenever the day has turned. */
-export function refreshIfNewDay(db: Db, now = new Date()) {
+/**
+ * Refreshes once per office day: at first use, then whenever the day has turned. Runs in chunks that
+ * give the event loop back between them, so a start or a day turn does not hold requests up.
+ */
+export async function refreshIfNewDay(db: Db, now = new Date()) {
   const today = officeToday(now)
   if (today === lastDay) return null
   lastDay = today
-  return refreshDerived(db, today)
+  const result = await rederiveFleetInTurns(db, today)
+  if (result.changed > 0) listsChanged()
+  return result
 }
