@@ -2,14 +2,15 @@
 // returns. Every write that changes a detector's record or history calls `rederive` inside its own
 // transaction; the daily refresh and the database check walk the fleet in id ranges through the same
 // loader, so memory stays bounded by the chunk size.
-import { and, asc, between, eq, gte, inArray, sql, type SQL } from 'drizzle-orm'
+import { and, asc, between, eq, gt, gte, inArray, lt, lte, or, sql, type SQL } from 'drizzle-orm'
 import type { AnySQLiteColumn } from 'drizzle-orm/sqlite-core'
 import type { Awg } from '~/domain/conductors'
-import { addDays } from '~/domain/dates'
-import { deriveDetector, TROUBLE_WINDOW_DAYS, type DetectorRecord, type History, type SitePolicy, type StoredFacts, type TaskResult } from '~/domain/derive'
+import { addDays, daysBetween } from '~/domain/dates'
+import { deriveDetector, OVERDUE_STEP_DAYS, OVERDUE_STEPS, TROUBLE_WINDOW_DAYS, type DetectorRecord, type History, type SitePolicy, type StoredFacts, type TaskResult } from '~/domain/derive'
 import type { Arrangement, Readings } from '~/domain/loop'
 import type { Db } from './db'
-import { detectorModels, detectors, events, readings, sites, taskResults } from './schema'
+import { appState, detectorModels, detectors, events, readings, sites, taskResults } from './schema'
+import { DUE_SOON_DAYS } from '~/domain/schedule'
 
 const LOOP_STATES = { 'loop-normal': 'normal', 'loop-alarm': 'alarm', 'loop-trouble': 'trouble', 'loop-unpowered': 'unpowered' } as const
 type LoopKind = keyof typeof LOOP_STATES
@@ -229,4 +230,70 @@ export async function rederiveFleetInTurns(db: Db, today: string): Promise<{ che
     await new Promise((resolve) => setImmediate(resolve))
   }
   return { checked, changed: n }
+}
+
+/**
+ * The detectors whose stored facts can change when the office day moves from `from` to `to`, found on
+ * indexes rather than by reading the fleet: the earliest due date crossing the due-soon or overdue
+ * boundary, an overdue detector reaching its next month of lateness (its risk points grow), and a
+ * trouble leaving the 30-day window. Any other fact changes only with a write, which re-derives then.
+ */
+export function dayTurnCandidates(db: Db, from: string, to: string): number[] {
+  const nextDue = detectors.nextDueOn
+  const ranges: SQL[] = [and(gte(nextDue, from), lte(nextDue, addDays(to, DUE_SOON_DAYS)))!]
+  for (let k = 1; k <= OVERDUE_STEPS; k++) {
+    ranges.push(and(gt(nextDue, addDays(from, -OVERDUE_STEP_DAYS * k)), lte(nextDue, addDays(to, -OVERDUE_STEP_DAYS * k)))!)
+  }
+  const ageing = db
+    .selectDistinct({ id: events.detectorId })
+    .from(events)
+    .where(
+      and(
+        eq(events.kind, 'trouble'),
+        gte(events.occurredAt, addDays(from, -(TROUBLE_WINDOW_DAYS - 1))),
+        lt(events.occurredAt, addDays(to, -(TROUBLE_WINDOW_DAYS - 1))),
+      ),
+    )
+  const rows = db
+    .select({ id: detectors.id })
+    .from(detectors)
+    .where(or(...ranges, inArray(detectors.id, ageing)))
+    .orderBy(asc(detectors.id))
+    .all()
+  return rows.map((r) => r.id)
+}
+
+/** Re-derives the given detectors in chunks, handing the event loop back between them. */
+export async function rederiveInTurns(db: Db, ids: readonly number[], today: string, chunk = CHUNK): Promise<number> {
+  let n = 0
+  for (let i = 0; i < ids.length; i += chunk) {
+    n += rederiveChunk(db, derivationInputs(db, { ids: ids.slice(i, i + chunk) }, today), today)
+    await new Promise((resolve) => setImmediate(resolve))
+  }
+  return n
+}
+
+const DERIVED_DAY = 'derived-day'
+
+/** The office day the stored facts were last derived for (null before the first derivation). */
+export function derivedDay(db: Db): string | null {
+  return db.select({ value: appState.value }).from(appState).where(eq(appState.key, DERIVED_DAY)).get()?.value ?? null
+}
+
+export function setDerivedDay(db: Db, day: string) {
+  const at = new Date().toISOString()
+  db.insert(appState)
+    .values({ key: DERIVED_DAY, value: day, updatedAt: at })
+    .onConflictDoUpdate({ target: appState.key, set: { value: day, updatedAt: at } })
+    .run()
+}
+
+/** Longest gap worth walking by candidates; past it every overdue step has been crossed anyway. */
+export const MAX_CANDIDATE_GAP_DAYS = 60
+
+/** How far `from` → `to` should be re-derived: nothing, the day-turn candidates, or the whole fleet. */
+export function turnPlan(from: string | null, to: string): 'none' | 'candidates' | 'fleet' {
+  if (from === to) return 'none'
+  if (from === null || from > to || daysBetween(from, to) > MAX_CANDIDATE_GAP_DAYS) return 'fleet'
+  return 'candidates'
 }

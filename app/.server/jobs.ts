@@ -10,7 +10,7 @@ export function startBackgroundJobs() {
   const tick = async () => {
     try {
       const result = await refreshIfNewDay(getDb())
-      if (result) console.log(`Derived fleet fields refreshed for the day: ${result.changed} of ${result.checked} detectors changed`)
+      if (result) console.log(`Stored facts derived for ${result.to} (${result.plan === 'fleet' ? 'whole fleet' : `day turn from ${result.from}`}): ${result.changed} of ${result.checked} detectors changed in ${result.ms} ms`)
     } catch (error) {
       console.error('Refreshing derived fleet fields failed', error)
     }

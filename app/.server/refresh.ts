@@ -1,30 +1,60 @@
 import type { Db } from './db'
-import { rederiveFleet, rederiveFleetInTurns } from './derivation'
+import { dayTurnCandidates, derivedDay, rederiveFleet, rederiveFleetInTurns, rederiveInTurns, setDerivedDay, turnPlan } from './derivation'
 import { listsChanged } from './list-query'
 import { officeToday } from './today'
 
 /**
- * Re-derives every detector's stored facts for `today`. A new day moves detectors from "up to date"
- * to "due soon" to "overdue", and troubles age out of the 30-day window, without anyone touching
- * them. Only changed rows are written.
+ * Re-derives every detector's stored facts for `today` at once (tests, scripts). A new day moves
+ * detectors from "up to date" to "due soon" to "overdue", and troubles age out of the 30-day window,
+ * without anyone touching them. Only changed rows are written.
  */
 export function refreshDerived(db: Db, today: string): { checked: number; changed: number } {
   const result = rederiveFleet(db, today)
+  setDerivedDay(db, today)
   if (result.changed > 0) listsChanged()
   return result
 }
 
-let lastDay: string | null = null
+export interface RefreshResult {
+  from: string | null
+  to: string
+  plan: 'candidates' | 'fleet'
+  checked: number
+  changed: number
+  ms: number
+}
+
+let running: Promise<RefreshResult | null> | null = null
 
 /**
- * Refreshes once per office day: at first use, then whenever the day has turned. Runs in chunks that
- * give the event loop back between them, so a start or a day turn does not hold requests up.
+ * Brings the stored facts to the office's day if it has turned since they were last derived (the day
+ * is kept in the database, so a restart does not redo it). A short turn re-derives only the detectors
+ * whose facts can change; a first start or a long gap walks the fleet. Either way the work runs in
+ * chunks that give the event loop back between them, so requests are answered meanwhile.
  */
-export async function refreshIfNewDay(db: Db, now = new Date()) {
-  const today = officeToday(now)
-  if (today === lastDay) return null
-  lastDay = today
-  const result = await rederiveFleetInTurns(db, today)
-  if (result.changed > 0) listsChanged()
-  return result
+export function refreshIfNewDay(db: Db, to = officeToday()): Promise<RefreshResult | null> {
+  if (running) return running
+  const work = (async () => {
+    const from = derivedDay(db)
+    const plan = turnPlan(from, to)
+    if (plan === 'none') return null
+    const started = performance.now()
+    let checked: number
+    let changed: number
+    if (plan === 'fleet') {
+      ;({ checked, changed } = await rederiveFleetInTurns(db, to))
+    } else {
+      const ids = dayTurnCandidates(db, from as string, to)
+      checked = ids.length
+      changed = await rederiveInTurns(db, ids, to)
+    }
+    setDerivedDay(db, to)
+    if (changed > 0) listsChanged()
+    return { from, to, plan, checked, changed, ms: Math.round(performance.now() - started) }
+  })()
+  // One refresh at a time: a tick that comes while one runs waits for it instead of starting another.
+  running = work.finally(() => {
+    running = null
+  })
+  return running
 }

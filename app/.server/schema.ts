@@ -489,3 +489,13 @@ export const savedViews = sqliteTable(
   },
   (t) => [uniqueIndex('saved_views_user_page_name_idx').on(t.userId, t.page, t.name)],
 )
+
+// Small facts about the process's own work, kept across restarts: e.g. the office day for which the
+// detectors' stored facts were last derived, so a restart does not derive them again.
+export const appState = sqliteTable('app_state', {
+  key: text('key').primaryKey(),
+  value: text('value').notNull(),
+  updatedAt: text('updated_at')
+    .notNull()
+    .default(sql`(strftime('%Y-%m-%dT%H:%M:%fZ','now'))`),
+})

@@ -92,6 +92,7 @@ export interface Derivation {
 
 // The window for "repeated troubles": the last 30 days, today included (the product's own call).
 export const TROUBLE_WINDOW_DAYS = 30
+export { OVERDUE_STEP_DAYS, OVERDUE_STEPS } from './triage'
 
 /** The latest result of each task, and the streak and outcome the schedule and risk depend on. */
 export function workFacts(results: readonly TaskResult[]): WorkFacts {

@@ -24,6 +24,10 @@ export interface TriageReason {
   text: string
 }
 
+// An overdue detector gains 2 points for each 30 days late, for up to 10 steps (30 points in all).
+export const OVERDUE_STEP_DAYS = 30
+export const OVERDUE_STEPS = 10
+
 // Weights are the product's own call, set so that a live trouble outranks paperwork and an
 // unreported fault outranks a late test; each reason shows its points so the order explains itself.
 export function triage(input: TriageInput): { score: number; reasons: TriageReason[] } {
@@ -34,8 +38,8 @@ export function triage(input: TriageInput): { score: number; reasons: TriageReas
   if (input.state === 'alarm' || input.state === 'supervisory') add('in-alarm', 45, `Showing ${input.state} now`)
   if (input.state === 'out-of-service') add('out-of-service', 35, 'Out of service: the duct is not protected')
   if (input.dueStatus === 'overdue') {
-    const months = Math.max(0, Math.floor(input.daysOverdue / 30))
-    add('overdue', Math.min(30, 10 + months * 2), `Overdue by ${input.daysOverdue} day${input.daysOverdue === 1 ? '' : 's'}`)
+    const months = Math.min(OVERDUE_STEPS, Math.max(0, Math.floor(input.daysOverdue / OVERDUE_STEP_DAYS)))
+    add('overdue', 10 + months * 2, `Overdue by ${input.daysOverdue} day${input.daysOverdue === 1 ? '' : 's'}`)
   }
   if (input.lastResult === 'fail') add('failed-test', 25, 'Failed its last test')
   if (input.diagnosisFailed) add('failed-diagnosis', 25, 'Last readings point at a wiring fault')

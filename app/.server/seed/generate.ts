@@ -415,5 +415,7 @@ export function seed(sqlite: Database.Database, scale: Scale, today: IsoDate): S
   }
 
   withBulkLoad(sqlite, ['events', 'readings', 'visits', 'visit_detectors', 'task_results', 'notifications'], writeFleet)
+  // Every detector's facts were derived for `today` above: the refresh starts from there.
+  sqlite.prepare("insert into app_state (key, value) values ('derived-day', ?) on conflict(key) do update set value = excluded.value").run(today)
   return counts
 }
