@@ -4,7 +4,7 @@ import { sql } from 'drizzle-orm'
 import { factDifferences } from '~/domain/derive'
 import type { Db } from './db'
 import { deriveInput, fleetInputs } from './derivation'
-import { tableCounts } from './schema'
+import { reasonCounts, tableCounts } from './schema'
 
 export interface Disagreement {
   check: 'history' | 'derived' | 'row-total' | 'foreign-key' | 'integrity' | 'visit-result'
@@ -46,6 +46,14 @@ export function checkDatabase(
     }
     const actual = db.get<{ n: number }>(sql.raw(`select count(*) as n from "${name}"`)).n
     if (actual !== rows) report({ check: 'row-total', message: `${name}: kept total ${rows}, count(*) ${actual}` })
+  }
+
+  // The open triage queue's kept totals, per reason.
+  for (const { code, n } of db.select().from(reasonCounts).all()) {
+    const actual = db.get<{ n: number }>(sql`
+      select count(*) as n from detectors
+      where risk_reasons != '' and acknowledged_at is null and (${code} = 'open' or instr(risk_reasons, ',' || ${code} || ',') > 0)`).n
+    if (actual !== n) report({ check: 'row-total', message: `open triage count "${code}": kept ${n}, count(*) ${actual}` })
   }
 
   // A finished visit's per-detector result is fail exactly when one of its task results failed.

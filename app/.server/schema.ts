@@ -499,3 +499,10 @@ export const appState = sqliteTable('app_state', {
     .notNull()
     .default(sql`(strftime('%Y-%m-%dT%H:%M:%fZ','now'))`),
 })
+
+// Open triage-queue totals, one row per reason code plus 'open' for the whole queue, kept by triggers
+// on detectors (drizzle/0007_reason_counts.sql) so Triage's counts cost a handful of row reads.
+export const reasonCounts = sqliteTable('reason_counts', {
+  code: text('code').primaryKey(),
+  n: integer('n').notNull().default(0),
+})

@@ -85,3 +85,25 @@ describe('database check', () => {
     expect(dirty.stdout.trim().split('\n').at(-1)).toBe('200 detectors checked, 1 disagreements')
   })
 })
+
+describe('open triage counts', () => {
+  const s = seededDb('small')
+  afterAll(() => s.cleanup())
+
+  it('stay equal to count(*) through acknowledging, a changed record and a new detector', () => {
+    const q = s.db.$client
+    const kept = () => Object.fromEntries((q.prepare('select code, n from reason_counts').all() as Array<{ code: string; n: number }>).map((r) => [r.code, r.n]))
+    const counted = (code: string) =>
+      (q.prepare(`select count(*) as n from detectors where risk_reasons != '' and acknowledged_at is null and (? = 'open' or risk_reasons like '%,' || ? || ',%')`).get(code, code) as { n: number }).n
+    const agree = () => {
+      for (const [code, n] of Object.entries(kept())) expect([code, n]).toEqual([code, counted(code)])
+    }
+    agree()
+    expect(kept().open).toBeGreaterThan(0)
+    q.prepare("update detectors set acknowledged_at = '2026-06-15T10:00:00.000Z' where id in (select id from detectors where risk_reasons != '' limit 5)").run()
+    agree()
+    q.prepare("update detectors set risk_reasons = ',overdue,' where id in (select id from detectors where risk_reasons = '' limit 3)").run()
+    q.prepare("update detectors set acknowledged_at = null where acknowledged_at is not null").run()
+    agree()
+  })
+})

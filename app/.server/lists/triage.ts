@@ -2,8 +2,10 @@ import { z } from 'zod'
 import { daysBetween } from '~/domain/dates'
 import { triage, type TriageReason } from '~/domain/triage'
 import { REASON_CODES, type ReasonCode } from '~/domain/vocabulary'
+import { eq } from 'drizzle-orm'
 import type { Db } from '../db'
-import { cached, idParam, multi, pagingSchema, runList, type ListResult, type ListSpec } from '../list-query'
+import { reasonCounts as reasonCountsTable } from '../schema'
+import { idParam, multi, pagingSchema, runList, type ListResult, type ListSpec } from '../list-query'
 import { deviceList, deviceQuery, type DeviceListRow } from './devices'
 
 export { REASON_CODES }
@@ -38,8 +40,14 @@ const spec: ListSpec<TriageQuery> = {
     assignee: 'a.name',
   },
   countedAs: 'detectors',
+  // The plain open queue, whole or by one reason, is a kept total: no count over the open detectors.
+  keptTotal(f) {
+    if (f.q || f.assignedTo || f.customer || f.acknowledged !== 'hide' || (f.reason?.length ?? 0) > 1) return null
+    return db => db.select({ n: reasonCountsTable.n }).from(reasonCountsTable).where(eq(reasonCountsTable.code, f.reason?.[0] ?? 'open')).get()?.n ?? 0
+  },
   where(f) {
-    const clauses = ['t.risk_score > 0']
+    // Open means the derivation gave the detector a reason; the same test the kept counts use.
+    const clauses = ["t.risk_reasons != ''"]
     const params: unknown[] = []
     if (f.acknowledged === 'hide') clauses.push('t.acknowledged_at is null')
     if (f.acknowledged === 'only') clauses.push('t.acknowledged_at is not null')
@@ -79,12 +87,9 @@ export function triageList(db: Db, query: TriageQuery, today: string): ListResul
   }
 }
 
-/** How many open (unacknowledged) detectors carry each reason: one pass over the table, kept briefly. */
-export function reasonCounts(db: Db): Record<(typeof REASON_CODES)[number], number> & { open: number } {
-  return cached('triage-reason-counts', 15_000, () => {
-    const sums = REASON_CODES.map((c) => `sum(${reasonSql(c)}) as "${c}"`).join(', ')
-    return db.$client
-      .prepare(`select count(*) as open, ${sums} from detectors t where t.risk_score > 0 and t.acknowledged_at is null`)
-      .get() as Record<(typeof REASON_CODES)[number], number> & { open: number }
-  })
+/** How many open (unacknowledged) detectors carry each reason, from the totals the triggers keep. */
+export function reasonCounts(db: Db): Record<ReasonCode | 'open', number> {
+  const counts = Object.fromEntries(['open', ...REASON_CODES].map((c) => [c, 0])) as Record<ReasonCode | 'open', number>
+  for (const row of db.select().from(reasonCountsTable).all()) counts[row.code as ReasonCode | 'open'] = row.n
+  return counts
 }
