@@ -102,15 +102,18 @@ export function derivationInputs(db: Db, sel: Selection, today: string): Derivat
     .where(onDetectors(sel, detectors.id))
     .orderBy(asc(detectors.id))
     .all()
+  if (rows.length === 0) return []
+  // The history by the ids just read: each is an index seek, not a scan of the table or the window.
+  const ids = rows.map((r) => r.id)
   const results = db
     .select({ detectorId: taskResults.detectorId, task: taskResults.task, doneOn: taskResults.doneOn, outcome: taskResults.outcome })
     .from(taskResults)
-    .where(onDetectors(sel, taskResults.detectorId))
+    .where(inArray(taskResults.detectorId, ids))
     .all()
   const loop = db
     .select({ detectorId: readings.detectorId, kind: readings.kind, value: readings.value, open: readings.open })
     .from(readings)
-    .where(and(onDetectors(sel, readings.detectorId), inArray(readings.kind, LOOP_KINDS)))
+    .where(and(inArray(readings.detectorId, ids), inArray(readings.kind, LOOP_KINDS)))
     .orderBy(asc(readings.detectorId), asc(readings.takenAt), asc(readings.id))
     .all()
   // Only troubles inside the window matter; an instant's day is its first ten characters.
@@ -119,9 +122,10 @@ export function derivationInputs(db: Db, sel: Selection, today: string): Derivat
     .from(events)
     .where(
       and(
-        eq(events.kind, 'trouble'),
+        inArray(events.detectorId, ids),
+        // Unary plus: keeps SQLite on events_detector_idx (a seek per id) instead of every recent trouble.
+        sql`+${events.kind} = 'trouble'`,
         gte(events.occurredAt, addDays(today, -(TROUBLE_WINDOW_DAYS - 1))),
-        onDetectors(sel, events.detectorId),
       ),
     )
     .all()
@@ -189,6 +193,8 @@ export function detectorIdRange(db: Db): { min: number; max: number } | null {
 }
 
 export const CHUNK = 2_000
+// Work done beside live requests takes smaller bites: each chunk holds the event loop for its span.
+export const TURN_CHUNK = 500
 
 /** Each chunk of the fleet's derivation inputs, in id order. */
 export function* fleetInputs(db: Db, today: string, chunk = CHUNK): Generator<DerivationInput[]> {
@@ -224,7 +230,7 @@ export function rederiveFleet(db: Db, today: string): { checked: number; changed
 export async function rederiveFleetInTurns(db: Db, today: string): Promise<{ checked: number; changed: number }> {
   let checked = 0
   let n = 0
-  for (const inputs of fleetInputs(db, today)) {
+  for (const inputs of fleetInputs(db, today, TURN_CHUNK)) {
     n += rederiveChunk(db, inputs, today)
     checked += inputs.length
     await new Promise((resolve) => setImmediate(resolve))
@@ -240,7 +246,12 @@ export async function rederiveFleetInTurns(db: Db, today: string): Promise<{ che
  */
 export function dayTurnCandidates(db: Db, from: string, to: string): number[] {
   const nextDue = detectors.nextDueOn
-  const ranges: SQL[] = [and(gte(nextDue, from), lte(nextDue, addDays(to, DUE_SOON_DAYS)))!]
+  const ranges: SQL[] = [
+    // Turning overdue: due on a day in [from, to).
+    and(gte(nextDue, from), lt(nextDue, to))!,
+    // Turning due soon: the planning window's far edge passed the due day.
+    and(gt(nextDue, addDays(from, DUE_SOON_DAYS)), lte(nextDue, addDays(to, DUE_SOON_DAYS)))!,
+  ]
   for (let k = 1; k <= OVERDUE_STEPS; k++) {
     ranges.push(and(gt(nextDue, addDays(from, -OVERDUE_STEP_DAYS * k)), lte(nextDue, addDays(to, -OVERDUE_STEP_DAYS * k)))!)
   }
@@ -264,7 +275,7 @@ export function dayTurnCandidates(db: Db, from: string, to: string): number[] {
 }
 
 /** Re-derives the given detectors in chunks, handing the event loop back between them. */
-export async function rederiveInTurns(db: Db, ids: readonly number[], today: string, chunk = CHUNK): Promise<number> {
+export async function rederiveInTurns(db: Db, ids: readonly number[], today: string, chunk = TURN_CHUNK): Promise<number> {
   let n = 0
   for (let i = 0; i < ids.length; i += chunk) {
     n += rederiveChunk(db, derivationInputs(db, { ids: ids.slice(i, i + chunk) }, today), today)

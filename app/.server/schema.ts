@@ -315,7 +315,8 @@ export const taskResults = sqliteTable(
     recordedAt: createdAt(),
   },
   (t) => [
-    index('task_results_detector_idx').on(t.detectorId, t.task, t.doneOn),
+    // Covers the derivation's read of a detector's history (outcome included: no table lookups).
+    index('task_results_history_idx').on(t.detectorId, t.task, t.doneOn, t.outcome),
     index('task_results_visit_idx').on(t.visitId),
   ],
 )
