@@ -6,7 +6,8 @@ import { safeReturnTo } from '~/utils/return-to'
 import { getDb } from './db'
 import { env, secureCookies } from './env'
 import { userForToken } from './repos/tokens'
-import { sessionStorage } from './sessions'
+import { BACKGROUND_HEADER } from '~/utils/fetch-json'
+import { sessionStorage, sessionUserWithoutTouch } from './sessions'
 
 export interface CurrentUser {
   id: number
@@ -93,6 +94,11 @@ export async function userFromRequest(request: Request): Promise<CurrentUser | n
   if (header?.startsWith('Bearer ')) {
     const userId = userForToken(getDb(), header.slice(7).trim())
     return userId === null ? null : loadUser(userId, 'token')
+  }
+  // A page's own timed refresh says so: it is not the person at work, so the idle timer keeps running.
+  if (request.headers.get(BACKGROUND_HEADER) === '1') {
+    const userId = await sessionUserWithoutTouch(request.headers.get('Cookie'))
+    return userId === null ? null : loadUser(userId, 'session')
   }
   const session = await sessionStorage.getSession(request.headers.get('Cookie'))
   const userId = session.get('userId')

@@ -1,5 +1,5 @@
 import { randomBytes } from 'node:crypto'
-import { createSessionStorage } from 'react-router'
+import { createCookie, createSessionStorage } from 'react-router'
 import { getDb, type Db } from './db'
 import { env, secureCookies, sessionSecret } from './env'
 
@@ -9,20 +9,47 @@ interface SessionData {
 
 const HOUR = 3_600_000
 
+const sessionCookie = createCookie('__dk_session', {
+  httpOnly: true,
+  sameSite: 'lax',
+  secure: secureCookies,
+  path: '/',
+  secrets: [sessionSecret],
+  maxAge: env.SESSION_MAX_AGE_HOURS * 3600,
+})
+
+/**
+ * The live session's data, or null once it is revoked, past its lifetime or idle too long. `touch`
+ * counts the request as activity (moving last_seen_at on); a timed refresh passes false.
+ */
+function readSession(id: string, touch: boolean): SessionData | null {
+  const q = getDb().$client
+  const row = q
+    .prepare('select user_id as userId, expires_at as expiresAt, last_seen_at as lastSeenAt, revoked_at as revokedAt from sessions where id = ?')
+    .get(id) as { userId: number; expiresAt: string; lastSeenAt: string; revokedAt: string | null } | undefined
+  if (!row || row.revokedAt) return null
+  const now = Date.now()
+  if (Date.parse(row.expiresAt) <= now) return null
+  if (now - Date.parse(row.lastSeenAt) > env.SESSION_IDLE_MINUTES * 60_000) return null
+  // Touch at most once a minute: every request would otherwise write.
+  if (touch && now - Date.parse(row.lastSeenAt) > 60_000) {
+    q.prepare('update sessions set last_seen_at = ? where id = ?').run(new Date(now).toISOString(), id)
+  }
+  return { userId: row.userId }
+}
+
+/** The session's user id for a request that must not count as activity (a page's timed refresh). */
+export async function sessionUserWithoutTouch(cookieHeader: string | null): Promise<number | null> {
+  const id = await sessionCookie.parse(cookieHeader)
+  return typeof id === 'string' && id ? (readSession(id, false)?.userId ?? null) : null
+}
+
 /**
  * Sessions live in the database; the cookie carries only a signed random id. Sign-out and an
  * administrator's deactivation revoke the record, so a copied cookie stops working at once.
  */
 export const sessionStorage = createSessionStorage<SessionData>({
-  cookie: {
-    name: '__dk_session',
-    httpOnly: true,
-    sameSite: 'lax',
-    secure: secureCookies,
-    path: '/',
-    secrets: [sessionSecret],
-    maxAge: env.SESSION_MAX_AGE_HOURS * 3600,
-  },
+  cookie: sessionCookie,
   async createData(data, expires) {
     const id = randomBytes(24).toString('base64url')
     const now = new Date()
@@ -34,19 +61,7 @@ export const sessionStorage = createSessionStorage<SessionData>({
     return id
   },
   async readData(id) {
-    const q = getDb().$client
-    const row = q
-      .prepare('select user_id as userId, expires_at as expiresAt, last_seen_at as lastSeenAt, revoked_at as revokedAt from sessions where id = ?')
-      .get(id) as { userId: number; expiresAt: string; lastSeenAt: string; revokedAt: string | null } | undefined
-    if (!row || row.revokedAt) return null
-    const now = Date.now()
-    if (Date.parse(row.expiresAt) <= now) return null
-    if (now - Date.parse(row.lastSeenAt) > env.SESSION_IDLE_MINUTES * 60_000) return null
-    // Touch at most once a minute: every request would otherwise write.
-    if (now - Date.parse(row.lastSeenAt) > 60_000) {
-      q.prepare('update sessions set last_seen_at = ? where id = ?').run(new Date(now).toISOString(), id)
-    }
-    return { userId: row.userId }
+    return readSession(id, true)
   },
   async updateData(id, data) {
     getDb().$client.prepare('update sessions set user_id = ? where id = ?').run(data.userId, id)

@@ -1,10 +1,12 @@
 import { createContext, useContext, useEffect, useMemo, useRef, useState } from 'react'
 import { useNavigate } from 'react-router'
-import useSWR from 'swr'
+import { can } from '~/domain/permissions'
 import type { Section } from '~/utils/sections'
 import { keysFor, SHORTCUTS, showChord } from '~/utils/shortcuts'
 import { useShortcut } from './keyboard'
 import { CommandDialog, CommandEmpty, CommandGroup, CommandInput, CommandItem, CommandList, Kbd } from './ui/command'
+import { useJson } from './use-json'
+import { useRole } from './use-role'
 import { addRecent, readRecent, type RecentItem } from '~/utils/recent'
 
 export interface PaletteAction {
@@ -42,9 +44,11 @@ interface SearchGroup {
 }
 
 const KIND_LABELS: Record<SearchGroup['kind'], string> = { customer: 'Customers', site: 'Sites', unit: 'Units', detector: 'Detectors' }
-const fetchJson = (url: string) => fetch(url, { headers: { Accept: 'application/json' } }).then((r) => (r.ok ? r.json() : { groups: [] }))
 
-export function CommandPalette({ sections }: { sections: Section[] }) {
+export function CommandPalette({ sections: offered }: { sections: Section[] }) {
+  const role = useRole()
+  // Only sections the role may open: the palette never leads to a refusal.
+  const sections = role ? offered.filter((s) => can(role, s.capability)) : []
   const [open, setOpen] = useState(false)
   const [text, setText] = useState('')
   const [recent, setRecent] = useState<RecentItem[]>([])
@@ -52,7 +56,7 @@ export function CommandPalette({ sections }: { sections: Section[] }) {
   const actions = useContext(ActionsContext)?.actions ?? []
   const q = text.trim()
   // Keep the last answer on screen while the next keystroke's answer is on its way.
-  const { data, isLoading } = useSWR<{ groups: SearchGroup[] }>(open && q.length > 0 ? `/api/search?q=${encodeURIComponent(q)}` : null, fetchJson, {
+  const { data, error, isLoading, retry } = useJson<{ groups: SearchGroup[] }>(open && q.length > 0 ? `/api/search?q=${encodeURIComponent(q)}` : null, {
     keepPreviousData: true,
     dedupingInterval: 2_000,
   })
@@ -78,6 +82,7 @@ export function CommandPalette({ sections }: { sections: Section[] }) {
   // should be the one Enter opens.
   const [highlight, setHighlight] = useState('')
   const values = [
+    ...(q && error ? ['retry-search'] : []),
     ...actions.filter((a) => matches(a.label)).map((a) => `action:${a.id}`),
     ...(q ? (data?.groups ?? []).flatMap((g) => g.items.map((i) => i.href)) : recent.map((r) => `recent:${r.href}`)),
     ...sections.filter((s) => matches(s.label)).map((s) => `section:${s.to}`),
@@ -92,6 +97,14 @@ export function CommandPalette({ sections }: { sections: Section[] }) {
     <CommandDialog open={open} onOpenChange={setOpen} label="Command palette" value={highlight} onValueChange={setHighlight}>
       <CommandInput value={text} onValueChange={setText} placeholder="Go to, find a customer, site, unit or detector, or run an action…" />
       <CommandList>
+        {q.length > 0 && error && (
+          <div role="alert" className="flex items-center justify-between gap-2 border-b border-line px-3 py-2 text-sm">
+            <span>Search failed: {error.message}</span>
+            <CommandItem value="retry-search" onSelect={() => void retry()}>
+              Try again
+            </CommandItem>
+          </div>
+        )}
         <CommandEmpty>{isLoading ? 'Searching…' : 'Nothing matches.'}</CommandEmpty>
         {actions.filter((a) => matches(a.label)).length > 0 && (
           <CommandGroup heading="Selection">

@@ -1,10 +1,12 @@
-import { flexRender, getCoreRowModel, useReactTable, type ColumnDef, type RowSelectionState, type VisibilityState } from '@tanstack/react-table'
+import { flexRender, getCoreRowModel, useReactTable, type ColumnDef, type RowSelectionState, type SortingState, type VisibilityState } from '@tanstack/react-table'
 import { elementScroll, observeElementOffset, useVirtualizer } from '@tanstack/react-virtual'
 import { useCallback, useEffect, useMemo, useRef, useState } from 'react'
 import { useNavigate, useSearchParams } from 'react-router'
-import useSWR from 'swr'
+import type { FetchError } from '~/utils/fetch-json'
 import { formatCount } from '~/utils/format'
 import { useShortcut } from './keyboard'
+import { LoadError } from './load-error'
+import { useJson } from './use-json'
 
 export interface Page<Row> {
   rows: Row[]
@@ -28,7 +30,12 @@ export interface DataTableProps<Row extends { id: number }> {
   onSelectionChange?: (next: RowSelectionState) => void
   /** Rows kept by id as they load, so the page can act on a selection it no longer shows. */
   onRowsSeen?: (rows: Row[]) => void
+  /** Refresh every loaded window this often while the tab is visible (a background request). */
   refreshMs?: number
+  /** Column ids the list route can sort by (its spec's `sorts`); only these headers are clickable. */
+  sortable?: readonly string[]
+  /** The route's order when the URL names none, so the header shows it. */
+  defaultSort?: { key: string; dir: 'asc' | 'desc' }
 }
 
 const PAGE = 100
@@ -39,23 +46,37 @@ const MAX_SCROLL_PX = 8_000_000
 // How long the visible range must rest before windows are fetched: a fast fling requests nothing.
 const SETTLE_MS = 90
 
-const fetchPage = async (url: string) => {
-  const res = await fetch(url, { headers: { Accept: 'application/json' } })
-  if (!res.ok) throw new Error((await res.json().catch(() => null))?.error ?? `HTTP ${res.status}`)
-  return res.json()
-}
-
 /** Loads one window of rows with SWR and reports it upward; renders nothing. */
-function WindowLoader<Row>({ url, onPage, refreshMs }: { url: string; onPage: (url: string, page: Page<Row> | undefined, error?: Error) => void; refreshMs?: number }) {
+function WindowLoader<Row>(p: { url: string; onPage: (url: string, page: Page<Row> | undefined, error?: FetchError) => void; refreshMs?: number; retryToken: number }) {
+  const { url, onPage } = p
   // No keepPreviousData here: each window must answer for its own URL. The table itself keeps the
   // previous filter's rows on screen until the new first window arrives.
-  const { data, error } = useSWR<Page<Row>>(url, fetchPage, {
-    revalidateOnFocus: true,
-    dedupingInterval: 4_000,
-    refreshInterval: refreshMs,
-  })
+  const { data, error, retry } = useJson<Page<Row>>(url, { revalidateOnFocus: true, dedupingInterval: 4_000, refreshMs: p.refreshMs })
   useEffect(() => onPage(url, data, error), [url, data, error, onPage])
+  const asked = useRef(p.retryToken)
+  useEffect(() => {
+    if (asked.current === p.retryToken) return
+    asked.current = p.retryToken
+    void retry()
+  }, [p.retryToken, retry])
   return null
+}
+
+/**
+ * A column's id names its row field and its sort key. Each column reads that field (so one without a
+ * cell still shows its value; TanStack leaves a column with no accessor blank and unsortable), and
+ * sorts only when the list route can sort by that id.
+ */
+function withAccessors<Row>(columns: ColumnDef<Row>[], sortable: readonly string[]): ColumnDef<Row>[] {
+  return columns.map((c) => {
+    const id = c.id ?? ('accessorKey' in c ? String(c.accessorKey) : undefined)
+    const hasAccessor = 'accessorFn' in c || 'accessorKey' in c
+    return {
+      ...c,
+      ...(id && !hasAccessor ? { accessorFn: (r: Row) => (r as Record<string, unknown>)[id] } : {}),
+      enableSorting: !!id && c.enableSorting !== false && sortable.includes(id),
+    } as ColumnDef<Row>
+  })
 }
 
 /**
@@ -69,7 +90,8 @@ export function DataTable<Row extends { id: number }>(p: DataTableProps<Row>) {
   const pages = useRef(new Map<string, Page<Row>>())
   const [version, setVersion] = useState(0)
   const [total, setTotal] = useState<{ n: number; exact: boolean } | null>(null)
-  const [error, setError] = useState<string | null>(null)
+  const [error, setError] = useState<FetchError | null>(null)
+  const [retryToken, setRetryToken] = useState(0)
   const [cursor, setCursor] = useState(0)
   const [windows, setWindows] = useState<number[]>([0])
   const [visibility, setVisibility] = useState<VisibilityState>({})
@@ -79,8 +101,9 @@ export function DataTable<Row extends { id: number }>(p: DataTableProps<Row>) {
   const lastQuery = useRef(p.query)
   const [shownQuery, setShownQuery] = useState(p.query)
 
-  const sort = params.get('sort')
-  const dir = (params.get('dir') as 'asc' | 'desc' | null) ?? 'asc'
+  const sort = params.get('sort') ?? p.defaultSort?.key ?? null
+  const dir = params.get('dir') === 'desc' || (!params.get('dir') && !params.get('sort') && p.defaultSort?.dir === 'desc') ? 'desc' : 'asc'
+  const sorting: SortingState = sort ? [{ id: sort, desc: dir === 'desc' }] : []
   const urlFor = useCallback((w: number, query = p.query) => `${p.endpoint}?${query ? `${query}&` : ''}offset=${w * PAGE}&limit=${PAGE}`, [p.endpoint, p.query])
 
   useEffect(() => {
@@ -101,10 +124,11 @@ export function DataTable<Row extends { id: number }>(p: DataTableProps<Row>) {
   }, [p.query])
 
   const onPage = useCallback(
-    (url: string, page: Page<Row> | undefined, err?: Error) => {
-      if (err) setError(err.message)
+    (url: string, page: Page<Row> | undefined, err?: FetchError) => {
+      if (err) setError(err)
       if (!page) return
-      setError(null)
+      // Rows from before a failed refresh stay on screen, and so does the word that they are old.
+      if (!err) setError(null)
       pages.current.set(url, page)
       if (url.startsWith(`${p.endpoint}?${p.query ? `${p.query}&` : ''}offset=`)) {
         setTotal({ n: page.total, exact: page.totalExact })
@@ -161,14 +185,34 @@ export function DataTable<Row extends { id: number }>(p: DataTableProps<Row>) {
     // eslint-disable-next-line react-hooks/exhaustive-deps
   }, [first, last, count, version, shownQuery, stale])
 
+  const sortableKey = (p.sortable ?? []).join()
+  // eslint-disable-next-line react-hooks/exhaustive-deps
+  const columns = useMemo(() => withAccessors(p.columns, p.sortable ?? []), [p.columns, sortableKey])
   const table = useReactTable({
     data: visibleRows,
-    columns: p.columns,
+    columns,
     getRowId: (r) => String(r.id),
     getCoreRowModel: getCoreRowModel(),
+    // The server sorts; a header click only changes `sort` and `dir` in the URL. One column at a
+    // time, ascending first, and a second click turns it round rather than dropping the order.
     manualSorting: true,
+    enableMultiSort: false,
+    enableSortingRemoval: false,
+    sortDescFirst: false,
+    onSortingChange: (u) => {
+      const next = (typeof u === 'function' ? u(sorting) : u)[0]
+      const q = new URLSearchParams(params)
+      if (next) {
+        q.set('sort', next.id)
+        q.set('dir', next.desc ? 'desc' : 'asc')
+      } else {
+        q.delete('sort')
+        q.delete('dir')
+      }
+      setParams(q, { replace: true })
+    },
     enableRowSelection: true,
-    state: { rowSelection: selection, columnVisibility: visibility, sorting: sort ? [{ id: sort, desc: dir === 'desc' }] : [] },
+    state: { rowSelection: selection, columnVisibility: visibility, sorting },
     onRowSelectionChange: (u) => setSelection(typeof u === 'function' ? u(selection) : u),
     onColumnVisibilityChange: (u) => {
       const next = typeof u === 'function' ? u(visibility) : u
@@ -176,16 +220,6 @@ export function DataTable<Row extends { id: number }>(p: DataTableProps<Row>) {
       localStorage.setItem(`ductkeeper:cols:${p.storageKey}`, JSON.stringify(next))
     },
   })
-
-  const setSort = (id: string) => {
-    const next = new URLSearchParams(params)
-    if (sort === id) next.set('dir', dir === 'asc' ? 'desc' : 'asc')
-    else {
-      next.set('sort', id)
-      next.set('dir', 'asc')
-    }
-    setParams(next, { replace: true })
-  }
 
   const moveTo = (i: number) => {
     const clamped = Math.max(0, Math.min(count - 1, i))
@@ -225,16 +259,20 @@ export function DataTable<Row extends { id: number }>(p: DataTableProps<Row>) {
   const minWidth = leaves.reduce((w, c) => w + ((c.columnDef.size ?? 1) < 10 ? (c.columnDef.minSize ?? 120) : (c.columnDef.size as number)), 0)
   const selected = Object.keys(selection).length
 
+  const retry = () => {
+    setError(null)
+    setRetryToken((n) => n + 1)
+  }
+
   return (
     <div className="rounded-md border border-line bg-panel">
       {windows.map((w) => (
-        <WindowLoader<Row> key={urlFor(w)} url={urlFor(w)} onPage={onPage} refreshMs={p.refreshMs} />
+        <WindowLoader<Row> key={urlFor(w)} url={urlFor(w)} onPage={onPage} refreshMs={p.refreshMs} retryToken={retryToken} />
       ))}
       <div className="flex flex-wrap items-center justify-between gap-2 border-b border-line px-3 py-2 text-xs text-ink-soft">
         <span role="status" aria-live="polite">
-          {total === null ? 'Loading…' : `${formatCount(total.n)}${total.exact ? '' : ' (recent count)'} ${p.label}`}
+          {total === null ? (error ? 'Not loaded' : 'Loading…') : `${formatCount(total.n)}${total.exact ? '' : ' (recent count)'} ${p.label}`}
           {selected > 0 && ` · ${formatCount(selected)} selected (Esc clears)`}
-          {error && <span className="ml-2 text-late">Could not load: {error}</span>}
         </span>
         <details className="relative">
           <summary className="cursor-pointer rounded-sm px-2 py-0.5 hover:bg-sunken">Columns</summary>
@@ -248,26 +286,34 @@ export function DataTable<Row extends { id: number }>(p: DataTableProps<Row>) {
           </div>
         </details>
       </div>
+      {error && <LoadError error={error} onRetry={retry} what={p.label} className="m-2" />}
       <div ref={scrollRef} className="relative h-[calc(100dvh-15rem)] min-h-80 overflow-auto" tabIndex={-1}>
         <div role="table" aria-label={p.label} aria-rowcount={count + 1} style={{ minWidth }}>
           <div role="rowgroup" className="sticky top-0 z-[1] border-b border-line bg-sunken">
             {table.getHeaderGroups().map((hg) => (
               <div role="row" key={hg.id} className="grid" style={{ gridTemplateColumns: grid }}>
                 {hg.headers.map((h) => {
+                  const canSort = h.column.getCanSort()
                   const sorted = h.column.getIsSorted()
                   return (
                     <div
                       role="columnheader"
                       key={h.id}
-                      aria-sort={sorted ? (sorted === 'desc' ? 'descending' : 'ascending') : undefined}
+                      aria-sort={canSort ? (sorted === 'desc' ? 'descending' : sorted === 'asc' ? 'ascending' : 'none') : undefined}
                       className="truncate px-3 py-2 text-left text-xs font-medium text-ink-soft uppercase"
                     >
-                      {h.column.getCanSort() ? (
-                        <button type="button" onClick={() => setSort(h.column.id)} className="uppercase hover:text-ink">
-                          {flexRender(h.column.columnDef.header, h.getContext())}
-                          <span aria-hidden="true" className="ml-1">
-                            {sorted === 'asc' ? '▲' : sorted === 'desc' ? '▼' : ''}
+                      {canSort ? (
+                        <button
+                          type="button"
+                          onClick={h.column.getToggleSortingHandler()}
+                          className={`group inline-flex max-w-full items-center gap-1 uppercase hover:text-ink ${sorted ? 'text-ink' : ''}`}
+                        >
+                          {/* A narrow column shortens its name, never the arrow. */}
+                          <span className="truncate">{flexRender(h.column.columnDef.header, h.getContext())}</span>
+                          <span aria-hidden="true" className={`shrink-0 ${sorted ? '' : 'text-ink-faint/60 group-hover:text-ink-faint'}`}>
+                            {sorted === 'asc' ? '▲' : sorted === 'desc' ? '▼' : '↕'}
                           </span>
+                          <span className="sr-only">{sorted === 'asc' ? ', sorted ascending' : sorted === 'desc' ? ', sorted descending' : ', not sorted'}</span>
                         </button>
                       ) : (
                         flexRender(h.column.columnDef.header, h.getContext())

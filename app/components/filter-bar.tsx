@@ -3,32 +3,47 @@ import { useSearchParams } from 'react-router'
 import { useShortcut } from './keyboard'
 import { inputClass } from './ui/page-header'
 
-export interface FilterOption {
-  param: string
-  label: string
-  /** What the empty choice means, when it is not "any". */
-  anyLabel?: string
-  options: Array<{ value: string; label: string }>
-}
+export type FilterOption =
+  | {
+      kind?: 'select'
+      param: string
+      label: string
+      /** What the empty choice means, when it is not "any". */
+      anyLabel?: string
+      options: Array<{ value: string; label: string }>
+    }
+  | { kind: 'date'; param: string; label: string }
 
 /** The filters of a list page, kept in the URL so a view can be bookmarked and shared. */
 export function FilterBar({ placeholder, filters, children }: { placeholder: string; filters: FilterOption[]; children?: React.ReactNode }) {
   const [params, setParams] = useSearchParams()
-  const [text, setText] = useState(params.get('q') ?? '')
+  const urlText = params.get('q') ?? ''
+  const [text, setText] = useState(urlText)
   const input = useRef<HTMLInputElement>(null)
+  // The text this field last put in the URL. Any other change of `q` (a saved view, Back, a link)
+  // comes from outside and replaces what the field shows; otherwise the field would write its old
+  // text back over it.
+  const written = useRef<string | null>(null)
   useShortcut('focus-filter', () => input.current?.focus())
+
+  useEffect(() => {
+    if (urlText === written.current) return
+    written.current = urlText
+    setText(urlText)
+  }, [urlText])
 
   // Typing settles for a moment before the URL (and so the query) changes.
   useEffect(() => {
     const t = setTimeout(() => {
-      if ((params.get('q') ?? '') === text.trim()) return
+      if (urlText === text.trim()) return
       const next = new URLSearchParams(params)
       if (text.trim()) next.set('q', text.trim())
       else next.delete('q')
+      written.current = text.trim()
       setParams(next, { replace: true })
     }, 250)
     return () => clearTimeout(t)
-  }, [text, params, setParams])
+  }, [text, urlText, params, setParams])
 
   const set = (param: string, value: string) => {
     const next = new URLSearchParams(params)
@@ -58,7 +73,24 @@ export function FilterBar({ placeholder, filters, children }: { placeholder: str
           className={`${inputClass} w-64`}
         />
       </label>
-      {filters.map((f) => (
+      {filters.map((f) =>
+        f.kind === 'date' ? (
+          <label key={f.param} className="flex flex-col gap-1 text-xs font-medium text-ink-soft">
+            {f.label}
+            <input
+              type="date"
+              value={params.get(f.param) ?? ''}
+              onChange={(e) => set(f.param, e.target.value)}
+              onKeyDown={(e) => {
+                if (e.key === 'Escape') {
+                  e.preventDefault()
+                  e.currentTarget.blur()
+                }
+              }}
+              className={inputClass}
+            />
+          </label>
+        ) : (
         <label key={f.param} className="flex flex-col gap-1 text-xs font-medium text-ink-soft">
           {f.label}
           <select
@@ -80,7 +112,8 @@ export function FilterBar({ placeholder, filters, children }: { placeholder: str
             ))}
           </select>
         </label>
-      ))}
+        ),
+      )}
       {active > 0 && (
         <button
           type="button"

@@ -1,6 +1,7 @@
 import { useEffect, useState } from 'react'
-import { SHORTCUTS, showChord, type Shortcut } from '~/utils/shortcuts'
+import { shortcutsFor, showChord, type Shortcut } from '~/utils/shortcuts'
 import { useShortcut } from './keyboard'
+import { useRole } from './use-role'
 import { Kbd } from './ui/command'
 
 const GROUPS: Shortcut['group'][] = ['Anywhere', 'Lists', 'Go to']
@@ -8,6 +9,7 @@ const GROUPS: Shortcut['group'][] = ['Anywhere', 'Lists', 'Go to']
 /** Every shortcut, from the one list that also drives the keys and the palette. */
 export function HelpOverlay({ allowed }: { allowed: (s: Shortcut) => boolean }) {
   const [open, setOpen] = useState(false)
+  const shortcuts = shortcutsFor(useRole())
   useShortcut('help', () => setOpen((o) => !o))
   useShortcut('close', () => setOpen(false), open)
   useEffect(() => {
@@ -40,7 +42,7 @@ export function HelpOverlay({ allowed }: { allowed: (s: Shortcut) => boolean }) 
             <section key={g} aria-label={g}>
               <h3 className="text-xs font-medium tracking-wide text-ink-faint uppercase">{g}</h3>
               <dl className="mt-2 space-y-1.5 text-sm">
-                {SHORTCUTS.filter((s) => s.group === g && allowed(s)).map((s) => (
+                {shortcuts.filter((s) => s.group === g && allowed(s)).map((s) => (
                   <div key={s.id} className="flex items-center justify-between gap-3">
                     <dt>{s.label}</dt>
                     <dd className="flex shrink-0 gap-1">

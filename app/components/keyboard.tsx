@@ -1,6 +1,7 @@
 import { createContext, useCallback, useContext, useEffect, useMemo, useRef } from 'react'
 import { useNavigate } from 'react-router'
-import { chordOf, SHORTCUTS, type ShortcutId } from '~/utils/shortcuts'
+import { chordOf, SHORTCUTS, shortcutsFor, type ShortcutId } from '~/utils/shortcuts'
+import { useRole } from './use-role'
 
 type Handler = (e: KeyboardEvent) => void
 interface Registry {
@@ -27,6 +28,10 @@ export function KeyboardProvider({ children }: { children: React.ReactNode }) {
   const handlers = useRef(new Map<ShortcutId, Handler[]>())
   const pending = useRef<{ first: string; at: number } | null>(null)
   const navigate = useNavigate()
+  // `g` then a letter leads only to sections the role may open; the others' keys do nothing.
+  const role = useRole()
+  const usable = useRef(new Set<ShortcutId>())
+  usable.current = useMemo(() => new Set(shortcutsFor(role).map((s) => s.id)), [role])
 
   const register = useCallback((id: ShortcutId, handler: Handler) => {
     const list = handlers.current.get(id) ?? []
@@ -51,7 +56,7 @@ export function KeyboardProvider({ children }: { children: React.ReactNode }) {
         return
       }
       const shortcut = SHORTCUTS.find((s) => s.keys.includes(typed))
-      if (!shortcut) return
+      if (!shortcut || !usable.current.has(shortcut.id)) return
       const list = handlers.current.get(shortcut.id)
       const handler = list?.[list.length - 1]
       if (handler) {

@@ -17,6 +17,9 @@ export function ListPage<Row extends { id: number }>(p: {
   columns: ColumnDef<Row>[]
   rowHref: (r: Row) => string
   note?: React.ReactNode
+  /** The list route's sort keys and default order (from its spec, through the page's loader). */
+  sortable: readonly string[]
+  defaultSort?: { key: string; dir: 'asc' | 'desc' }
 }) {
   const [params] = useSearchParams()
   const query = useMemo(() => listQuery(params), [params])
@@ -26,7 +29,16 @@ export function ListPage<Row extends { id: number }>(p: {
       <FilterBar placeholder={p.placeholder} filters={p.filters}>
         <SavedViews page={p.page} query={query} />
       </FilterBar>
-      <DataTable<Row> endpoint={p.endpoint} query={query} columns={p.columns} rowHref={p.rowHref} label={p.label} storageKey={p.page} />
+      <DataTable<Row>
+        endpoint={p.endpoint}
+        query={query}
+        columns={p.columns}
+        rowHref={p.rowHref}
+        label={p.label}
+        storageKey={p.page}
+        sortable={p.sortable}
+        defaultSort={p.defaultSort}
+      />
     </div>
   )
 }

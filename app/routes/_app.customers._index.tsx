@@ -1,6 +1,6 @@
 import type { ColumnDef } from '@tanstack/react-table'
 import { requireUser } from '~/.server/auth'
-import type { CustomerListRow } from '~/.server/lists/customers'
+import { customerList, type CustomerListRow } from '~/.server/lists/customers'
 import { linkCell, monoCell, selectColumn } from '~/components/columns'
 import { ListPage, options } from '~/components/list-page'
 import type { RouteAccess } from '~/domain/permissions'
@@ -11,7 +11,7 @@ export const meta: Route.MetaFunction = () => [{ title: 'Customers · Ductkeeper
 
 export async function loader({ request }: Route.LoaderArgs) {
   await requireUser(request, 'view:fleet')
-  return null
+  return { sortable: Object.keys(customerList.sorts), defaultSort: customerList.defaultSort }
 }
 
 const columns: ColumnDef<CustomerListRow>[] = [
@@ -24,9 +24,11 @@ const columns: ColumnDef<CustomerListRow>[] = [
   { id: 'inTrouble', header: 'In trouble', size: 100, cell: ({ row }) => <span className={`font-mono text-xs ${row.original.inTrouble ? 'text-trouble' : ''}`}>{row.original.inTrouble}</span> },
 ]
 
-export default function Customers() {
+export default function Customers({ loaderData }: Route.ComponentProps) {
   return (
     <ListPage<CustomerListRow>
+      sortable={loaderData.sortable}
+      defaultSort={loaderData.defaultSort}
       title="Customers"
       page="customers"
       endpoint="/api/customers"

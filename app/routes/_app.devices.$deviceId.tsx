@@ -53,7 +53,17 @@ export default function Device({ loaderData }: Route.ComponentProps) {
     <div className="mx-auto max-w-6xl space-y-6">
       <header>
         <nav aria-label="Breadcrumb" className="text-sm text-ink-faint">
-          {d.customerName} · {d.siteName} · {d.unitTag}
+          <Link to={`/customers/${d.customerId}`} className="text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink">
+            {d.customerName}
+          </Link>
+          {' · '}
+          <Link to={`/sites/${d.siteId}`} className="text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink">
+            {d.siteName}
+          </Link>
+          {' · '}
+          <Link to={`/units/${d.unitId}`} className="text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink">
+            {d.unitTag}
+          </Link>
         </nav>
         <div className="mt-1 flex flex-wrap items-center gap-3">
           <h1 className="font-mono text-2xl font-semibold">{d.tag}</h1>

@@ -7,7 +7,7 @@ import { DataTable } from '~/components/data-table'
 import { FilterBar, listQuery, type FilterOption } from '~/components/filter-bar'
 import { SavedViews } from '~/components/saved-views'
 import { PageHeader } from '~/components/ui/page-header'
-import type { DeviceListRow } from '~/.server/lists/devices'
+import { deviceList, type DeviceListRow } from '~/.server/lists/devices'
 import type { RouteAccess } from '~/domain/permissions'
 import type { Route } from './+types/_app.devices._index'
 
@@ -17,7 +17,7 @@ export const meta: Route.MetaFunction = () => [{ title: 'Detectors · Ductkeeper
 
 export async function loader({ request }: Route.LoaderArgs) {
   await requireUser(request, 'view:fleet')
-  return null
+  return { sortable: Object.keys(deviceList.sorts), defaultSort: deviceList.defaultSort }
 }
 
 const FILTERS: FilterOption[] = [
@@ -41,11 +41,11 @@ const columns: ColumnDef<DeviceListRow>[] = [
   { id: 'environment', header: 'Location', size: 96, cell: ({ row }) => <span className="capitalize">{row.original.environment}</span> },
   { id: 'delay', header: 'Delay', size: 132, cell: badgeCell((r) => r.delay) },
   { id: 'loop', header: 'Loop', size: 112, cell: badgeCell((r) => r.loop) },
-  { id: 'risk', header: 'Risk', size: 64, cell: monoCell((r) => r.risk) },
+  { id: 'risk', header: 'Risk', size: 76, cell: monoCell((r) => r.risk) },
   { id: 'lastFunctionalOn', header: 'Last test', size: 108, cell: monoCell((r) => r.lastFunctionalOn) },
 ]
 
-export default function Devices() {
+export default function Devices({ loaderData }: Route.ComponentProps) {
   const [params] = useSearchParams()
   const query = useMemo(() => listQuery(params), [params])
   return (
@@ -54,7 +54,16 @@ export default function Devices() {
       <FilterBar placeholder="Tag, serial, site, street or town" filters={FILTERS}>
         <SavedViews page="devices" query={query} />
       </FilterBar>
-      <DataTable<DeviceListRow> endpoint="/api/devices" query={query} columns={columns} rowHref={(r) => `/devices/${r.id}`} label="detectors" storageKey="devices" />
+      <DataTable<DeviceListRow>
+        endpoint="/api/devices"
+        query={query}
+        columns={columns}
+        rowHref={(r) => `/devices/${r.id}`}
+        label="detectors"
+        storageKey="devices"
+        sortable={loaderData.sortable}
+        defaultSort={loaderData.defaultSort}
+      />
     </div>
   )
 }

@@ -1,7 +1,7 @@
 import type { ColumnDef } from '@tanstack/react-table'
 import { Link } from 'react-router'
 import { requireUser } from '~/.server/auth'
-import type { EventListRow } from '~/.server/lists/events'
+import { eventList, eventQuery, type EventListRow } from '~/.server/lists/events'
 import { linkCell, monoCell, selectColumn } from '~/components/columns'
 import { ListPage, options } from '~/components/list-page'
 import type { RouteAccess } from '~/domain/permissions'
@@ -12,13 +12,17 @@ export const meta: Route.MetaFunction = () => [{ title: 'Events · Ductkeeper' }
 
 export async function loader({ request }: Route.LoaderArgs) {
   await requireUser(request, 'view:fleet')
-  return null
+  // The headers offer exactly the orders the list route accepts with the current filters: across
+  // all events only time, within one site or detector every column.
+  const url = new URL(request.url)
+  const within = { site: url.searchParams.get('site') ?? undefined, detector: url.searchParams.get('detector') ?? undefined }
+  const sortable = Object.keys(eventList.sorts).filter((sort) => eventQuery.safeParse({ ...within, sort }).success)
+  return { sortable, defaultSort: eventList.defaultSort }
 }
 
 const KINDS = ['alarm', 'trouble', 'supervisory', 'restore', 'test', 'reset', 'cleaning', 'notice', 'change'] as const
 const GLYPH: Record<string, string> = { alarm: '◆', trouble: '▲', supervisory: '◆', restore: '✓', test: '⚑', reset: '↺', cleaning: '✧', notice: '☎', change: '✎' }
 
-// Across all events only time sorts (an index serves it); the other columns sort within a site or detector.
 const columns: ColumnDef<EventListRow>[] = [
   selectColumn(),
   { id: 'occurredAt', header: 'When (UTC)', size: 150, cell: monoCell((r) => r.occurredAt.slice(0, 16).replace('T', ' ')) },
@@ -26,7 +30,6 @@ const columns: ColumnDef<EventListRow>[] = [
     id: 'kind',
     header: 'Kind',
     size: 130,
-    enableSorting: false,
     cell: ({ row }) => (
       <span className="capitalize">
         <span aria-hidden="true" className="mr-1.5 font-mono text-ink-faint">
@@ -36,8 +39,8 @@ const columns: ColumnDef<EventListRow>[] = [
       </span>
     ),
   },
-  { id: 'detail', header: 'Detail', size: 2, minSize: 220, enableSorting: false, cell: ({ row }) => row.original.detail ?? <span className="text-ink-faint">—</span> },
-  { id: 'detector', header: 'Detector', size: 110, enableSorting: false, cell: ({ row }) =>
+  { id: 'detail', header: 'Detail', size: 2, minSize: 220, cell: ({ row }) => row.original.detail ?? <span className="text-ink-faint">—</span> },
+  { id: 'detector', header: 'Detector', size: 110, cell: ({ row }) =>
       row.original.detectorId ? (
         <Link to={`/devices/${row.original.detectorId}`} className="font-mono hover:underline" tabIndex={-1}>
           {row.original.detectorTag}
@@ -46,13 +49,15 @@ const columns: ColumnDef<EventListRow>[] = [
         <span className="text-ink-faint">site</span>
       ),
   },
-  { id: 'site', header: 'Site', size: 2, minSize: 200, enableSorting: false, cell: linkCell((r) => `/sites/${r.siteId}`, (r) => r.site) },
-  { id: 'by', header: 'By', size: 140, enableSorting: false, cell: ({ row }) => row.original.by ?? <span className="text-ink-faint">panel</span> },
+  { id: 'site', header: 'Site', size: 2, minSize: 200, cell: linkCell((r) => `/sites/${r.siteId}`, (r) => r.site) },
+  { id: 'by', header: 'By', size: 140, cell: ({ row }) => row.original.by ?? <span className="text-ink-faint">panel</span> },
 ]
 
-export default function Events() {
+export default function Events({ loaderData }: Route.ComponentProps) {
   return (
     <ListPage<EventListRow>
+      sortable={loaderData.sortable}
+      defaultSort={loaderData.defaultSort}
       title="Events"
       page="events"
       endpoint="/api/events"

@@ -1,6 +1,6 @@
 import type { ColumnDef } from '@tanstack/react-table'
 import { requireUser } from '~/.server/auth'
-import type { SiteListRow } from '~/.server/lists/sites'
+import { siteList, type SiteListRow } from '~/.server/lists/sites'
 import { linkCell, monoCell, selectColumn } from '~/components/columns'
 import { ListPage } from '~/components/list-page'
 import type { RouteAccess } from '~/domain/permissions'
@@ -11,7 +11,7 @@ export const meta: Route.MetaFunction = () => [{ title: 'Sites · Ductkeeper' }]
 
 export async function loader({ request }: Route.LoaderArgs) {
   await requireUser(request, 'view:fleet')
-  return null
+  return { sortable: Object.keys(siteList.sorts), defaultSort: siteList.defaultSort }
 }
 
 const delay = (s: number) => (s === 0 ? 'at once' : `${s / 60} min`)
@@ -19,20 +19,22 @@ const columns: ColumnDef<SiteListRow>[] = [
   selectColumn(),
   { id: 'name', header: 'Site', size: 2, minSize: 220, cell: linkCell((r) => `/sites/${r.id}`, (r) => r.name) },
   { id: 'customer', header: 'Customer', size: 1.3, minSize: 160, cell: ({ row }) => <span className="text-ink-soft">{row.original.customer}</span> },
-  { id: 'street', header: 'Street', size: 1.3, minSize: 160 },
-  { id: 'city', header: 'Town', size: 130 },
-  { id: 'region', header: 'Region', size: 80, cell: monoCell((r) => r.region) },
+  { accessorKey: 'street', header: 'Street', size: 1.3, minSize: 160 },
+  { accessorKey: 'city', header: 'Town', size: 130 },
+  { id: 'region', header: 'Region', size: 92, cell: monoCell((r) => r.region) },
   { id: 'codeBasis', header: 'Code', size: 90, cell: ({ row }) => (row.original.codeBasis === 'imc' ? 'IMC' : 'NFPA 90A') },
-  { id: 'monitoring', header: 'Monitoring', size: 1.2, minSize: 160 },
-  { id: 'delayPolicySeconds', header: 'Delay policy', size: 104, cell: ({ row }) => delay(row.original.delayPolicySeconds) },
+  { accessorKey: 'monitoring', header: 'Monitoring', size: 1.2, minSize: 160, cell: ({ row }) => row.original.monitoring ?? <span className="text-ink-faint">None on record</span> },
+  { id: 'delayPolicySeconds', header: 'Delay policy', size: 124, cell: ({ row }) => delay(row.original.delayPolicySeconds) },
   { id: 'detectors', header: 'Detectors', size: 92, cell: monoCell((r) => r.detectors) },
   { id: 'overdue', header: 'Overdue', size: 84, cell: ({ row }) => <span className={`font-mono text-xs ${row.original.overdue ? 'text-late' : ''}`}>{row.original.overdue}</span> },
   { id: 'nextVisitOn', header: 'Next visit', size: 108, cell: monoCell((r) => r.nextVisitOn) },
 ]
 
-export default function Sites() {
+export default function Sites({ loaderData }: Route.ComponentProps) {
   return (
     <ListPage<SiteListRow>
+      sortable={loaderData.sortable}
+      defaultSort={loaderData.defaultSort}
       title="Sites"
       page="sites"
       endpoint="/api/sites"

@@ -1,19 +1,23 @@
 import type { ColumnDef, RowSelectionState } from '@tanstack/react-table'
 import { useMemo, useState } from 'react'
 import { useSearchParams } from 'react-router'
-import useSWR, { useSWRConfig } from 'swr'
+import { useSWRConfig } from 'swr'
 import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
-import type { TriageRow } from '~/.server/lists/triage'
+import { deviceList } from '~/.server/lists/devices'
+import { triageQuery, type TriageRow } from '~/.server/lists/triage'
 import { officeToday } from '~/.server/today'
 import { Caution } from '~/components/caution'
 import { badgeCell, linkCell, monoCell, selectColumn } from '~/components/columns'
 import { usePaletteActions } from '~/components/command-palette'
 import { DataTable } from '~/components/data-table'
 import { FilterBar, listQuery } from '~/components/filter-bar'
+import { LoadError } from '~/components/load-error'
 import { SavedViews } from '~/components/saved-views'
+import { useJson } from '~/components/use-json'
 import { buttonClass, inputClass, Notice, PageHeader, quietButtonClass } from '~/components/ui/page-header'
 import { can, type RouteAccess } from '~/domain/permissions'
+import { FetchError, fetchJson } from '~/utils/fetch-json'
 import { formatCount } from '~/utils/format'
 import type { Route } from './+types/_app.triage'
 
@@ -24,8 +28,20 @@ export const meta: Route.MetaFunction = () => [{ title: 'Triage · Ductkeeper' }
 export async function loader({ request }: Route.LoaderArgs) {
   const user = await requireUser(request, 'view:fleet')
   const technicians = getDb().$client.prepare("select id, name from users where role = 'technician' and active = 1 order by name").all() as Array<{ id: number; name: string }>
-  return { technicians, today: officeToday(), canTriage: can(user.role, 'triage:fleet'), canSchedule: can(user.role, 'schedule:visits') }
+  return {
+    technicians,
+    today: officeToday(),
+    canTriage: can(user.role, 'triage:fleet'),
+    canSchedule: can(user.role, 'schedule:visits'),
+    // The queue is the detectors list narrowed: it sorts as that list does, worst risk first.
+    sortable: triageQuery.shape.sort.unwrap().options as string[],
+    defaultSort: deviceList.defaultSort,
+  }
 }
+
+// The queue refreshes itself this often while the tab is visible, marked as background so that a
+// screen left open does not keep its session alive.
+const REFRESH_MS = 20_000
 
 const REASON_LABELS: Record<string, string> = {
   'in-trouble': 'In trouble',
@@ -42,7 +58,7 @@ const REASON_LABELS: Record<string, string> = {
 
 const columns: ColumnDef<TriageRow>[] = [
   selectColumn(),
-  { id: 'risk', header: 'Risk', size: 64, cell: monoCell((r) => r.risk) },
+  { id: 'risk', header: 'Risk', size: 76, cell: monoCell((r) => r.risk) },
   { id: 'tag', header: 'Tag', size: 104, cell: linkCell((r) => `/devices/${r.id}`, (r) => r.tag, true) },
   {
     id: 'reasons',
@@ -67,7 +83,7 @@ interface Answer {
 }
 
 export default function Triage({ loaderData }: Route.ComponentProps) {
-  const { technicians, today, canTriage, canSchedule } = loaderData
+  const { technicians, today, canTriage, canSchedule, sortable, defaultSort } = loaderData
   const [params, setParams] = useSearchParams()
   const query = useMemo(() => listQuery(params), [params])
   const [selection, setSelection] = useState<RowSelectionState>({})
@@ -77,7 +93,7 @@ export default function Triage({ loaderData }: Route.ComponentProps) {
   const [busy, setBusy] = useState(false)
   const { mutate } = useSWRConfig()
   // The counts ride along with any window of the queue; this one asks for the smallest.
-  const { data: summary } = useSWR<Answer>('/api/triage?limit=1', (u: string) => fetch(u).then((r) => r.json()), { refreshInterval: 20_000 })
+  const { data: summary, error: summaryError, retry: retrySummary } = useJson<Answer>('/api/triage?limit=1', { refreshMs: REFRESH_MS })
   const ids = Object.keys(selection).map(Number)
   const activeReasons = new Set((params.get('reason') ?? '').split(',').filter(Boolean))
 
@@ -85,14 +101,13 @@ export default function Triage({ loaderData }: Route.ComponentProps) {
     if (ids.length === 0) return setNotice({ tone: 'error', text: 'Select detectors first: x on a row, Shift+j/k to extend.' })
     setBusy(true)
     try {
-      const res = await fetch('/api/triage', { method: 'POST', headers: { 'Content-Type': 'application/json' }, body: JSON.stringify({ ...body, ids }) })
-      const answer = await res.json()
-      setNotice(res.ok ? { tone: 'ok', text: answer.message } : { tone: 'error', text: answer.issues?.[0]?.message ?? answer.error })
-      if (res.ok) {
-        setSelection({})
-        // The queue changes under everyone's feet: refetch every window of it.
-        await mutate((key) => typeof key === 'string' && key.startsWith('/api/triage'))
-      }
+      const answer = await fetchJson<{ message: string }>('/api/triage', { method: 'POST', json: { ...body, ids } })
+      setNotice({ tone: 'ok', text: answer.message })
+      setSelection({})
+      // The queue changes under everyone's feet: refetch every window of it.
+      await mutate((key) => typeof key === 'string' && key.startsWith('/api/triage'))
+    } catch (e) {
+      setNotice({ tone: 'error', text: e instanceof FetchError ? e.message : String(e) })
     } finally {
       setBusy(false)
     }
@@ -124,7 +139,8 @@ export default function Triage({ loaderData }: Route.ComponentProps) {
 
   return (
     <div className="mx-auto max-w-[100rem]">
-      <PageHeader title="Triage">{summary ? `${formatCount(summary.counts.open)} open · ranked by risk, worst first` : 'Loading…'}</PageHeader>
+      <PageHeader title="Triage">{summary ? `${formatCount(summary.counts.open)} open · ranked by risk, worst first` : summaryError ? 'Counts not loaded' : 'Loading…'}</PageHeader>
+      {summaryError && <LoadError error={summaryError} onRetry={() => void retrySummary()} what="the counts" className="mb-3" />}
 
       <section aria-label="Reasons" className="mb-3 flex flex-wrap gap-1.5">
         {Object.entries(REASON_LABELS).map(([code, label]) => {
@@ -203,7 +219,9 @@ export default function Triage({ loaderData }: Route.ComponentProps) {
         storageKey="triage"
         selection={selection}
         onSelectionChange={setSelection}
-        refreshMs={20_000}
+        refreshMs={REFRESH_MS}
+        sortable={sortable}
+        defaultSort={defaultSort}
       />
     </div>
   )

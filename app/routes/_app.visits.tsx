@@ -1,18 +1,29 @@
 import type { ColumnDef } from '@tanstack/react-table'
+import { redirect } from 'react-router'
 import { requireUser } from '~/.server/auth'
-import type { VisitListRow } from '~/.server/lists/visits'
+import { getDb } from '~/.server/db'
+import { technicianOptions, visitList, type VisitListRow } from '~/.server/lists/visits'
+import { officeToday } from '~/.server/today'
 import { badgeCell, linkCell, monoCell, selectColumn } from '~/components/columns'
 import { ListPage, options } from '~/components/list-page'
 import { StateBadge } from '~/components/state-badge'
 import type { RouteAccess } from '~/domain/permissions'
 import type { Route } from './+types/_app.visits'
 
-export const handle = { access: { loader: 'view:fleet' } satisfies RouteAccess }
+// Bare /visits redirects to today's work; sampleQuery reaches the page itself in the route × role test.
+export const handle = { access: { loader: 'view:fleet' } satisfies RouteAccess, sampleQuery: 'status=planned' }
 export const meta: Route.MetaFunction = () => [{ title: 'Visits · Ductkeeper' }]
 
 export async function loader({ request }: Route.LoaderArgs) {
   await requireUser(request, 'view:fleet')
-  return null
+  // Opened bare (the rail, `g v`), the list starts at the office's today, soonest first. The choice
+  // is written into the URL so the filter bar shows it and can clear it; any query string at all
+  // (a saved view, a cleared filter that kept its sort) is left as it is.
+  const url = new URL(request.url)
+  if (url.search === '') {
+    throw redirect(`/visits?${new URLSearchParams({ from: officeToday(), sort: 'scheduledOn', dir: 'asc' })}`)
+  }
+  return { technicians: technicianOptions(getDb()), sortable: Object.keys(visitList.sorts), defaultSort: visitList.defaultSort }
 }
 
 const columns: ColumnDef<VisitListRow>[] = [
@@ -20,17 +31,20 @@ const columns: ColumnDef<VisitListRow>[] = [
   { id: 'scheduledOn', header: 'Date', size: 108, cell: monoCell((r) => r.scheduledOn) },
   { id: 'kind', header: 'Work', size: 120, cell: ({ row }) => <span className="capitalize">{row.original.kind}</span> },
   { id: 'status', header: 'Status', size: 120, cell: badgeCell((r) => r.status) },
-  { id: 'notified', header: 'Monitoring told', size: 130, cell: ({ row }) => <StateBadge value={row.original.notified ? 'pass' : 'unknown'} label={row.original.notified ? 'Notified' : 'Not yet'} /> },
+  { id: 'notified', header: 'Monitoring told', size: 150, cell: ({ row }) => <StateBadge value={row.original.notified ? 'pass' : 'unknown'} label={row.original.notified ? 'Notified' : 'Not yet'} /> },
   { id: 'site', header: 'Site', size: 2, minSize: 220, cell: linkCell((r) => `/sites/${r.siteId}`, (r) => r.site) },
-  { id: 'city', header: 'Town', size: 130 },
+  { accessorKey: 'city', header: 'Town', size: 130 },
   { id: 'customer', header: 'Customer', size: 1.2, minSize: 160, cell: ({ row }) => <span className="text-ink-soft">{row.original.customer}</span> },
   { id: 'technician', header: 'Technician', size: 150, cell: ({ row }) => row.original.technician ?? <span className="text-late">Not assigned</span> },
   { id: 'detectors', header: 'Detectors', size: 92, cell: monoCell((r) => r.detectors) },
 ]
 
-export default function Visits() {
+export default function Visits({ loaderData }: Route.ComponentProps) {
+  const { technicians } = loaderData
   return (
     <ListPage<VisitListRow>
+      sortable={loaderData.sortable}
+      defaultSort={loaderData.defaultSort}
       title="Visits"
       page="visits"
       endpoint="/api/visits"
@@ -39,6 +53,13 @@ export default function Visits() {
       filters={[
         { param: 'status', label: 'Status', options: options(['planned', 'notified', 'in-progress', 'done', 'cancelled']) },
         { param: 'kind', label: 'Work', options: options(['inspection', 'test', 'cleaning', 'repair', 'commissioning']) },
+        {
+          param: 'technician',
+          label: 'Technician',
+          options: technicians.map((t) => ({ value: String(t.id), label: t.active ? t.name : `${t.name} (left)` })),
+        },
+        { kind: 'date', param: 'from', label: 'From' },
+        { kind: 'date', param: 'to', label: 'To' },
       ]}
       columns={columns}
       rowHref={(r) => `/sites/${r.siteId}`}

@@ -1,4 +1,4 @@
-import type { Capability } from '~/domain/permissions'
+import { can, type Capability, type Role } from '~/domain/permissions'
 
 // The console's sections, in one list: the navigation rail, the palette and the `g` shortcuts read it.
 // A section is added here only when its page exists.
@@ -23,6 +23,11 @@ export const SECTIONS: Section[] = [
   { to: '/admin/tokens', label: 'API tokens', key: 'k', capability: 'manage:tokens', group: 'admin' },
   { to: '/admin/audit', label: 'Audit log', key: 'a', capability: 'view:audit', group: 'admin' },
 ]
+
+/** The sections a role may open: the rail, the `g` keys, the help overlay and the palette show only these. */
+export function sectionsFor(role: Role): Section[] {
+  return SECTIONS.filter((s) => can(role, s.capability))
+}
 
 /** Where each role lands after sign-in: the queue for those who triage or schedule, else the overview. */
 export function homeFor(canTriageOrSchedule: boolean) {

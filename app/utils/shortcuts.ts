@@ -1,4 +1,5 @@
-import { SECTIONS } from './sections'
+import type { Role } from '~/domain/permissions'
+import { SECTIONS, sectionsFor } from './sections'
 
 // Every keyboard shortcut, declared once: the key handler, the help overlay and the palette read it.
 export type ShortcutId =
@@ -35,6 +36,12 @@ export const SHORTCUTS: Shortcut[] = [
   { id: 'open', keys: ['Enter'], label: 'Open the row', group: 'Lists' },
   ...SECTIONS.map((s): Shortcut => ({ id: `go:${s.to}`, keys: [`g ${s.key}`], label: `Go to ${s.label}`, group: 'Go to' })),
 ]
+
+/** The shortcuts a role can use: `g` keys only for the sections it may open. */
+export function shortcutsFor(role: Role | null): Shortcut[] {
+  const open = new Set((role ? sectionsFor(role) : []).map((s) => `go:${s.to}`))
+  return SHORTCUTS.filter((s) => s.group !== 'Go to' || open.has(s.id))
+}
 
 /** The chord a key event stands for, in the notation above. */
 export function chordOf(e: Pick<KeyboardEvent, 'key' | 'ctrlKey' | 'metaKey' | 'shiftKey' | 'altKey'>): string {

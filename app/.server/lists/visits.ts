@@ -1,4 +1,5 @@
 import { z } from 'zod'
+import type { Db } from '../db'
 import { visits } from '../schema'
 import { ftsIds, ftsQuery, idParam, isoDate, multi, pagingSchema, type ListSpec, whereBuilder } from '../list-query'
 
@@ -27,7 +28,7 @@ export const visitQuery = pagingSchema(Object.keys(SORTS) as [keyof typeof SORTS
   technician: idParam.optional(),
   from: isoDate.optional(),
   to: isoDate.optional(),
-})
+}).refine((f) => !f.from || !f.to || f.from <= f.to, { path: ['to'], message: 'The end date comes before the start date' })
 export type VisitQuery = z.infer<typeof visitQuery>
 
 /** As SQLite returns it: `notified` is 0 or 1 until `asVisitRow`. */
@@ -85,4 +86,12 @@ export const visitList: ListSpec<VisitQuery> = {
     if (f.to) add('t.scheduled_on <= ?', f.to)
     return done()
   },
+}
+
+/** Technicians to filter visits by: active ones first, then those who have left (their visits remain). */
+export function technicianOptions(db: Db): Array<{ id: number; name: string; active: boolean }> {
+  const rows = db.$client
+    .prepare("select id, name, active from users where role = 'technician' order by active desc, name")
+    .all() as Array<{ id: number; name: string; active: number }>
+  return rows.map((r) => ({ ...r, active: r.active === 1 }))
 }

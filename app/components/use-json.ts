@@ -1,0 +1,44 @@
+import { useCallback, useEffect, useState } from 'react'
+import useSWR, { useSWRConfig, type SWRConfiguration } from 'swr'
+import { FetchError, fetchJson } from '~/utils/fetch-json'
+import { startVisibleInterval } from '~/utils/visible-interval'
+
+// A refusal (4xx) will not change by asking again; a lost connection or a 5xx may.
+const worthRetrying = (err: Error) => !(err instanceof FetchError) || err.status === 0 || err.status >= 500
+
+/**
+ * SWR over `fetchJson`, keyed by the API URL. With `refreshMs`, a timed refresh runs while the tab is
+ * visible and is marked as background, so it never keeps an idle session alive.
+ */
+export function useJson<T>(url: string | null, o: { refreshMs?: number } & SWRConfiguration<T, FetchError> = {}) {
+  const { refreshMs, ...config } = o
+  const res = useSWR<T, FetchError>(url, (u: string) => fetchJson<T>(u), { shouldRetryOnError: worthRetrying, ...config })
+  const { mutate: write } = useSWRConfig()
+  const [refreshError, setRefreshError] = useState<FetchError | undefined>()
+
+  useEffect(() => setRefreshError(undefined), [url])
+  useEffect(() => {
+    if (!url || !refreshMs) return
+    return startVisibleInterval(
+      () => {
+        fetchJson<T>(url, { background: true }).then(
+          // Written under its own URL: the hook may have moved to another key meanwhile.
+          (data) => {
+            setRefreshError(undefined)
+            void write(url, data, { revalidate: false })
+          },
+          (e: unknown) => setRefreshError(e instanceof FetchError ? e : new FetchError(0, String(e))),
+        )
+      },
+      refreshMs,
+      document,
+    )
+  }, [url, refreshMs, write])
+
+  const { mutate } = res
+  const retry = useCallback(() => {
+    setRefreshError(undefined)
+    return mutate()
+  }, [mutate])
+  return { data: res.data, error: res.error ?? refreshError, isLoading: res.isLoading, mutate, retry }
+}

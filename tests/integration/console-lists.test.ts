@@ -1,0 +1,66 @@
+import { describe, expect, it } from 'vitest'
+import { addDays } from '~/domain/dates'
+import { useSeededServer } from '#tests/setup/fixture'
+import { sessionCookieFor, userIdByEmail } from '#tests/setup/sessions'
+import { TEST_TODAY } from '#tests/setup/temp-db'
+
+// Expectations come from plain SQL written here, not from the list specs.
+describe('console lists: visit filters, the visits page default, background refreshes', () => {
+  const t = useSeededServer('small')
+  const sql = () => t.data.db.$client
+  const cookieFor = async (email: string, o: { lastSeenAt?: Date } = {}) => (await sessionCookieFor(t.data.db, userIdByEmail(t.data.db, email), o))
+  const get = (path: string, cookie: string, headers: Record<string, string> = {}) =>
+    fetch(t.server.url + path, { redirect: 'manual', headers: { Cookie: cookie, Accept: 'application/json', ...headers } })
+
+  it('filters visits by technician and date range, soonest first', async () => {
+    const { cookie } = await cookieFor('office@ductkeeper.test')
+    const tech = sql().prepare("select technician_id as id from visits where technician_id is not null group by technician_id order by count(*) desc limit 1").get() as { id: number }
+    const to = addDays(TEST_TODAY, 30)
+    const expected = (sql().prepare('select id from visits where technician_id = ? and scheduled_on >= ? and scheduled_on <= ? order by scheduled_on, id').all(tech.id, TEST_TODAY, to) as Array<{ id: number }>).map((r) => r.id)
+    const all = (sql().prepare('select count(*) as n from visits where technician_id = ?').get(tech.id) as { n: number }).n
+    expect(expected.length).toBeGreaterThan(0)
+    expect(expected.length).toBeLessThan(all)
+    const res = await get(`/api/visits?technician=${tech.id}&from=${TEST_TODAY}&to=${to}&sort=scheduledOn&dir=asc`, cookie)
+    expect(res.status).toBe(200)
+    const page = (await res.json()) as { rows: Array<{ id: number; technicianId: number; scheduledOn: string }>; total: number }
+    expect(page.rows.map((r) => r.id)).toEqual(expected)
+    expect(page.total).toBe(expected.length)
+
+    const bad = await get(`/api/visits?from=${to}&to=${TEST_TODAY}`, cookie)
+    expect(bad.status).toBe(400)
+    expect((await bad.json()).issues).toEqual([{ path: 'to', message: 'The end date comes before the start date' }])
+    expect((await get('/api/visits?technician=abc', cookie)).status).toBe(400)
+    expect((await get('/api/visits?from=15-06-2026', cookie)).status).toBe(400)
+  })
+
+  it('opens the bare visits page on today’s work, soonest first, and leaves any other query alone', async () => {
+    const { cookie } = await cookieFor('office@ductkeeper.test')
+    const bare = await get('/visits', cookie, { Accept: 'text/html' })
+    expect(bare.status).toBe(302)
+    expect(bare.headers.get('location')).toBe(`/visits?from=${TEST_TODAY}&sort=scheduledOn&dir=asc`)
+    const kept = await get('/visits?sort=scheduledOn&dir=asc', cookie, { Accept: 'text/html' })
+    expect(kept.status).toBe(200)
+    await kept.body?.cancel()
+  })
+
+  it('does not count a background refresh as activity, and refuses it once the session is idle', async () => {
+    const seen = (id: string) => (sql().prepare('select last_seen_at as at from sessions where id = ?').get(id) as { at: string }).at
+    const fiveMinutesAgo = new Date(Date.now() - 5 * 60_000)
+    const s = await cookieFor('lead@ductkeeper.test', { lastSeenAt: fiveMinutesAgo })
+
+    const background = await get('/api/triage?limit=1', s.cookie, { 'X-Background-Refresh': '1' })
+    expect(background.status).toBe(200)
+    expect((await background.json()).counts.open).toBeGreaterThan(0)
+    expect(seen(s.id)).toBe(fiveMinutesAgo.toISOString())
+
+    // A request a person made moves the idle timer on.
+    expect((await get('/api/triage?limit=1', s.cookie)).status).toBe(200)
+    expect(Date.parse(seen(s.id))).toBeGreaterThan(fiveMinutesAgo.getTime() + 4 * 60_000)
+
+    // Past the idle limit (60 minutes by default) the refresh is told to sign in, as any request is.
+    const idle = await cookieFor('lead@ductkeeper.test', { lastSeenAt: new Date(Date.now() - 61 * 60_000) })
+    const refused = await get('/api/triage?limit=1', idle.cookie, { 'X-Background-Refresh': '1' })
+    expect(refused.status).toBe(401)
+    expect(await refused.json()).toEqual({ error: 'Sign in or send a valid API token.' })
+  })
+})
