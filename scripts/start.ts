@@ -5,8 +5,7 @@ import { randomBytes } from 'node:crypto'
 import { existsSync, readdirSync, readFileSync, statSync, writeFileSync } from 'node:fs'
 import { dirname, join } from 'node:path'
 import { DEMO_DIRECTORY, startIdentityProvider } from '../mocks/identity-provider'
-import { createDb } from '~/.server/db'
-import { seed } from '~/.server/seed/generate'
+import { seedFreshDatabase } from '~/.server/seed/fresh'
 import { officeToday } from '~/.server/today'
 
 const dbPath = (process.env.DATABASE_PATH ??= 'data/ductkeeper.db')
@@ -14,15 +13,13 @@ const port = (process.env.PORT ??= '3000')
 // The local demo's public address; sign-in comes back here (open this one, not 127.0.0.1).
 process.env.APP_URL ??= `http://localhost:${port}`
 
-const db = createDb(dbPath)
-const { n } = db.$client.prepare('select count(*) as n from customers').get() as { n: number }
-if (n === 0) {
-  const started = performance.now()
-  console.log(`Seeding the demo scenario into ${dbPath} …`)
-  const counts = seed(db.$client, 'demo', officeToday())
-  console.log(`Seeded in ${((performance.now() - started) / 1000).toFixed(1)} s:`, counts)
+// Seeded into a temp file and renamed into place when complete: stopping this during the first seed
+// leaves no half-filled database behind, and the next start simply seeds again.
+const fresh = seedFreshDatabase(dbPath, 'demo', officeToday(), { log: console.log })
+if (fresh.seeded) {
+  if (fresh.removedStale.length) console.log(`Removed an interrupted earlier seed: ${fresh.removedStale.join(', ')}`)
+  console.log(`Seeded in ${fresh.seconds.toFixed(1)} s:`, fresh.counts)
 }
-db.$client.close()
 
 function newestMtime(dir: string): number {
   let newest = 0

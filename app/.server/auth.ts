@@ -109,8 +109,10 @@ const isApi = (request: Request) => new URL(request.url).pathname.startsWith('/a
 const isWrite = (request: Request) => !['GET', 'HEAD', 'OPTIONS'].includes(request.method)
 
 function refuse(request: Request, status: 401 | 403, message: string): never {
-  if (isApi(request)) throw Response.json({ error: message }, { status })
-  throw data(message, { status })
+  // A 401 names the scheme that would be accepted (HTTP requires the header on every 401).
+  const headers = status === 401 ? { 'WWW-Authenticate': 'Bearer realm="Ductkeeper"' } : undefined
+  if (isApi(request)) throw Response.json({ error: message }, { status, headers })
+  throw data(message, { status, headers })
 }
 
 /**
@@ -131,16 +133,20 @@ export function sameOrigin(request: Request): boolean {
  */
 export async function authorize(request: Request, access: Access): Promise<CurrentUser | null> {
   const bearer = request.headers.get('Authorization')?.startsWith('Bearer ') ?? false
-  if (isWrite(request) && !bearer && !sameOrigin(request)) {
-    refuse(request, 403, 'Refused: this change did not come from a Ductkeeper page.')
+  const foreignWrite = () => isWrite(request) && !bearer && !sameOrigin(request)
+  if (access === 'public') {
+    if (foreignWrite()) refuse(request, 403, 'Refused: this change did not come from a Ductkeeper page.')
+    return null
   }
-  if (access === 'public') return null
+  // Who is asking comes first: a call with no credentials at all is told to sign in (401), not that
+  // it is forbidden, whatever its origin headers say.
   const user = await userFromRequest(request)
   if (!user) {
     if (isApi(request) || bearer) refuse(request, 401, 'Sign in or send a valid API token.')
     const url = new URL(request.url)
     throw redirect(`/sign-in?returnTo=${encodeURIComponent(safeReturnTo(url.pathname + url.search))}`)
   }
+  if (foreignWrite()) refuse(request, 403, 'Refused: this change did not come from a Ductkeeper page.')
   if (!allows(user.role, access)) refuse(request, 403, 'Your role does not allow this.')
   return user
 }

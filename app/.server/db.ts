@@ -23,6 +23,17 @@ export function createDb(path: string, { runMigrations = true } = {}): Db {
   return db
 }
 
+/**
+ * Runs `fn` in a write transaction that takes the write lock at BEGIN (IMMEDIATE). A deferred
+ * transaction that reads first and writes later cannot wait for a lock another writer holds: SQLite
+ * answers "database is locked" at once, because its snapshot may be stale. IMMEDIATE waits up to the
+ * busy timeout instead. Nested calls become savepoints of the outer transaction.
+ */
+export function writeTx<T>(db: Db | Database.Database, fn: () => T): T {
+  const sqlite = '$client' in db ? db.$client : db
+  return sqlite.transaction(fn).immediate()
+}
+
 const globalForDb = globalThis as unknown as { __ductkeeperDb?: Db }
 
 /** The process-wide database, opened on first use (dev-safe: survives module reloads). */

@@ -1,4 +1,5 @@
 import { z } from 'zod'
+import { dateProblem } from '~/domain/dates'
 import type { Db } from './db'
 
 /**
@@ -31,8 +32,8 @@ export function pagingSchema(sortKeys: readonly [string, ...string[]]) {
     q: z.string().trim().max(200).optional(),
     sort: z.enum(sortKeys).optional(),
     dir: z.enum(['asc', 'desc']).optional(),
-    offset: z.coerce.number().int().min(0).max(10_000_000).default(0),
-    limit: z.coerce.number().int().min(1).max(MAX_LIMIT).default(100),
+    offset: wholeNumber(0, 10_000_000).default(0),
+    limit: wholeNumber(1, MAX_LIMIT).default(100),
   })
 }
 
@@ -160,8 +161,27 @@ export function multi<T extends readonly [string, ...string[]]>(values: T) {
   )
 }
 
-export const isoDate = z.string().regex(/^\d{4}-\d{2}-\d{2}$/, 'Use YYYY-MM-DD')
-export const idParam = z.coerce.number().int().positive()
+/** A calendar date as YYYY-MM-DD that exists (no 2026-02-30) and lies in the accepted range. */
+export const isoDate = z.string().superRefine((value, ctx) => {
+  const problem = dateProblem(value)
+  if (problem) ctx.addIssue({ code: 'custom', message: problem })
+})
+
+// Plain decimal digits only: z.coerce.number() would also take '0x10', '1e2', ' 12', '12.0' and
+// 'true', so a mistyped id could quietly select a different record.
+const WHOLE = /^(0|[1-9][0-9]{0,15})$/
+
+/** A whole number from `min` to `max` written in plain digits (or sent as a JSON number). */
+export function wholeNumber(min: number, max: number, message = `Use a whole number from ${min} to ${max}, in plain digits`) {
+  return z
+    .union([z.string(), z.number()], { error: message })
+    .refine((v) => (typeof v === 'number' ? Number.isSafeInteger(v) : WHOLE.test(v) && Number.isSafeInteger(Number(v))), message)
+    .transform(Number)
+    .refine((n) => n >= min && n <= max, message)
+}
+
+/** A record id: a positive whole number in plain digits, as a path or query parameter or a JSON number. */
+export const idParam = wholeNumber(1, Number.MAX_SAFE_INTEGER, 'Use a record number: plain digits, 1 or more')
 
 /** `col in (?, ?, …)` with its parameters, for a multi filter. */
 export function inList(expr: string, values: readonly unknown[]) {

@@ -43,6 +43,19 @@ export function isIsoDate(value: string): boolean {
   return /^\d{4}-\d{2}-\d{2}$/.test(value) && fromUtc(toUtc(value)) === value
 }
 
+// Dates people type or send: wide enough for any detector record or booking, narrow enough that a
+// slipped digit (2062 for 2026, 0226) is caught instead of stored.
+export const EARLIEST_DATE: IsoDate = '1990-01-01'
+export const LATEST_DATE: IsoDate = '2100-12-31'
+
+/** Why a typed date is not acceptable, in words for the person who typed it; null when it is fine. */
+export function dateProblem(value: string): string | null {
+  if (!/^\d{4}-\d{2}-\d{2}$/.test(value)) return 'Use YYYY-MM-DD'
+  if (!isIsoDate(value)) return `${value} is not a day in the calendar`
+  if (value < EARLIEST_DATE || value > LATEST_DATE) return `Use a date between ${EARLIEST_DATE} and ${LATEST_DATE}`
+  return null
+}
+
 /** Today's calendar date in an IANA time zone. */
 export function todayIn(timeZone: string, now: Date = new Date()): IsoDate {
   return new Intl.DateTimeFormat('en-CA', { timeZone, year: 'numeric', month: '2-digit', day: '2-digit' }).format(now)

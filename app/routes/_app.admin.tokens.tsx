@@ -1,6 +1,7 @@
 import { data, Form, useNavigation } from 'react-router'
 import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
+import { readFormData } from '~/.server/http'
 import { createToken, listTokens, revokeToken } from '~/.server/repos/tokens'
 import { listUsers } from '~/.server/repos/users'
 import { StateBadge } from '~/components/state-badge'
@@ -25,7 +26,7 @@ export async function loader({ request }: Route.LoaderArgs) {
 
 export async function action({ request }: Route.ActionArgs) {
   const me = await requireUser(request, 'manage:tokens')
-  const parsed = tokenAction.safeParse(Object.fromEntries(await request.formData()))
+  const parsed = tokenAction.safeParse(Object.fromEntries(await readFormData(request)))
   if (!parsed.success) return data({ ok: false, errors: fieldErrors(parsed.error), message: null, token: null }, { status: 400 })
   const db = getDb()
   const input = parsed.data

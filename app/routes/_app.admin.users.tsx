@@ -1,6 +1,7 @@
 import { data, Form, useNavigation } from 'react-router'
 import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
+import { readFormData } from '~/.server/http'
 import { changeRole, inviteUser, listUsers, Refusal, setActive } from '~/.server/repos/users'
 import { StateBadge } from '~/components/state-badge'
 import { buttonClass, Field, inputClass, Notice, PageHeader, quietButtonClass } from '~/components/ui/page-header'
@@ -19,7 +20,7 @@ export async function loader({ request }: Route.LoaderArgs) {
 
 export async function action({ request }: Route.ActionArgs) {
   const me = await requireUser(request, 'manage:users')
-  const parsed = userAction.safeParse(Object.fromEntries(await request.formData()))
+  const parsed = userAction.safeParse(Object.fromEntries(await readFormData(request)))
   if (!parsed.success) return data({ ok: false as const, errors: fieldErrors(parsed.error), message: null }, { status: 400 })
   const db = getDb()
   const input = parsed.data

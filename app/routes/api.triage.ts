@@ -1,7 +1,8 @@
 import { z } from 'zod'
 import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
-import { isoDate, parseQuery } from '~/.server/list-query'
+import { readJsonOrForm } from '~/.server/http'
+import { idParam, isoDate, parseQuery } from '~/.server/list-query'
 import { reasonCounts, triageList, triageQuery } from '~/.server/lists/triage'
 import { acknowledge, assign, Refusal, scheduleVisits } from '~/.server/repos/triage-actions'
 import { officeToday } from '~/.server/today'
@@ -20,19 +21,19 @@ export async function loader({ request }: Route.LoaderArgs) {
 }
 
 const ids = z
-  .array(z.coerce.number().int().positive())
+  .array(idParam)
   .min(1, 'Select at least one detector')
   .max(500, 'At most 500 at a time')
   .transform((list) => [...new Set(list)])
 const body = z.discriminatedUnion('intent', [
   z.object({ intent: z.literal('acknowledge'), ids, note: z.string().trim().max(500).optional() }),
-  z.object({ intent: z.literal('assign'), ids, technicianId: z.coerce.number().int().positive() }),
+  z.object({ intent: z.literal('assign'), ids, technicianId: idParam }),
   z.object({
     intent: z.literal('schedule'),
     ids,
     date: isoDate,
     kind: z.enum(['inspection', 'test', 'cleaning', 'repair']).default('test'),
-    technicianId: z.coerce.number().int().positive().nullable().default(null),
+    technicianId: idParam.nullable().default(null),
   }),
 ])
 
@@ -43,12 +44,7 @@ function formBody(form: FormData) {
 
 export async function action({ request }: Route.ActionArgs) {
   const user = await requireUser(request, 'schedule:visits')
-  const raw = request.headers.get('Content-Type')?.includes('json') ? await request.json().catch(() => null) : formBody(await request.formData())
-  const parsed = body.safeParse(raw)
-  if (!parsed.success) {
-    return Response.json({ error: 'Invalid request', issues: parsed.error.issues.map((i) => ({ path: i.path.join('.'), message: i.message })) }, { status: 400 })
-  }
-  const input = parsed.data
+  const input = await readJsonOrForm(request, body, formBody)
   if (input.intent !== 'schedule' && !can(user.role, 'triage:fleet')) {
     return Response.json({ error: 'Your role does not allow this.' }, { status: 403 })
   }

@@ -1,7 +1,8 @@
 import { z } from 'zod'
 import { writeAudit } from '~/.server/audit'
 import { requireUser } from '~/.server/auth'
-import { getDb } from '~/.server/db'
+import { getDb, writeTx } from '~/.server/db'
+import { readJsonOrForm } from '~/.server/http'
 import { idParam, parseQuery } from '~/.server/list-query'
 import type { RouteAccess } from '~/domain/permissions'
 import type { Route } from './+types/api.views'
@@ -44,12 +45,7 @@ export async function loader({ request }: Route.LoaderArgs) {
 
 export async function action({ request }: Route.ActionArgs) {
   const user = await requireUser(request, 'view:fleet')
-  const raw = request.headers.get('Content-Type')?.includes('json') ? await request.json().catch(() => null) : Object.fromEntries(await request.formData())
-  const parsed = body.safeParse(raw)
-  if (!parsed.success) {
-    return Response.json({ error: 'Invalid request', issues: parsed.error.issues.map((i) => ({ path: i.path.join('.'), message: i.message })) }, { status: 400 })
-  }
-  const input = parsed.data
+  const input = await readJsonOrForm(request, body)
   const db = getDb()
   const q = db.$client
   const named = (page: string, n: string) =>
@@ -57,7 +53,7 @@ export async function action({ request }: Route.ActionArgs) {
 
   if (input.intent === 'save') {
     const { overwrite: replace, ...after } = input
-    const result = q.transaction(() => {
+    const result = writeTx(db, () => {
       const taken = named(input.page, input.name)
       if (taken && !replace) return { clash: taken }
       // `returning` gives the row's own id on both paths; lastInsertRowid would not on an update.
@@ -69,12 +65,12 @@ export async function action({ request }: Route.ActionArgs) {
         .get(user.id, input.page, input.name, input.query) as { id: number }
       writeAudit(db, { actorId: user.id, action: 'view.save', entity: 'saved_view', entityId: row.id, before: taken ? { query: taken.query } : undefined, after })
       return { id: row.id }
-    })()
+    })
     return result.clash ? clash(result.clash) : Response.json({ ok: true, id: result.id })
   }
 
   if (input.intent === 'rename') {
-    const result = q.transaction(() => {
+    const result = writeTx(db, () => {
       const view = q.prepare('select id, page, name, query from saved_views where id = ? and user_id = ?').get(input.id, user.id) as ViewRow | undefined
       if (!view) return { missing: true as const }
       if (view.name === input.name) return { id: view.id }
@@ -87,17 +83,17 @@ export async function action({ request }: Route.ActionArgs) {
       q.prepare('update saved_views set name = ? where id = ?').run(input.name, view.id)
       writeAudit(db, { actorId: user.id, action: 'view.rename', entity: 'saved_view', entityId: view.id, before: { name: view.name }, after: { name: input.name } })
       return { id: view.id }
-    })()
+    })
     if (result.missing) return Response.json({ error: 'No such view of yours.' }, { status: 404 })
     return result.clash ? clash(result.clash) : Response.json({ ok: true, id: result.id })
   }
 
-  const removed = q.transaction(() => {
+  const removed = writeTx(db, () => {
     const row = q.prepare('select page, name, query from saved_views where id = ? and user_id = ?').get(input.id, user.id)
     if (!row) return false
     q.prepare('delete from saved_views where id = ?').run(input.id)
     writeAudit(db, { actorId: user.id, action: 'view.delete', entity: 'saved_view', entityId: input.id, before: row })
     return true
-  })()
+  })
   return removed ? Response.json({ ok: true }) : Response.json({ error: 'No such view of yours.' }, { status: 404 })
 }

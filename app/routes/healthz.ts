@@ -3,11 +3,45 @@ import { getDb } from '~/.server/db'
 
 export const handle = { access: { loader: 'public' } satisfies RouteAccess }
 
+// How long the probe waits for another writer's lock. Short: a health check that hangs for the full
+// busy timeout is as bad as none, and a lock held this long already means writes are stalling.
+const PROBE_WAIT_MS = 1_000
+
+const noStore = { 'Cache-Control': 'no-store' }
+
+/**
+ * Up means writable, not just readable: the probe takes the write lock and rewrites the header's
+ * user_version to itself, then rolls back, so nothing is ever changed.
+ */
 export function loader() {
+  let sqlite: ReturnType<typeof getDb>['$client']
   try {
-    getDb().$client.prepare('select 1').get()
-    return Response.json({ ok: true }, { headers: { 'Cache-Control': 'no-store' } })
+    sqlite = getDb().$client
+  } catch {
+    return Response.json({ ok: false, error: 'The database could not be opened.' }, { status: 503, headers: noStore })
+  }
+  const wait = sqlite.pragma('busy_timeout', { simple: true }) as number
+  sqlite.pragma(`busy_timeout = ${PROBE_WAIT_MS}`)
+  try {
+    sqlite.exec('begin immediate')
+    try {
+      const version = sqlite.pragma('user_version', { simple: true }) as number
+      sqlite.pragma(`user_version = ${version}`)
+    } finally {
+      sqlite.exec('rollback')
+    }
+    return Response.json({ ok: true }, { headers: noStore })
   } catch (error) {
-    return Response.json({ ok: false, error: 'database unavailable' }, { status: 503 })
+    const code = (error as { code?: string }).code ?? ''
+    const reason = code.startsWith('SQLITE_BUSY')
+      ? `Another writer has held the database lock for over ${PROBE_WAIT_MS / 1000} s.`
+      : code.startsWith('SQLITE_READONLY')
+        ? 'The database is read-only.'
+        : code === 'SQLITE_FULL'
+          ? 'The disk holding the database is full.'
+          : 'The database cannot be written.'
+    return Response.json({ ok: false, error: reason, code: code || undefined }, { status: 503, headers: noStore })
+  } finally {
+    sqlite.pragma(`busy_timeout = ${wait}`)
   }
 }

@@ -1,5 +1,6 @@
 import { Form, redirect } from 'react-router'
 import { authorize, getAuthenticator, userFromRequest } from '~/.server/auth'
+import { readFormData } from '~/.server/http'
 import { returnToCookie } from '~/.server/sign-in'
 import type { RouteAccess } from '~/domain/permissions'
 import { safeReturnTo } from '~/utils/return-to'
@@ -19,7 +20,7 @@ export async function loader({ request }: Route.LoaderArgs) {
 export async function action({ request }: Route.ActionArgs) {
   await authorize(request, 'public')
   // The strategy clones the request later, so the body is read from a copy.
-  const form = await request.clone().formData()
+  const form = await readFormData(request.clone())
   const returnTo = safeReturnTo(String(form.get('returnTo') ?? '/'))
   try {
     const auth = await getAuthenticator(request)

@@ -1,5 +1,5 @@
 import { createHash, randomBytes } from 'node:crypto'
-import type { Db } from '../db'
+import { writeTx, type Db } from '../db'
 import { writeAudit } from '../audit'
 
 const hash = (token: string) => createHash('sha256').update(token).digest('hex')
@@ -21,14 +21,14 @@ export function createToken(db: Db, o: { userId: number; name: string; expiresAt
   const prefix = randomBytes(4).toString('hex')
   const token = `dk_${prefix}_${randomBytes(24).toString('base64url')}`
   const q = db.$client
-  return q.transaction(() => {
+  return writeTx(db, () => {
     const { lastInsertRowid } = q
       .prepare('insert into api_tokens (user_id, name, token_hash, prefix, expires_at) values (?, ?, ?, ?, ?)')
       .run(o.userId, o.name, hash(token), prefix, o.expiresAt.toISOString())
     const id = Number(lastInsertRowid)
     writeAudit(db, { actorId: o.actorId, action: 'token.create', entity: 'api_token', entityId: id, after: { userId: o.userId, name: o.name, prefix, expiresAt: o.expiresAt.toISOString() } })
     return { id, token, prefix }
-  })()
+  })
 }
 
 export function listTokens(db: Db): TokenRow[] {
@@ -43,13 +43,13 @@ export function listTokens(db: Db): TokenRow[] {
 
 export function revokeToken(db: Db, id: number, actorId: number | null): boolean {
   const q = db.$client
-  return q.transaction(() => {
+  return writeTx(db, () => {
     const before = q.prepare('select name, prefix, revoked_at as revokedAt from api_tokens where id = ?').get(id) as { name: string; prefix: string; revokedAt: string | null } | undefined
     if (!before || before.revokedAt) return false
     q.prepare("update api_tokens set revoked_at = strftime('%Y-%m-%dT%H:%M:%fZ','now') where id = ?").run(id)
     writeAudit(db, { actorId, action: 'token.revoke', entity: 'api_token', entityId: id, before, after: { revoked: true } })
     return true
-  })()
+  })
 }
 
 /** The active user a bearer token belongs to, or null if unknown, expired, revoked or the user is inactive. */

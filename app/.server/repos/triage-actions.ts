@@ -1,5 +1,5 @@
 import { calendarFor } from '~/domain/calendar'
-import type { Db } from '../db'
+import { writeTx, type Db } from '../db'
 import { writeAudit } from '../audit'
 import { listsChanged } from '../list-query'
 
@@ -19,7 +19,7 @@ function detectorsById(db: Db, ids: Ids) {
 export function acknowledge(db: Db, actorId: number, ids: Ids, note: string | null) {
   const q = db.$client
   const at = new Date().toISOString()
-  const n = q.transaction(() => {
+  const n = writeTx(db, () => {
     const rows = detectorsById(db, ids)
     const update = q.prepare('update detectors set acknowledged_at = ?, acknowledged_by = ?, version = version + 1 where id = ?')
     for (const r of rows) {
@@ -27,14 +27,14 @@ export function acknowledge(db: Db, actorId: number, ids: Ids, note: string | nu
       writeAudit(db, { actorId, action: 'triage.acknowledge', entity: 'detector', entityId: r.id, before: { acknowledgedAt: r.acknowledgedAt }, after: { acknowledgedAt: at, note } })
     }
     return rows.length
-  })()
+  })
   listsChanged()
   return n
 }
 
 export function assign(db: Db, actorId: number, ids: Ids, technicianId: number) {
   const q = db.$client
-  const n = q.transaction(() => {
+  const n = writeTx(db, () => {
     const tech = q.prepare("select name from users where id = ? and role = 'technician' and active = 1").get(technicianId) as { name: string } | undefined
     if (!tech) throw new Refusal('Choose an active technician.')
     const rows = detectorsById(db, ids)
@@ -44,7 +44,7 @@ export function assign(db: Db, actorId: number, ids: Ids, technicianId: number) 
       writeAudit(db, { actorId, action: 'triage.assign', entity: 'detector', entityId: r.id, before: { assignedTo: r.assignedTo }, after: { assignedTo: technicianId } })
     }
     return { count: rows.length, technician: tech.name }
-  })()
+  })
   listsChanged()
   return n
 }
@@ -56,7 +56,7 @@ export function assign(db: Db, actorId: number, ids: Ids, technicianId: number) 
 export function scheduleVisits(db: Db, actorId: number, ids: Ids, o: { date: string; kind: 'inspection' | 'test' | 'cleaning' | 'repair'; technicianId: number | null; today: string }) {
   if (o.date < o.today) throw new Refusal('Pick today or a later date.')
   const q = db.$client
-  const result = q.transaction(() => {
+  const result = writeTx(db, () => {
     if (o.technicianId !== null && !q.prepare("select 1 from users where id = ? and role = 'technician' and active = 1").get(o.technicianId)) {
       throw new Refusal('Choose an active technician, or leave the visit unassigned.')
     }
@@ -82,7 +82,7 @@ export function scheduleVisits(db: Db, actorId: number, ids: Ids, o: { date: str
       visitIds.push(visitId)
     }
     return { visits: visitIds.length, detectors: rows.length }
-  })()
+  })
   listsChanged()
   return result
 }

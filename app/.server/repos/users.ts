@@ -1,6 +1,6 @@
 import type { Role } from '~/domain/permissions'
 import { writeAudit } from '../audit'
-import type { Db } from '../db'
+import { writeTx, type Db } from '../db'
 import { revokeSessionsOf } from '../sessions'
 
 export interface UserRow {
@@ -35,18 +35,18 @@ const activeAdmins = (db: Db) =>
 
 export function inviteUser(db: Db, actorId: number, o: { email: string; name: string; role: Role }) {
   const q = db.$client
-  return q.transaction(() => {
+  return writeTx(db, () => {
     if (q.prepare('select 1 from users where lower(email) = ?').get(o.email)) {
       throw new Refusal(`${o.email} already has an account.`)
     }
     const { lastInsertRowid } = q.prepare('insert into users (email, name, role, active) values (?, ?, ?, 1)').run(o.email, o.name, o.role)
     writeAudit(db, { actorId, action: 'user.invite', entity: 'user', entityId: Number(lastInsertRowid), after: o })
     return Number(lastInsertRowid)
-  })()
+  })
 }
 
 export function changeRole(db: Db, actorId: number, userId: number, role: Role) {
-  db.$client.transaction(() => {
+  writeTx(db, () => {
     const before = getUser(db, userId)
     if (!before) throw new Refusal('That user no longer exists.')
     if (before.role === role) return
@@ -56,11 +56,11 @@ export function changeRole(db: Db, actorId: number, userId: number, role: Role) 
     db.$client.prepare('update users set role = ? where id = ?').run(role, userId)
     writeAudit(db, { actorId, action: 'user.change-role', entity: 'user', entityId: userId, before: { role: before.role }, after: { role } })
     revokeSessionsOf(db, userId)
-  })()
+  })
 }
 
 export function setActive(db: Db, actorId: number, userId: number, active: boolean) {
-  db.$client.transaction(() => {
+  writeTx(db, () => {
     const before = getUser(db, userId)
     if (!before) throw new Refusal('That user no longer exists.')
     if (Boolean(before.active) === active) return
@@ -73,7 +73,7 @@ export function setActive(db: Db, actorId: number, userId: number, active: boole
       db.$client.prepare("update api_tokens set revoked_at = strftime('%Y-%m-%dT%H:%M:%fZ','now') where user_id = ? and revoked_at is null").run(userId)
     }
     writeAudit(db, { actorId, action: active ? 'user.reactivate' : 'user.deactivate', entity: 'user', entityId: userId, before: { active: Boolean(before.active) }, after: { active } })
-  })()
+  })
 }
 
 export interface AuditRow {
