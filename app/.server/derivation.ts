@@ -6,7 +6,7 @@ import { and, asc, between, eq, gt, gte, inArray, lt, lte, or, sql, type SQL } f
 import type { AnySQLiteColumn } from 'drizzle-orm/sqlite-core'
 import type { Awg } from '~/domain/conductors'
 import { addDays, daysBetween } from '~/domain/dates'
-import { deriveDetector, OVERDUE_STEP_DAYS, OVERDUE_STEPS, TROUBLE_WINDOW_DAYS, type DetectorRecord, type History, type SitePolicy, type StoredFacts, type TaskResult } from '~/domain/derive'
+import { deriveDetector, OVERDUE_STEP_DAYS, OVERDUE_STEPS, STORED_FACT_KEYS, TROUBLE_WINDOW_DAYS, type DetectorRecord, type History, type SitePolicy, type StoredFacts, type TaskResult } from '~/domain/derive'
 import type { Arrangement, Readings } from '~/domain/loop'
 import type { Db } from './db'
 import { appState, detectorModels, detectors, events, readings, sites, taskResults } from './schema'
@@ -163,8 +163,17 @@ export function deriveInput(input: DerivationInput, today: string) {
   return deriveDetector(input.record, input.policy, input.history, today)
 }
 
+// One prepared UPDATE per connection, its values bound per row: building the SQL for every detector
+// cost more than running it.
+const updates = new WeakMap<Db, { run: (values: Record<string, unknown>) => unknown }>()
 function writeFacts(db: Db, id: number, facts: StoredFacts) {
-  db.update(detectors).set(facts).where(eq(detectors.id, id)).run()
+  let statement = updates.get(db)
+  if (!statement) {
+    const set = Object.fromEntries(STORED_FACT_KEYS.map((k) => [k, sql.placeholder(k)])) as unknown as Partial<StoredFacts>
+    statement = db.update(detectors).set(set).where(eq(detectors.id, sql.placeholder('id'))).prepare()
+    updates.set(db, statement)
+  }
+  statement.run({ ...facts, id })
 }
 
 const changed = (stored: DerivationInput['stored'], facts: StoredFacts) =>
@@ -194,7 +203,7 @@ export function detectorIdRange(db: Db): { min: number; max: number } | null {
 
 export const CHUNK = 2_000
 // Work done beside live requests takes smaller bites: each chunk holds the event loop for its span.
-export const TURN_CHUNK = 500
+export const TURN_CHUNK = 50
 
 /** Each chunk of the fleet's derivation inputs, in id order. */
 export function* fleetInputs(db: Db, today: string, chunk = CHUNK): Generator<DerivationInput[]> {
@@ -222,18 +231,6 @@ export function rederiveFleet(db: Db, today: string): { checked: number; changed
   for (const inputs of fleetInputs(db, today)) {
     n += rederiveChunk(db, inputs, today)
     checked += inputs.length
-  }
-  return { checked, changed: n }
-}
-
-/** The same walk, handing the event loop back between chunks so requests are answered meanwhile. */
-export async function rederiveFleetInTurns(db: Db, today: string): Promise<{ checked: number; changed: number }> {
-  let checked = 0
-  let n = 0
-  for (const inputs of fleetInputs(db, today, TURN_CHUNK)) {
-    n += rederiveChunk(db, inputs, today)
-    checked += inputs.length
-    await new Promise((resolve) => setImmediate(resolve))
   }
   return { checked, changed: n }
 }
@@ -274,14 +271,50 @@ export function dayTurnCandidates(db: Db, from: string, to: string): number[] {
   return rows.map((r) => r.id)
 }
 
-/** Re-derives the given detectors in chunks, handing the event loop back between them. */
-export async function rederiveInTurns(db: Db, ids: readonly number[], today: string, chunk = TURN_CHUNK): Promise<number> {
-  let n = 0
-  for (let i = 0; i < ids.length; i += chunk) {
-    n += rederiveChunk(db, derivationInputs(db, { ids: ids.slice(i, i + chunk) }, today), today)
+export interface TurnStats {
+  checked: number
+  changed: number
+  /** The longest the event loop was held by one chunk (load, derive, write), in wall time. */
+  slowestTurnMs: number
+  /** The same in CPU time, which a busy machine does not inflate. */
+  slowestTurnCpuMs: number
+}
+
+/** Runs chunk after chunk, handing the event loop back between them so requests are answered meanwhile. */
+async function inTurns(db: Db, today: string, loads: Iterable<() => DerivationInput[]>): Promise<TurnStats> {
+  const stats: TurnStats = { checked: 0, changed: 0, slowestTurnMs: 0, slowestTurnCpuMs: 0 }
+  for (const load of loads) {
+    const started = performance.now()
+    const cpu = process.cpuUsage()
+    const inputs = load()
+    stats.changed += rederiveChunk(db, inputs, today)
+    stats.checked += inputs.length
+    const used = process.cpuUsage(cpu)
+    stats.slowestTurnMs = Math.max(stats.slowestTurnMs, performance.now() - started)
+    stats.slowestTurnCpuMs = Math.max(stats.slowestTurnCpuMs, (used.user + used.system) / 1000)
     await new Promise((resolve) => setImmediate(resolve))
   }
-  return n
+  stats.slowestTurnMs = Math.round(stats.slowestTurnMs)
+  stats.slowestTurnCpuMs = Math.round(stats.slowestTurnCpuMs)
+  return stats
+}
+
+/** The whole fleet in turns. */
+export function rederiveFleetInTurns(db: Db, today: string, chunk = TURN_CHUNK): Promise<TurnStats> {
+  const range = detectorIdRange(db)
+  function* loads() {
+    if (!range) return
+    for (let from = range.min; from <= range.max; from += chunk) yield () => derivationInputs(db, { fromId: from, toId: from + chunk - 1 }, today)
+  }
+  return inTurns(db, today, loads())
+}
+
+/** The given detectors in turns. */
+export function rederiveInTurns(db: Db, ids: readonly number[], today: string, chunk = TURN_CHUNK): Promise<TurnStats> {
+  function* loads() {
+    for (let i = 0; i < ids.length; i += chunk) yield () => derivationInputs(db, { ids: ids.slice(i, i + chunk) }, today)
+  }
+  return inTurns(db, today, loads())
 }
 
 const DERIVED_DAY = 'derived-day'

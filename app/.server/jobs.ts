@@ -10,13 +10,13 @@ export function startBackgroundJobs() {
   const tick = async () => {
     try {
       const result = await refreshIfNewDay(getDb())
-      if (result) console.log(`Stored facts derived for ${result.to} (${result.plan === 'fleet' ? 'whole fleet' : `day turn from ${result.from}`}): ${result.changed} of ${result.checked} detectors changed in ${result.ms} ms`)
+      if (result) console.log(`Stored facts derived for ${result.to} (${result.plan === 'fleet' ? 'whole fleet' : `day turn from ${result.from}`}): ${result.changed} of ${result.checked} detectors changed in ${result.ms} ms, the longest turn ${result.slowestTurnMs} ms (${result.slowestTurnCpuMs} ms of CPU)`)
     } catch (error) {
       console.error('Refreshing derived fleet fields failed', error)
     }
   }
-  // After start-up, so the first request is not kept waiting.
-  setTimeout(tick, 200).unref()
+  // After start-up, so the first request is not kept waiting (tests set a later start to watch it run).
+  setTimeout(tick, Number(process.env.REFRESH_START_DELAY_MS ?? 200)).unref()
   globalJobs.__ductkeeperJobs = setInterval(tick, EVERY_MS)
   globalJobs.__ductkeeperJobs.unref()
 }

@@ -16,6 +16,8 @@ export interface ListSpec<F> {
   defaultSort: { key: string; dir: 'asc' | 'desc' }
   /** Kept row total for the unfiltered table (`table_counts.name`). */
   countedAs: string
+  /** A kept total for some filtered views (a reader of a counter table), or null to count. */
+  keptTotal?: (filters: F) => ((db: Db) => number) | null
   where: (filters: F) => { clauses: string[]; params: unknown[] }
   /**
    * Named parameters (`@name`) for `select` and `sorts`, which are fixed strings: a positional `?`
@@ -113,8 +115,11 @@ export function runList<F extends { q?: string; sort?: string; dir?: 'asc' | 'de
 
   let total: number
   let totalExact = true
+  const kept = spec.keptTotal?.(params)
   if (clauses.length === 0) {
     total = (q.prepare('select rows from table_counts where name = ?').get(spec.countedAs) as { rows: number }).rows
+  } else if (kept) {
+    total = kept(db)
   } else {
     const cacheKey = `${spec.from}|${where}|${JSON.stringify(values)}|${JSON.stringify(named)}`
     const hit = totals.get(cacheKey)

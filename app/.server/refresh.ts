@@ -21,6 +21,8 @@ export interface RefreshResult {
   plan: 'candidates' | 'fleet'
   checked: number
   changed: number
+  slowestTurnMs: number
+  slowestTurnCpuMs: number
   ms: number
 }
 
@@ -39,18 +41,10 @@ export function refreshIfNewDay(db: Db, to = officeToday()): Promise<RefreshResu
     const plan = turnPlan(from, to)
     if (plan === 'none') return null
     const started = performance.now()
-    let checked: number
-    let changed: number
-    if (plan === 'fleet') {
-      ;({ checked, changed } = await rederiveFleetInTurns(db, to))
-    } else {
-      const ids = dayTurnCandidates(db, from as string, to)
-      checked = ids.length
-      changed = await rederiveInTurns(db, ids, to)
-    }
+    const stats = plan === 'fleet' ? await rederiveFleetInTurns(db, to) : await rederiveInTurns(db, dayTurnCandidates(db, from as string, to), to)
     setDerivedDay(db, to)
-    if (changed > 0) listsChanged()
-    return { from, to, plan, checked, changed, ms: Math.round(performance.now() - started) }
+    if (stats.changed > 0) listsChanged()
+    return { from, to, plan, ...stats, ms: Math.round(performance.now() - started) }
   })()
   // One refresh at a time: a tick that comes while one runs waits for it instead of starting another.
   running = work.finally(() => {
