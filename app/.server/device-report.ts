@@ -4,18 +4,20 @@ import { interlockPlan } from '~/domain/interlock'
 import { detectorRequirements } from '~/domain/requirements'
 import type { Db } from './db'
 import { derivationInputs, deriveInput } from './derivation'
-import { deviceEvents, getDevice, latestReadings, siblingsOnUnit, type DeviceDetail } from './repos/devices'
+import { detectorRecord } from './repos/detector'
+import type { units } from './schema'
 
-export function ductOf(d: Pick<DeviceDetail, 'ductShape' | 'ductWidthIn' | 'ductHeightIn' | 'ductDiameterIn'>): Duct | null {
+/** The recorded duct at a unit's detectors, or null when its size is not on record. */
+export function ductOf(d: Pick<typeof units.$inferSelect, 'ductShape' | 'ductWidthIn' | 'ductHeightIn' | 'ductDiameterIn'>): Duct | null {
   if (d.ductShape === 'round') return d.ductDiameterIn ? { shape: 'round', diameterIn: d.ductDiameterIn } : null
   return d.ductWidthIn && d.ductHeightIn ? { shape: 'rectangular', widthIn: d.ductWidthIn, heightIn: d.ductHeightIn } : null
 }
 
 /** Everything the device page shows, computed by the trade engine from the stored record. */
 export function deviceReport(db: Db, id: number, today: string) {
-  const d = getDevice(db, id)
-  if (!d) return null
-  const readings = latestReadings(db, id)
+  const record = detectorRecord(db, id)
+  if (!record) return null
+  const { device: d, readings, siblings, events } = record
   // The same derivation that wrote the stored facts: the page explains exactly what the lists show.
   const [input] = derivationInputs(db, { ids: [id] }, today)
   const derived = deriveInput(input, today)
@@ -27,14 +29,13 @@ export function deviceReport(db: Db, id: number, today: string) {
   const pressure = pressureReading
     ? checkPressure({ measuredInWc: pressureReading.value as number, listedMinInWc: d.pressureMinInWc, listedMaxInWc: d.pressureMaxInWc })
     : null
-  const siblings = siblingsOnUnit(db, d.unitId)
   const requirements = detectorRequirements({
     codeBasis: d.codeBasis,
     supplyCfm: d.supplyCfm,
     returnCfm: d.returnCfm,
     storeysServed: d.storeysServed,
-    sharedPlenum: Boolean(d.sharedPlenum),
-    areaDetection: Boolean(d.areaDetection),
+    sharedPlenum: d.sharedPlenum,
+    areaDetection: d.areaDetection,
     installed: { supply: siblings.some((s) => s.position === 'supply'), return: siblings.some((s) => s.position === 'return') },
   })
   return {
@@ -53,6 +54,6 @@ export function deviceReport(db: Db, id: number, today: string) {
     siblings,
     risk: { score: derived.stored.riskScore, reasons: derived.reasons },
     stored: derived.stored,
-    events: deviceEvents(db, id),
+    events,
   }
 }

@@ -1,12 +1,11 @@
-import { data, Link } from 'react-router'
-import { z } from 'zod'
+import { Link } from 'react-router'
 import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
-import { customerDueWork, customerSites, customerTotals, getCustomer, LIST_CAP } from '~/.server/repos/pages'
+import { customerRecord } from '~/.server/repos/customer'
+import { pageNotFound, pageRecordId } from '~/.server/repos/record-id'
 import { officeToday } from '~/.server/today'
 import { Caution } from '~/components/caution'
 import { StateBadge } from '~/components/state-badge'
-import { daysBetween } from '~/domain/dates'
 import type { RouteAccess } from '~/domain/permissions'
 import { formatCount, formatDay, percent } from '~/utils/format'
 import type { Route } from './+types/_app.customers.$customerId'
@@ -18,22 +17,12 @@ export const meta: Route.MetaFunction = ({ data }) => [
   { title: data ? `${data.customer.name} · Ductkeeper` : 'Customer · Ductkeeper' },
 ]
 
-const params = z.object({ customerId: z.coerce.number().int().positive() })
-
-export async function loader({ request, params: raw }: Route.LoaderArgs) {
+// The same repo call as /api/customers/:id, so the page and the API show the same figures.
+export async function loader({ request, params }: Route.LoaderArgs) {
   await requireUser(request, 'view:fleet')
-  const parsed = params.safeParse(raw)
-  if (!parsed.success) throw data('No such customer.', { status: 404 })
-  const id = parsed.data.customerId
-  const db = getDb()
-  const customer = getCustomer(db, id)
-  if (!customer) throw data('No such customer.', { status: 404 })
-  const today = officeToday()
-  const dueWork = customerDueWork(db, id).map((d) => ({
-    ...d,
-    daysOverdue: d.nextDueOn ? Math.max(0, daysBetween(d.nextDueOn, today)) : null,
-  }))
-  return { customer, today, totals: customerTotals(db, id), dueWork, sites: customerSites(db, id, today), cap: LIST_CAP }
+  const record = customerRecord(getDb(), pageRecordId(params, 'customerId', 'customer'), officeToday())
+  if (!record) throw pageNotFound('customer')
+  return record
 }
 
 const KIND_LABELS: Record<string, string> = {
@@ -52,7 +41,7 @@ function overdueWords(days: number) {
 }
 
 export default function Customer({ loaderData }: Route.ComponentProps) {
-  const { customer: c, totals: t, dueWork, sites, today, cap } = loaderData
+  const { customer: c, totals: t, dueWork, sites, today } = loaderData
   return (
     <div className="mx-auto max-w-6xl space-y-6">
       <header>
@@ -93,15 +82,15 @@ export default function Customer({ loaderData }: Route.ComponentProps) {
             Due work: most overdue first
           </h2>
           <span className="text-xs text-ink-faint">
-            {t.overdue === 0
+            {dueWork.total === 0
               ? 'Nothing overdue'
-              : `Showing ${formatCount(dueWork.length)} of ${formatCount(t.overdue)} overdue detectors`}
+              : `Showing ${formatCount(dueWork.rows.length)} of ${formatCount(dueWork.total)} overdue detectors`}
           </span>
         </div>
         <div className="px-4 pt-3">
           <Caution compact />
         </div>
-        {dueWork.length === 0 ? (
+        {dueWork.rows.length === 0 ? (
           <p className="px-4 py-3 text-sm text-ink-soft">Every detector of {c.name} is within its intervals.</p>
         ) : (
           <div className="overflow-x-auto">
@@ -118,23 +107,23 @@ export default function Customer({ loaderData }: Route.ComponentProps) {
                 </tr>
               </thead>
               <tbody>
-                {dueWork.map((d) => (
+                {dueWork.rows.map((d) => (
                   <tr key={d.id} className="border-t border-line/70 align-top sm:align-middle">
                     <td className="px-4 py-2">
                       <Link to={`/devices/${d.id}`} className="font-mono font-medium text-accent hover:underline">
                         {d.tag}
                       </Link>
                       <div className="text-xs text-ink-faint sm:hidden">
-                        {d.position === 'supply' ? 'Supply' : 'Return'} · {d.unitTag} · {d.siteName}
+                        {d.position === 'supply' ? 'Supply' : 'Return'} · {d.unit} · {d.site}
                       </div>
                     </td>
                     <td className="hidden px-2 py-2 whitespace-nowrap sm:table-cell">
-                      <span className="font-mono">{d.unitTag}</span>{' '}
+                      <span className="font-mono">{d.unit}</span>{' '}
                       <span className="text-xs text-ink-faint">{d.position === 'supply' ? 'supply' : 'return'}</span>
                     </td>
                     <td className="hidden px-2 py-2 sm:table-cell">
                       <Link to={`/sites/${d.siteId}`} className="hover:underline">
-                        {d.siteName}
+                        {d.site}
                       </Link>
                     </td>
                     <td className="px-2 py-2 whitespace-nowrap">
@@ -150,7 +139,7 @@ export default function Customer({ loaderData }: Route.ComponentProps) {
                     <td className="hidden px-2 py-2 sm:table-cell">
                       <StateBadge value={d.state} />
                     </td>
-                    <td className="px-4 py-2 text-right font-mono">{d.riskScore}</td>
+                    <td className="px-4 py-2 text-right font-mono">{d.risk}</td>
                   </tr>
                 ))}
               </tbody>
@@ -165,12 +154,12 @@ export default function Customer({ loaderData }: Route.ComponentProps) {
             Sites
           </h2>
           <span className="text-xs text-ink-faint">
-            {t.sites > sites.length
-              ? `Showing ${formatCount(sites.length)} of ${formatCount(t.sites)}, most overdue first`
-              : `${formatCount(t.sites)} ${t.sites === 1 ? 'site' : 'sites'}, most overdue first`}
+            {sites.total > sites.rows.length
+              ? `Showing ${formatCount(sites.rows.length)} of ${formatCount(sites.total)}, most overdue first`
+              : `${formatCount(sites.total)} ${sites.total === 1 ? 'site' : 'sites'}, most overdue first`}
           </span>
         </div>
-        {sites.length === 0 ? (
+        {sites.rows.length === 0 ? (
           <p className="px-4 py-3 text-sm text-ink-soft">No sites on record.</p>
         ) : (
           <div className="overflow-x-auto">
@@ -186,7 +175,7 @@ export default function Customer({ loaderData }: Route.ComponentProps) {
                 </tr>
               </thead>
               <tbody>
-                {sites.map((s) => (
+                {sites.rows.map((s) => (
                   <tr key={s.id} className="border-t border-line/70 align-top">
                     <td className="px-4 py-2">
                       <Link to={`/sites/${s.id}`} className="font-medium text-accent hover:underline">
@@ -228,9 +217,9 @@ export default function Customer({ loaderData }: Route.ComponentProps) {
             </table>
           </div>
         )}
-        {t.sites > cap && (
+        {sites.total > sites.rows.length && (
           <p className="border-t border-line px-4 py-2 text-xs text-ink-faint">
-            The first {formatCount(cap)} sites by overdue detectors are listed; the rest have as many overdue or fewer.
+            The first {formatCount(sites.rows.length)} sites by overdue detectors are listed; the rest have as many overdue or fewer.
           </p>
         )}
       </section>

@@ -1,8 +1,8 @@
-import { data, Link } from 'react-router'
-import { z } from 'zod'
+import { Link } from 'react-router'
 import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
 import { deviceReport } from '~/.server/device-report'
+import { pageNotFound, pageRecordId } from '~/.server/repos/record-id'
 import { officeToday } from '~/.server/today'
 import { Caution } from '~/components/caution'
 import { EventTimeline } from '~/components/event-timeline'
@@ -22,15 +22,12 @@ export const meta: Route.MetaFunction = ({ data }) => [
   { title: data ? `${data.report.device.tag} · ${data.report.device.siteName} · Ductkeeper` : 'Detector · Ductkeeper' },
 ]
 
-const params = z.object({ deviceId: z.coerce.number().int().positive() })
-
-export async function loader({ request, params: raw }: Route.LoaderArgs) {
+// The same report as /api/devices/:id: the stored record and the one derivation of its facts.
+export async function loader({ request, params }: Route.LoaderArgs) {
   await requireUser(request, 'view:fleet')
-  const parsed = params.safeParse(raw)
-  if (!parsed.success) throw data('No such detector.', { status: 404 })
   const today = officeToday()
-  const report = deviceReport(getDb(), parsed.data.deviceId, today)
-  if (!report) throw data('No such detector.', { status: 404 })
+  const report = deviceReport(getDb(), pageRecordId(params, 'deviceId', 'detector'), today)
+  if (!report) throw pageNotFound('detector')
   return { report, today }
 }
 

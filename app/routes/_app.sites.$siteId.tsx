@@ -1,18 +1,8 @@
-import { data, Link } from 'react-router'
-import { z } from 'zod'
+import { Link } from 'react-router'
 import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
-import {
-  getSite,
-  siteCounts,
-  siteDetectors,
-  siteEvents,
-  siteNotifications,
-  siteUnits,
-  siteUpcomingVisits,
-  SITE_EVENTS_CAP,
-  type SiteRecord,
-} from '~/.server/repos/pages'
+import { pageNotFound, pageRecordId } from '~/.server/repos/record-id'
+import { siteRecord } from '~/.server/repos/site'
 import { officeToday } from '~/.server/today'
 import { Caution } from '~/components/caution'
 import { EventTimeline } from '~/components/event-timeline'
@@ -25,36 +15,18 @@ import { Fact } from '~/components/ui/facts'
 export const handle = { access: { loader: 'view:fleet' } satisfies RouteAccess }
 
 export const meta: Route.MetaFunction = ({ data }) => [
-  { title: data ? `${data.site.name} · ${data.site.customerName} · Ductkeeper` : 'Site · Ductkeeper' },
+  { title: data ? `${data.site.name} · ${data.customer.name} · Ductkeeper` : 'Site · Ductkeeper' },
 ]
 
-const params = z.object({ siteId: z.coerce.number().int().positive() })
-
-// Natural order, so RTU-2 comes before RTU-10 as it does on the roof plan.
-const byTag = new Intl.Collator('en', { numeric: true, sensitivity: 'base' })
-
-export async function loader({ request, params: raw }: Route.LoaderArgs) {
+// The same repo call as /api/sites/:id, so the page and the API show the same figures.
+export async function loader({ request, params }: Route.LoaderArgs) {
   await requireUser(request, 'view:fleet')
-  const parsed = params.safeParse(raw)
-  if (!parsed.success) throw data('No such site.', { status: 404 })
-  const id = parsed.data.siteId
-  const db = getDb()
-  const site = getSite(db, id)
-  if (!site) throw data('No such site.', { status: 404 })
-  const today = officeToday()
-  return {
-    site,
-    today,
-    now: new Date().toISOString(),
-    counts: siteCounts(db, id),
-    units: siteUnits(db, id).sort((a, b) => byTag.compare(a.tag, b.tag)),
-    detectors: siteDetectors(db, id).sort((a, b) => byTag.compare(a.tag, b.tag)),
-    visits: siteUpcomingVisits(db, id, today),
-    notifications: siteNotifications(db, id),
-    events: siteEvents(db, id),
-    eventCap: SITE_EVENTS_CAP,
-  }
+  const record = siteRecord(getDb(), pageRecordId(params, 'siteId', 'site'), officeToday())
+  if (!record) throw pageNotFound('site')
+  return { ...record, now: new Date().toISOString() }
 }
+
+type Monitoring = NonNullable<Route.ComponentProps['loaderData']['monitoring']>
 
 const CODE_BASIS = { imc: 'International Mechanical Code (IMC)', nfpa90a: 'NFPA 90A' } as const
 const METHOD = { phone: 'By phone', email: 'By e-mail', portal: 'Through their online portal' } as const
@@ -82,22 +54,21 @@ const clock = (iso: string, timeZone: string) =>
   new Intl.DateTimeFormat('en-GB', { timeZone, hour: '2-digit', minute: '2-digit', hourCycle: 'h23' }).format(new Date(iso))
 
 export default function Site({ loaderData }: Route.ComponentProps) {
-  const { site: s, counts, units, detectors, visits, notifications, events, eventCap, now } = loaderData
-  const mc = s.monitoring
+  const { site: s, customer, monitoring: mc, units, detectors, upcomingVisits: visits, notifications, events, now } = loaderData
   const tz = s.timeZone
   return (
     <div className="mx-auto max-w-6xl space-y-6">
       <header>
         <nav aria-label="Breadcrumb" className="text-sm text-ink-faint">
-          <Link to={`/customers/${s.customerId}`} className="text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink">
-            {s.customerName}
+          <Link to={`/customers/${customer.id}`} className="text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink">
+            {customer.name}
           </Link>{' '}
           · Site
         </nav>
         <h1 className="mt-1 text-2xl font-semibold">{s.name}</h1>
         <p className="mt-1 text-sm text-ink-soft">
-          {s.street}, {s.city} {s.postalCode} · {formatCount(counts.units)} {counts.units === 1 ? 'unit' : 'units'},{' '}
-          {formatCount(counts.detectors)} {counts.detectors === 1 ? 'detector' : 'detectors'}
+          {s.street}, {s.city} {s.postalCode} · {formatCount(units.total)} {units.total === 1 ? 'unit' : 'units'},{' '}
+          {formatCount(detectors.total)} {detectors.total === 1 ? 'detector' : 'detectors'}
         </p>
       </header>
 
@@ -191,7 +162,7 @@ export default function Site({ loaderData }: Route.ComponentProps) {
       </div>
 
       <section aria-labelledby="units-h" className="rounded-md border border-line bg-panel">
-        <SectionHead id="units-h" title="Units" shown={units.length} total={counts.units} />
+        <SectionHead id="units-h" title="Units" shown={units.rows.length} total={units.total} />
         <div className="overflow-x-auto">
           <table className="w-full text-sm">
             <thead className="text-left text-xs text-ink-faint uppercase">
@@ -204,7 +175,7 @@ export default function Site({ loaderData }: Route.ComponentProps) {
               </tr>
             </thead>
             <tbody>
-              {units.map((u) => (
+              {units.rows.map((u) => (
                 <tr key={u.id} className="border-t border-line/70 align-top">
                   <td className="px-4 py-2">
                     <Link to={`/units/${u.id}`} className="font-mono font-medium text-accent hover:underline">
@@ -226,7 +197,7 @@ export default function Site({ loaderData }: Route.ComponentProps) {
       </section>
 
       <section aria-labelledby="det-h" className="rounded-md border border-line bg-panel">
-        <SectionHead id="det-h" title="Detectors" shown={detectors.length} total={counts.detectors} />
+        <SectionHead id="det-h" title="Detectors" shown={detectors.rows.length} total={detectors.total} />
         <div className="overflow-x-auto">
           <table className="w-full text-sm">
             <thead className="text-left text-xs text-ink-faint uppercase">
@@ -241,19 +212,19 @@ export default function Site({ loaderData }: Route.ComponentProps) {
               </tr>
             </thead>
             <tbody>
-              {detectors.map((d) => (
+              {detectors.rows.map((d) => (
                 <tr key={d.id} className="border-t border-line/70 align-top sm:align-middle">
                   <td className="px-4 py-2">
                     <Link to={`/devices/${d.id}`} className="font-mono font-medium text-accent hover:underline">
                       {d.tag}
                     </Link>
                     <div className="text-xs text-ink-faint sm:hidden">
-                      {d.position === 'supply' ? 'Supply' : 'Return'} · risk {d.riskScore}
+                      {d.position === 'supply' ? 'Supply' : 'Return'} · risk {d.risk}
                     </div>
                   </td>
                   <td className="hidden px-2 py-2 sm:table-cell">
                     <Link to={`/units/${d.unitId}`} className="font-mono hover:underline">
-                      {d.unitTag}
+                      {d.unit}
                     </Link>
                   </td>
                   <td className="hidden px-2 py-2 sm:table-cell">{d.position === 'supply' ? 'Supply' : 'Return'}</td>
@@ -261,11 +232,11 @@ export default function Site({ loaderData }: Route.ComponentProps) {
                     <StateBadge value={d.state} />
                   </td>
                   <td className="px-2 py-2">
-                    <StateBadge value={d.dueStatus} />
+                    <StateBadge value={d.due} />
                     {d.nextDueOn && <div className="mt-0.5 font-mono text-xs text-ink-faint md:hidden">{d.nextDueOn}</div>}
                   </td>
                   <td className="hidden px-2 py-2 font-mono text-xs md:table-cell">{d.nextDueOn ?? '—'}</td>
-                  <td className="hidden px-4 py-2 text-right font-mono sm:table-cell">{d.riskScore}</td>
+                  <td className="hidden px-4 py-2 text-right font-mono sm:table-cell">{d.risk}</td>
                 </tr>
               ))}
             </tbody>
@@ -321,8 +292,8 @@ export default function Site({ loaderData }: Route.ComponentProps) {
       </section>
 
       <section aria-labelledby="notif-h" className="rounded-md border border-line bg-panel">
-        <SectionHead id="notif-h" title="Notification history" shown={notifications.length} total={counts.notifications} />
-        {notifications.length === 0 ? (
+        <SectionHead id="notif-h" title="Notification history" shown={notifications.rows.length} total={notifications.total} />
+        {notifications.rows.length === 0 ? (
           <p className="px-4 py-3 text-sm text-ink-soft">No notifications recorded.</p>
         ) : (
           <>
@@ -336,7 +307,7 @@ export default function Site({ loaderData }: Route.ComponentProps) {
               <span>Cleared</span>
             </div>
             <ol className="divide-y divide-line/70 border-t border-line/70 text-sm md:border-t-0">
-              {notifications.map((n) => (
+              {notifications.rows.map((n) => (
                 <li key={n.id} className="grid gap-x-4 gap-y-1 px-4 py-2.5 md:grid-cols-[11rem_1fr_1fr_10rem]">
                   <div>
                     <span className="font-mono text-xs">{when(n.notifiedAt, tz)}</span>
@@ -345,7 +316,7 @@ export default function Site({ loaderData }: Route.ComponentProps) {
                   <div>
                     {METHOD_SHORT[n.method]} · spoke with {n.spokeWith}
                     <div className="text-xs text-ink-faint">
-                      {n.monitoringName ?? 'Monitoring company not recorded'}
+                      {n.monitoring ?? 'Monitoring company not recorded'}
                       {' · '}
                       {n.confirmation ? (
                         <>
@@ -387,17 +358,19 @@ export default function Site({ loaderData }: Route.ComponentProps) {
             Event timeline
           </h2>
           <span className="text-xs text-ink-faint">
-            {events.length < eventCap ? `All ${formatCount(events.length)}` : `Latest ${formatCount(events.length)}`}
+            {events.total > events.rows.length
+              ? `Latest ${formatCount(events.rows.length)} of ${formatCount(events.total)}`
+              : `All ${formatCount(events.total)}`}
           </span>
         </div>
-        <EventTimeline events={events} timeZone={tz} />
+        <EventTimeline events={events.rows} timeZone={tz} />
       </section>
     </div>
   )
 }
 
 // Each company says how it wants to hear of work; the first step reads the way they asked for it.
-function NoticeStep({ mc, account }: { mc: NonNullable<SiteRecord['monitoring']>; account: string | null }) {
+function NoticeStep({ mc, account }: { mc: Monitoring; account: string | null }) {
   const lead = `at least ${formatCount(mc.notifyLeadMinutes)} minutes before work starts`
   const quoting = account ? (
     <>

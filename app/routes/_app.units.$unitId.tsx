@@ -1,16 +1,12 @@
-import { data, Link } from 'react-router'
-import { z } from 'zod'
+import { Link } from 'react-router'
 import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
-import { ductOf } from '~/.server/device-report'
-import { getUnit, unitDetectors } from '~/.server/repos/pages'
+import { pageNotFound, pageRecordId } from '~/.server/repos/record-id'
+import { unitRecord } from '~/.server/repos/unit'
 import { Caution } from '~/components/caution'
 import { StateBadge } from '~/components/state-badge'
-import { checkVelocity, ductVelocityFpm } from '~/domain/airflow'
-import { interlockPlan } from '~/domain/interlock'
 import type { RouteAccess } from '~/domain/permissions'
-import { CONTROL_VOLTS, currentFor, powerBudget, voltageDrop } from '~/domain/power'
-import { detectorRequirements } from '~/domain/requirements'
+import { CONTROL_VOLTS } from '~/domain/power'
 import { formatCount } from '~/utils/format'
 import type { Route } from './+types/_app.units.$unitId'
 import { Fact } from '~/components/ui/facts'
@@ -18,76 +14,15 @@ import { Fact } from '~/components/ui/facts'
 export const handle = { access: { loader: 'view:fleet' } satisfies RouteAccess }
 
 export const meta: Route.MetaFunction = ({ data }) => [
-  { title: data ? `${data.unit.tag} · ${data.unit.siteName} · Ductkeeper` : 'Unit · Ductkeeper' },
+  { title: data ? `${data.unit.tag} · ${data.site.name} · Ductkeeper` : 'Unit · Ductkeeper' },
 ]
 
-const params = z.object({ unitId: z.coerce.number().int().positive() })
-
-export async function loader({ request, params: raw }: Route.LoaderArgs) {
+// The same repo call as /api/units/:id, so the page and the API show the same figures.
+export async function loader({ request, params }: Route.LoaderArgs) {
   await requireUser(request, 'view:fleet')
-  const parsed = params.safeParse(raw)
-  if (!parsed.success) throw data('No such unit.', { status: 404 })
-  const db = getDb()
-  const unit = getUnit(db, parsed.data.unitId)
-  if (!unit) throw data('No such unit.', { status: 404 })
-  const detectors = unitDetectors(db, unit.id)
-
-  const duct = ductOf(unit)
-  const cfmAt = (position: 'supply' | 'return') => (position === 'supply' ? unit.supplyCfm : unit.returnCfm)
-  const velocity = duct
-    ? { supplyFpm: ductVelocityFpm(unit.supplyCfm, duct), returnFpm: ductVelocityFpm(unit.returnCfm, duct) }
-    : null
-
-  // The same inputs the detector page uses, so a unit reads the same from either page.
-  const requirements = detectorRequirements({
-    codeBasis: unit.codeBasis,
-    supplyCfm: unit.supplyCfm,
-    returnCfm: unit.returnCfm,
-    storeysServed: unit.storeysServed,
-    sharedPlenum: Boolean(unit.sharedPlenum),
-    areaDetection: Boolean(unit.areaDetection),
-    installed: {
-      supply: detectors.some((d) => d.position === 'supply'),
-      return: detectors.some((d) => d.position === 'return'),
-    },
-  })
-
-  // Remote test stations have no draw on record, so they add nothing to the budget.
-  const power = powerBudget({
-    transformerVa: unit.transformerVa,
-    loads: detectors.map((d) => ({ label: d.tag, standbyVa: d.standbyVa, alarmVa: d.alarmVa })),
-  })
-
-  return {
-    unit,
-    duct,
-    velocity,
-    interlock: interlockPlan(unit.shutdownInput),
-    requirements,
-    power,
-    detectors: detectors.map((d) => {
-      const alarmA = currentFor(d.alarmVa)
-      return {
-        ...d,
-        velocity: duct
-          ? checkVelocity({ cfm: cfmAt(d.position), duct, listedMinFpm: d.velocityMinFpm, listedMaxFpm: d.velocityMaxFpm })
-          : null,
-        // Without the station's own draw, the detector's full alarm current is the worst the run can carry.
-        stationDrop:
-          d.testStation !== 'none' && d.testStationFeet
-            ? {
-                currentA: alarmA,
-                ...voltageDrop({
-                  currentA: alarmA,
-                  oneWayFeet: d.testStationFeet,
-                  awg: d.conductorAwg,
-                  stranded: Boolean(d.conductorStranded),
-                }),
-              }
-            : null,
-      }
-    }),
-  }
+  const record = unitRecord(getDb(), pageRecordId(params, 'unitId', 'unit'))
+  if (!record) throw pageNotFound('unit')
+  return record
 }
 
 const KIND_LABELS: Record<string, string> = {
@@ -110,7 +45,8 @@ const va = (n: number) => `${Number(n.toFixed(1))} VA`
 const volts = (n: number) => `${n.toFixed(1)} V`
 
 export default function Unit({ loaderData }: Route.ComponentProps) {
-  const { unit: u, duct, velocity, interlock, requirements, power, detectors } = loaderData
+  const { unit: u, site, customer, monitoring, duct, velocity, interlock, requirements, power } = loaderData
+  const { rows: detectors, total: detectorTotal } = loaderData.detectors
   const ductWords = duct
     ? duct.shape === 'round'
       ? `${duct.diameterIn} in round`
@@ -121,12 +57,12 @@ export default function Unit({ loaderData }: Route.ComponentProps) {
     <div className="mx-auto max-w-6xl space-y-6">
       <header>
         <nav aria-label="Breadcrumb" className="text-sm text-ink-faint">
-          <Link to={`/customers/${u.customerId}`} className="text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink">
-            {u.customerName}
+          <Link to={`/customers/${customer.id}`} className="text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink">
+            {customer.name}
           </Link>
           {' · '}
-          <Link to={`/sites/${u.siteId}`} className="text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink">
-            {u.siteName}
+          <Link to={`/sites/${site.id}`} className="text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink">
+            {site.name}
           </Link>
           {' · '}Unit
         </nav>
@@ -135,7 +71,7 @@ export default function Unit({ loaderData }: Route.ComponentProps) {
           <span className="text-sm text-ink-soft">{KIND_LABELS[u.kind] ?? u.kind.toUpperCase()}</span>
         </div>
         <p className="mt-1 text-sm text-ink-soft">
-          {u.location ?? 'Location not recorded'} · {u.city} · {u.shutdownInput} shutdown input
+          {u.location ?? 'Location not recorded'} · {site.city} · {u.shutdownInput} shutdown input
         </p>
       </header>
 
@@ -163,9 +99,14 @@ export default function Unit({ loaderData }: Route.ComponentProps) {
         </section>
 
         <section aria-labelledby="det-h" className="rounded-md border border-line bg-panel">
-          <h2 id="det-h" className="border-b border-line px-4 py-3 font-semibold">
-            Detectors on {u.tag}
-          </h2>
+          <div className="flex flex-wrap items-baseline justify-between gap-2 border-b border-line px-4 py-3">
+            <h2 id="det-h" className="font-semibold">
+              Detectors on {u.tag}
+            </h2>
+            <span className="text-xs text-ink-faint">
+              {detectorTotal > detectors.length ? `Showing ${formatCount(detectors.length)} of ${formatCount(detectorTotal)}` : formatCount(detectorTotal)}
+            </span>
+          </div>
           {detectors.length === 0 ? (
             <p className="px-4 py-3 text-sm text-ink-soft">No detectors recorded on this unit.</p>
           ) : (
@@ -177,12 +118,12 @@ export default function Unit({ loaderData }: Route.ComponentProps) {
                       {d.tag}
                     </Link>
                     <div className="text-xs text-ink-faint">
-                      {d.position === 'supply' ? 'Supply' : 'Return'} · {d.modelName}
+                      {d.position === 'supply' ? 'Supply' : 'Return'} · {d.model}
                     </div>
                   </div>
                   <div className="flex flex-wrap items-center gap-1.5">
                     <StateBadge value={d.state} />
-                    <StateBadge value={d.dueStatus} />
+                    <StateBadge value={d.due} />
                     {d.velocity && (
                       <StateBadge
                         value={d.velocity.status === 'in-range' ? 'pass' : 'fail'}
@@ -204,14 +145,14 @@ export default function Unit({ loaderData }: Route.ComponentProps) {
         <div className="mt-3">
           <Caution />
         </div>
-        {u.monitoringName && (
+        {monitoring && (
           <p className="mt-3 text-sm">
-            Monitoring for this site: <span className="font-medium">{u.monitoringName}</span>,{' '}
-            <a href={`tel:${u.monitoringPhone}`} className="font-mono font-semibold text-accent hover:underline">
-              {u.monitoringPhone}
+            Monitoring for this site: <span className="font-medium">{monitoring.name}</span>,{' '}
+            <a href={`tel:${monitoring.phone}`} className="font-mono font-semibold text-accent hover:underline">
+              {monitoring.phone}
             </a>
             .{' '}
-            <Link to={`/sites/${u.siteId}`} className="text-accent underline">
+            <Link to={`/sites/${site.id}`} className="text-accent underline">
               How they want to be told
             </Link>
           </p>
@@ -277,7 +218,7 @@ export default function Unit({ loaderData }: Route.ComponentProps) {
             ))}
           </ul>
           <p className="mt-4 text-xs font-medium text-soon">{requirements.verifyWithAhj}</p>
-          <p className="mt-1 text-xs text-ink-faint">The site&apos;s AHJ: {u.ahjName}.</p>
+          <p className="mt-1 text-xs text-ink-faint">The site&apos;s AHJ: {site.ahjName}.</p>
         </section>
 
         <section aria-labelledby="power-h" className="rounded-md border border-line bg-panel p-4">

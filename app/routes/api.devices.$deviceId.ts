@@ -1,7 +1,7 @@
 import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
 import { deviceReport } from '~/.server/device-report'
-import { notFound, recordId } from '~/.server/repos/records'
+import { notFound, recordId } from '~/.server/repos/record-id'
 import { officeToday } from '~/.server/today'
 import type { RouteAccess } from '~/domain/permissions'
 import type { Route } from './+types/api.devices.$deviceId'

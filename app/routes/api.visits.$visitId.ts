@@ -1,6 +1,7 @@
 import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
-import { notFound, recordId, visitRecord } from '~/.server/repos/records'
+import { notFound, recordId } from '~/.server/repos/record-id'
+import { visitRecord } from '~/.server/repos/visit'
 import type { RouteAccess } from '~/domain/permissions'
 import type { Route } from './+types/api.visits.$visitId'
 

@@ -1,4 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import type { deviceReport } from '~/.server/device-report'
+import { pageLoaderData } from '#tests/setup/loader-data'
 import { startServer } from '#tests/setup/server'
 import { sessionCookieFor, userIdByEmail } from '#tests/setup/sessions'
 import { seededDb } from '#tests/setup/temp-db'
@@ -41,7 +43,41 @@ describe('device page', () => {
     }
   })
 
-  it('answers 404 for a detector that does not exist', async () => {
+  it("shows the stored risk, due dates and loop verdict, and the history's events", async () => {
+    const sample = data.db.$client
+      .prepare(
+        `select id, risk_score as risk, loop_verdict as loop, next_visual_on as visual, next_functional_on as functional,
+                next_sensitivity_on as sensitivity, next_cleaning_on as cleaning, due_status as due, next_due_on as nextDue,
+                (select count(*) from events e where e.detector_id = d.id) as events
+         from detectors d where id in (select max(id) from detectors group by due_status, loop_verdict, alarm_terminal) order by id`,
+      )
+      .all() as Array<{ id: number; risk: number; loop: string; visual: string; functional: string; sensitivity: string; cleaning: string; due: string; nextDue: string; events: number }>
+    expect(sample.length).toBeGreaterThanOrEqual(4)
+    for (const d of sample) {
+      const { status, html } = await page(d.id)
+      expect(status).toBe(200)
+      const text = html.replaceAll('<!-- -->', '')
+      expect(text, `detector ${d.id}`).toContain(`Risk ${d.risk}`)
+      expect(text).toContain(`Loop: ${d.loop}`)
+      for (const day of [d.visual, d.functional, d.sensitivity, d.cleaning]) expect(text).toMatch(new RegExp(`(Due|Overdue) ${day}`))
+      expect(text).toContain(`${d.due === 'overdue' ? 'Overdue' : 'Due'} ${d.nextDue}`)
+      // The history lists the latest 40 events, newest first.
+      const latest = data.db.$client
+        .prepare('select id from events where detector_id = ? order by occurred_at desc, id desc limit 40')
+        .all(d.id) as Array<{ id: number }>
+      const { report } = await pageLoaderData<{ report: NonNullable<ReturnType<typeof deviceReport>> }>(server.url, `/devices/${d.id}`, 'routes/_app.devices.$deviceId', { Cookie: cookie })
+      expect(report.events.map((e) => e.id)).toEqual(latest.map((e) => e.id))
+      expect(report.events.length).toBe(Math.min(40, d.events))
+      expect(report.risk.score).toBe(d.risk)
+    }
+  })
+
+  it('answers 404 for a detector that does not exist or an id that is not a record number', async () => {
     expect((await page(999_999)).status).toBe(404)
+    for (const id of ['abc', '0x10', '1e2', '012']) {
+      const res = await fetch(`${server.url}/devices/${id}`, { headers: { Cookie: cookie } })
+      expect(res.status, id).toBe(404)
+      await res.body?.cancel()
+    }
   })
 })

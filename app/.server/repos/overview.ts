@@ -1,83 +1,112 @@
+import { and, asc, between, count, desc, eq, gt, inArray, isNull, sql } from 'drizzle-orm'
 import { addDays, type IsoDate } from '~/domain/dates'
+import { OPEN_VISIT_STATUSES } from '~/domain/vocabulary'
 import type { Db } from '../db'
+import { customers, detectors, sites, tableCounts, users, visitDetectors, visits } from '../schema'
+import { countWhere, perDb } from './statements'
 
-export interface OverviewFigures {
-  customers: number
-  sites: number
-  units: number
-  detectors: number
-  events: number
-  overdue: number
-  dueSoon: number
-  inTrouble: number
-  outOfService: number
-  delayDisagrees: number
-  byEnvironment: Array<{ environment: string; detectors: number; overdue: number }>
-  worstCustomers: Array<{ id: number; name: string; overdue: number; detectors: number }>
-  attention: Array<{ id: number; tag: string; siteName: string; state: string; dueStatus: string; riskScore: number }>
-  upcomingVisits: Array<{
-    id: number
-    scheduledOn: string
-    kind: string
-    status: string
-    siteId: number
-    siteName: string
-    city: string
-    technician: string | null
-    detectors: number
-  }>
-}
+const overdue = eq(detectors.dueStatus, 'overdue')
+const dueSoon = eq(detectors.dueStatus, 'due-soon')
+const inTrouble = eq(detectors.state, 'trouble')
+const outOfService = eq(detectors.state, 'out-of-service')
+const delayDisagrees = eq(detectors.delayAgreement, 'disagree')
+
+const statements = perDb((db: Db) => {
+  // Each figure counts along its own index (due, state, delay); one pass with several conditions would read every detector.
+  const countOf = (condition: typeof overdue) => db.select({ n: count() }).from(detectors).where(condition).prepare()
+  const worst = db
+    .select({ customerId: detectors.customerId, overdue: count().as('overdue') })
+    .from(detectors)
+    .where(overdue)
+    .groupBy(detectors.customerId)
+    .orderBy(desc(count()))
+    .limit(6)
+    .as('worst')
+  return {
+    totals: db.select({ name: tableCounts.name, rows: tableCounts.rows }).from(tableCounts).prepare(),
+    overdue: countOf(overdue),
+    dueSoon: countOf(dueSoon),
+    inTrouble: countOf(inTrouble),
+    outOfService: countOf(outOfService),
+    delayDisagrees: countOf(delayDisagrees),
+    byEnvironment: db
+      .select({ environment: detectors.environment, detectors: count(), overdue: countWhere(overdue) })
+      .from(detectors)
+      .groupBy(detectors.environment)
+      .orderBy(desc(count()))
+      .prepare(),
+    worstCustomers: db
+      .select({
+        id: customers.id,
+        name: customers.name,
+        overdue: worst.overdue,
+        detectors: db.$count(detectors, eq(detectors.customerId, customers.id)),
+      })
+      .from(worst)
+      .innerJoin(customers, eq(customers.id, worst.customerId))
+      .orderBy(desc(worst.overdue), asc(customers.id))
+      .prepare(),
+    attention: db
+      .select({
+        id: detectors.id,
+        tag: detectors.tag,
+        siteName: sites.name,
+        state: detectors.state,
+        dueStatus: detectors.dueStatus,
+        riskScore: detectors.riskScore,
+      })
+      .from(detectors)
+      .innerJoin(sites, eq(sites.id, detectors.siteId))
+      .where(and(gt(detectors.riskScore, 0), isNull(detectors.acknowledgedAt)))
+      .orderBy(desc(detectors.riskScore), asc(detectors.id))
+      .limit(8)
+      .prepare(),
+    upcomingVisits: db
+      .select({
+        id: visits.id,
+        scheduledOn: visits.scheduledOn,
+        kind: visits.kind,
+        status: visits.status,
+        siteId: sites.id,
+        siteName: sites.name,
+        city: sites.city,
+        technician: users.name,
+        detectors: db.$count(visitDetectors, eq(visitDetectors.visitId, visits.id)),
+      })
+      .from(visits)
+      .innerJoin(sites, eq(sites.id, visits.siteId))
+      .leftJoin(users, eq(users.id, visits.technicianId))
+      .where(
+        and(
+          between(visits.scheduledOn, sql.placeholder('from'), sql.placeholder('to')),
+          inArray(visits.status, [...OPEN_VISIT_STATUSES]),
+        ),
+      )
+      .orderBy(asc(visits.scheduledOn), asc(visits.id))
+      .limit(10)
+      .prepare(),
+  }
+})
 
 /** Fleet-wide figures for the overview. Every query rides an index or the kept row totals. */
-export function overviewFigures(db: Db, today: IsoDate): OverviewFigures {
-  const q = db.$client
-  const totals = Object.fromEntries(
-    (q.prepare('select name, rows from table_counts').all() as Array<{ name: string; rows: number }>).map((r) => [
-      r.name,
-      r.rows,
-    ]),
-  )
-  const count = (sql: string, ...params: unknown[]) => (q.prepare(sql).get(...params) as { n: number }).n
+export function overviewFigures(db: Db, today: IsoDate) {
+  const s = statements(db)
+  const totals = new Map(s.totals.all().map((r) => [r.name, r.rows]))
+  const total = (table: string) => totals.get(table) ?? 0
   return {
-    customers: totals.customers ?? 0,
-    sites: totals.sites ?? 0,
-    units: totals.units ?? 0,
-    detectors: totals.detectors ?? 0,
-    events: totals.events ?? 0,
-    overdue: count("select count(*) as n from detectors where due_status = 'overdue'"),
-    dueSoon: count("select count(*) as n from detectors where due_status = 'due-soon'"),
-    inTrouble: count("select count(*) as n from detectors where state = 'trouble'"),
-    outOfService: count("select count(*) as n from detectors where state = 'out-of-service'"),
-    delayDisagrees: count("select count(*) as n from detectors where delay_agreement = 'disagree'"),
-    byEnvironment: q
-      .prepare(
-        `select environment, count(*) as detectors, sum(due_status = 'overdue') as overdue
-         from detectors group by environment order by detectors desc`,
-      )
-      .all() as OverviewFigures['byEnvironment'],
-    worstCustomers: q
-      .prepare(
-        `select c.id, c.name, o.overdue, (select count(*) from detectors d where d.customer_id = c.id) as detectors
-         from (select customer_id, count(*) as overdue from detectors where due_status = 'overdue'
-               group by customer_id order by overdue desc limit 6) o
-         join customers c on c.id = o.customer_id order by o.overdue desc`,
-      )
-      .all() as OverviewFigures['worstCustomers'],
-    attention: q
-      .prepare(
-        `select d.id, d.tag, s.name as siteName, d.state, d.due_status as dueStatus, d.risk_score as riskScore
-         from detectors d join sites s on s.id = d.site_id
-         where d.risk_score > 0 and d.acknowledged_at is null order by d.risk_score desc, d.id limit 8`,
-      )
-      .all() as OverviewFigures['attention'],
-    upcomingVisits: q
-      .prepare(
-        `select v.id, v.scheduled_on as scheduledOn, v.kind, v.status, s.id as siteId, s.name as siteName, s.city,
-                u.name as technician, (select count(*) from visit_detectors vd where vd.visit_id = v.id) as detectors
-         from visits v join sites s on s.id = v.site_id left join users u on u.id = v.technician_id
-         where v.scheduled_on between ? and ? and v.status in ('planned', 'notified', 'in-progress')
-         order by v.scheduled_on, v.id limit 10`,
-      )
-      .all(today, addDays(today, 14)) as OverviewFigures['upcomingVisits'],
+    customers: total('customers'),
+    sites: total('sites'),
+    units: total('units'),
+    detectors: total('detectors'),
+    events: total('events'),
+    overdue: s.overdue.get()!.n,
+    dueSoon: s.dueSoon.get()!.n,
+    inTrouble: s.inTrouble.get()!.n,
+    outOfService: s.outOfService.get()!.n,
+    delayDisagrees: s.delayDisagrees.get()!.n,
+    byEnvironment: s.byEnvironment.all(),
+    worstCustomers: s.worstCustomers.all(),
+    attention: s.attention.all(),
+    upcomingVisits: s.upcomingVisits.all({ from: today, to: addDays(today, 14) }),
   }
 }

@@ -1,5 +1,9 @@
+import type { Statement } from 'better-sqlite3'
+import { eq, inArray } from 'drizzle-orm'
 import type { Db } from '../db'
 import { ftsKindRows, ftsQuery } from '../list-query'
+import { customers, detectors, sites, units } from '../schema'
+import { perDb } from './statements'
 
 export const searchKinds = ['customer', 'site', 'unit', 'detector'] as const
 export type SearchKind = (typeof searchKinds)[number]
@@ -24,20 +28,58 @@ export const PER_KIND = 8
 const CANDIDATES = 1000
 
 // What a person needs to tell two hits apart (tags repeat from site to site), read from the record.
-const KINDS: Record<SearchKind, { href: string; join: string; detail: string }> = {
-  customer: { href: '/customers', join: 'join customers x on x.id = r.value', detail: 'x.kind' },
-  site: { href: '/sites', join: 'join sites x on x.id = r.value', detail: `x.street || ', ' || x.city` },
+const DETAILS: Record<SearchKind, { href: string; details: (db: Db, ids: number[]) => Array<{ id: number; detail: string }> }> = {
+  customer: {
+    href: '/customers',
+    details: (db, ids) => db.select({ id: customers.id, detail: customers.kind }).from(customers).where(inArray(customers.id, ids)).all(),
+  },
+  site: {
+    href: '/sites',
+    details: (db, ids) =>
+      db
+        .select({ id: sites.id, street: sites.street, city: sites.city })
+        .from(sites)
+        .where(inArray(sites.id, ids))
+        .all()
+        .map((s) => ({ id: s.id, detail: `${s.street}, ${s.city}` })),
+  },
   unit: {
     href: '/units',
-    join: 'join units x on x.id = r.value join sites s on s.id = x.site_id',
-    detail: `s.name || coalesce(' · ' || x.location, '')`,
+    details: (db, ids) =>
+      db
+        .select({ id: units.id, site: sites.name, location: units.location })
+        .from(units)
+        .innerJoin(sites, eq(sites.id, units.siteId))
+        .where(inArray(units.id, ids))
+        .all()
+        .map((u) => ({ id: u.id, detail: u.location ? `${u.site} · ${u.location}` : u.site })),
   },
   detector: {
     href: '/devices',
-    join: 'join detectors x on x.id = r.value join sites s on s.id = x.site_id join units u on u.id = x.unit_id',
-    detail: `s.name || ' · ' || u.tag || ' ' || x.position`,
+    details: (db, ids) =>
+      db
+        .select({ id: detectors.id, site: sites.name, unit: units.tag, position: detectors.position })
+        .from(detectors)
+        .innerJoin(sites, eq(sites.id, detectors.siteId))
+        .innerJoin(units, eq(units.id, detectors.unitId))
+        .where(inArray(detectors.id, ids))
+        .all()
+        .map((d) => ({ id: d.id, detail: `${d.site} · ${d.unit} ${d.position}` })),
   },
 }
+
+// FTS5's MATCH, bm25() and the kind-in-rowid test have no word in the query builder: raw SQL, prepared once.
+const candidateStatements = perDb((db: Db) =>
+  Object.fromEntries(
+    searchKinds.map((kind) => [
+      kind,
+      db.$client.prepare<[string], { id: number; title: string; score: number }>(
+        `select rowid / 4 as id, title, bm25(search_index, 0, 0, 4, 1) as score
+         from search_index where search_index match ? and ${ftsKindRows(kind)} limit ${CANDIDATES}`,
+      ),
+    ]),
+  ) as Record<SearchKind, Statement<[string], { id: number; title: string; score: number }>>,
+)
 
 /**
  * As `ftsQuery`, but a one-character word matches a whole token (the 's' of 'rtu 1 s'): a
@@ -59,24 +101,13 @@ export function search(db: Db, q: string): SearchResult {
   const fts = paletteQuery(q)
   if (!fts) return { q, groups: [] }
   const typed = words(q)
+  const candidates = candidateStatements(db)
   const groups = searchKinds.map((kind) => {
-    const k = KINDS[kind]
-    const candidates = db.$client
-      .prepare(
-        `select rowid / 4 as id, title, bm25(search_index, 0, 0, 4, 1) as score
-         from search_index where search_index match ? and ${ftsKindRows(kind)} limit ${CANDIDATES}`,
-      )
-      .all(fts) as Array<{ id: number; title: string; score: number }>
-    const ranked = candidates.map((c) => ({ ...c, exact: words(c.title) === typed ? 0 : 1 }))
+    const ranked = candidates[kind].all(fts).map((c) => ({ ...c, exact: words(c.title) === typed ? 0 : 1 }))
     const best = ranked.sort((a, b) => a.exact - b.exact || a.score - b.score || a.id - b.id).slice(0, PER_KIND)
     if (best.length === 0) return { kind, items: [] }
-    const details = new Map(
-      (
-        db.$client
-          .prepare(`select r.value as id, ${k.detail} as detail from json_each(?) r ${k.join}`)
-          .all(JSON.stringify(best.map((b) => b.id))) as Array<{ id: number; detail: string | null }>
-      ).map((d) => [d.id, d.detail ?? '']),
-    )
+    const k = DETAILS[kind]
+    const details = new Map(k.details(db, best.map((b) => b.id)).map((d) => [d.id, d.detail]))
     return { kind, items: best.map((b) => ({ id: b.id, title: b.title, detail: details.get(b.id) ?? '', href: `${k.href}/${b.id}` })) }
   })
   return { q, groups: groups.filter((g) => g.items.length > 0) }
