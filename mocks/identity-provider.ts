@@ -181,7 +181,10 @@ export async function startIdentityProvider(opts: IdpOptions): Promise<RunningId
   const Provider = await loadProvider()
   const host = opts.host ?? '127.0.0.1'
   const accounts = new Set(opts.accounts.map((a) => a.email))
+  // Set once listening (the issuer needs the port); the request handler reads them before that.
+  // eslint-disable-next-line prefer-const
   let provider: Provider | undefined
+  // eslint-disable-next-line prefer-const
   let delegate: ((req: IncomingMessage, res: ServerResponse) => void) | undefined
 
   async function interaction(provider: Provider, req: IncomingMessage, res: ServerResponse, uid: string, action?: string) {

@@ -2,16 +2,12 @@
 // read these tuples, so a state or kind added here reaches every one of them.
 
 export const CUSTOMER_KINDS = ['restaurant', 'retail', 'office', 'school', 'healthcare'] as const
-export type CustomerKind = (typeof CUSTOMER_KINDS)[number]
 
 export const CODE_BASES = ['nfpa90a', 'imc'] as const
-export type CodeBasis = (typeof CODE_BASES)[number]
 
 export const NOTIFY_METHODS = ['phone', 'email', 'portal'] as const
-export type NotifyMethod = (typeof NOTIFY_METHODS)[number]
 
 export const UNIT_KINDS = ['rtu', 'ahu', 'mau', 'erv', 'fcu'] as const
-export type UnitKind = (typeof UNIT_KINDS)[number]
 
 export const SHUTDOWN_INPUTS = ['break-to-stop', 'make-to-stop'] as const
 export const DUCT_SHAPES = ['rectangular', 'round'] as const
@@ -22,7 +18,6 @@ export const DETECTOR_STATES = ['normal', 'alarm', 'trouble', 'supervisory', 'ou
 export type DetectorStatus = (typeof DETECTOR_STATES)[number]
 
 export const POSITIONS = ['supply', 'return'] as const
-export type Position = (typeof POSITIONS)[number]
 
 export const HOUSINGS = ['standard', 'nema4', 'nema4x'] as const
 export type Housing = (typeof HOUSINGS)[number]
@@ -51,7 +46,6 @@ export const OUTCOMES = ['pass', 'fail'] as const
 export type Outcome = (typeof OUTCOMES)[number]
 
 export const VISIT_KINDS = ['inspection', 'test', 'cleaning', 'repair', 'commissioning'] as const
-export type VisitKind = (typeof VISIT_KINDS)[number]
 
 export const VISIT_STATUSES = ['planned', 'notified', 'in-progress', 'done', 'cancelled'] as const
 export type VisitStatus = (typeof VISIT_STATUSES)[number]
@@ -71,10 +65,8 @@ export const READING_KINDS = [
   'pressure',
   'sensitivity',
 ] as const
-export type ReadingKind = (typeof READING_KINDS)[number]
 
 export const EVENT_KINDS = ['alarm', 'trouble', 'supervisory', 'restore', 'test', 'reset', 'cleaning', 'notice', 'change'] as const
-export type EventKind = (typeof EVENT_KINDS)[number]
 
 /** Why a detector stands in the triage queue; the engine scores each, the fleet filters on them. */
 export const REASON_CODES = [

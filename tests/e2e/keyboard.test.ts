@@ -1,4 +1,4 @@
-import type { Browser, Page } from 'playwright-core'
+import type { Page } from 'playwright-core'
 import { describe, expect, it } from 'vitest'
 import { useSeededServer } from '#tests/setup/fixture'
 import { sessionCookieFor, userIdByEmail } from '#tests/setup/sessions'

@@ -16,7 +16,7 @@ describe('seed', () => {
 
   it('small is deterministic and respects foreign keys', () => {
     const a = seededDb('small')
-    const b = seededDb('small')
+    const b = seededDb('small', { fresh: true })
     made.push(a.cleanup, b.cleanup)
     expect(snapshot(a.db.$client)).toEqual(snapshot(b.db.$client))
     expect(a.db.$client.pragma('foreign_key_check')).toEqual([])
