@@ -145,12 +145,6 @@ export async function readJson<S extends z.ZodType>(request: Request, schema: S)
   return validate(schema, parseJson(await readBytes(request)))
 }
 
-/** As `readJson`, for a form; `toObject` turns the fields into what the schema expects. */
-export async function readForm<S extends z.ZodType>(request: Request, schema: S, toObject = formObject): Promise<z.infer<S>> {
-  kindOf(request, 'form')
-  return validate(schema, toObject(await parseForm(request, await readBytes(request))))
-}
-
 /** As `readJson`, taking JSON or a form alike (pages post forms, scripts post JSON). */
 export async function readJsonOrForm<S extends z.ZodType>(request: Request, schema: S, toObject = formObject): Promise<z.infer<S>> {
   const kind = kindOf(request, 'json-or-form')

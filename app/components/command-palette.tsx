@@ -1,4 +1,4 @@
-import { createContext, useContext, useEffect, useMemo, useRef, useState } from 'react'
+import { createContext, useContext, useEffect, useLayoutEffect, useMemo, useRef, useState } from 'react'
 import { useNavigate } from 'react-router'
 import { can } from '~/domain/permissions'
 import type { Section } from '~/utils/sections'
@@ -29,7 +29,9 @@ export function usePaletteActions(actions: PaletteAction[]) {
   // Entries are republished only when their labels change, so each one runs the newest action of
   // its id: the selection or technician chosen since then, not the one seen at publish time.
   const latest = useRef(actions)
-  latest.current = actions
+  useLayoutEffect(() => {
+    latest.current = actions
+  })
   const key = actions.map((a) => a.id + a.label).join('|')
   useEffect(() => {
     ctx?.setActions(actions.map((a) => ({ ...a, run: () => latest.current.find((x) => x.id === a.id)?.run() })))
@@ -61,11 +63,13 @@ export function CommandPalette({ sections: offered }: { sections: Section[] }) {
     dedupingInterval: 2_000,
   })
 
-  useShortcut('palette', () => setOpen((o) => !o))
-  useEffect(() => {
-    if (open) setRecent(readRecent())
+  // Opening reads the recent list afresh; closing clears the text for next time.
+  const toggle = (next: boolean) => {
+    if (next) setRecent(readRecent())
     else setText('')
-  }, [open])
+    setOpen(next)
+  }
+  useShortcut('palette', () => toggle(!open))
 
   // Close first, then act, so focus lands on the page the command leads to.
   const run = (fn: () => void) => {
@@ -89,12 +93,17 @@ export function CommandPalette({ sections: offered }: { sections: Section[] }) {
   ]
   const firstValue = values[0] ?? ''
   const known = values.join('|')
-  useEffect(() => setHighlight(firstValue), [known, firstValue])
+  // A new set of entries highlights its first: adjusted while rendering, not in an effect after it.
+  const [highlightFor, setHighlightFor] = useState(known)
+  if (highlightFor !== known) {
+    setHighlightFor(known)
+    setHighlight(firstValue)
+  }
   const goShortcut = (to: string) => keysFor(`go:${to}`)[0]
   const mac = typeof navigator !== 'undefined' && /Mac/.test(navigator.platform)
 
   return (
-    <CommandDialog open={open} onOpenChange={setOpen} label="Command palette" value={highlight} onValueChange={setHighlight}>
+    <CommandDialog open={open} onOpenChange={toggle} label="Command palette" value={highlight} onValueChange={setHighlight}>
       <CommandInput value={text} onValueChange={setText} placeholder="Go to, find a customer, site, unit or detector, or run an action…" />
       <CommandList>
         {q.length > 0 && error && (

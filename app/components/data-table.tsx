@@ -123,6 +123,7 @@ export function DataTable<Row extends { id: number }>(p: DataTableProps<Row>) {
     scrollRef.current?.scrollTo({ top: 0 })
   }, [p.query])
 
+  const { endpoint, query, onRowsSeen } = p
   const onPage = useCallback(
     (url: string, page: Page<Row> | undefined, err?: FetchError) => {
       if (err) setError(err)
@@ -130,14 +131,14 @@ export function DataTable<Row extends { id: number }>(p: DataTableProps<Row>) {
       // Rows from before a failed refresh stay on screen, and so does the word that they are old.
       if (!err) setError(null)
       pages.current.set(url, page)
-      if (url.startsWith(`${p.endpoint}?${p.query ? `${p.query}&` : ''}offset=`)) {
+      if (url.startsWith(`${endpoint}?${query ? `${query}&` : ''}offset=`)) {
         setTotal({ n: page.total, exact: page.totalExact })
-        setShownQuery(p.query)
-        p.onRowsSeen?.(page.rows)
+        setShownQuery(query)
+        onRowsSeen?.(page.rows)
       }
       setVersion((v) => v + 1)
     },
-    [p.endpoint, p.query, p.onRowsSeen],
+    [endpoint, query, onRowsSeen],
   )
 
   const count = total?.n ?? 0
@@ -146,6 +147,8 @@ export function DataTable<Row extends { id: number }>(p: DataTableProps<Row>) {
   const view = scrollRef.current?.clientHeight ?? 600
   const ratioRef = useRef(1)
   ratioRef.current = scale === 1 ? 1 : (count * ROW_PX - view) / ((count * ROW_PX) / scale - view)
+  // TanStack Virtual hands back fresh functions each render; this component is not compiler-memoized.
+  // eslint-disable-next-line react-hooks/incompatible-library
   const virtualizer = useVirtualizer({
     count,
     getScrollElement: () => scrollRef.current,

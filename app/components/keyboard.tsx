@@ -1,4 +1,4 @@
-import { createContext, useCallback, useContext, useEffect, useMemo, useRef } from 'react'
+import { createContext, useCallback, useContext, useEffect, useLayoutEffect, useMemo, useRef } from 'react'
 import { useNavigate } from 'react-router'
 import { chordOf, SHORTCUTS, shortcutsFor, type ShortcutId } from '~/utils/shortcuts'
 import { useRole } from './use-role'
@@ -31,7 +31,10 @@ export function KeyboardProvider({ children }: { children: React.ReactNode }) {
   // `g` then a letter leads only to sections the role may open; the others' keys do nothing.
   const role = useRole()
   const usable = useRef(new Set<ShortcutId>())
-  usable.current = useMemo(() => new Set(shortcutsFor(role).map((s) => s.id)), [role])
+  const forRole = useMemo(() => new Set(shortcutsFor(role).map((s) => s.id)), [role])
+  useLayoutEffect(() => {
+    usable.current = forRole
+  }, [forRole])
 
   const register = useCallback((id: ShortcutId, handler: Handler) => {
     const list = handlers.current.get(id) ?? []
@@ -79,7 +82,9 @@ export function KeyboardProvider({ children }: { children: React.ReactNode }) {
 export function useShortcut(id: ShortcutId, handler: Handler, enabled = true) {
   const registry = useContext(KeyboardContext)
   const latest = useRef(handler)
-  latest.current = handler
+  useLayoutEffect(() => {
+    latest.current = handler
+  })
   useEffect(() => {
     if (!registry || !enabled) return
     return registry.register(id, (e) => latest.current(e))

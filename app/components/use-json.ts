@@ -14,9 +14,10 @@ export function useJson<T>(url: string | null, o: { refreshMs?: number } & SWRCo
   const { refreshMs, ...config } = o
   const res = useSWR<T, FetchError>(url, (u: string) => fetchJson<T>(u), { shouldRetryOnError: worthRetrying, ...config })
   const { mutate: write } = useSWRConfig()
-  const [refreshError, setRefreshError] = useState<FetchError | undefined>()
-
-  useEffect(() => setRefreshError(undefined), [url])
+  // A failed background refresh, kept with its URL so that moving to another URL drops it.
+  const [failed, setFailed] = useState<{ url: string; error: FetchError } | undefined>()
+  const refreshError = failed && failed.url === url ? failed.error : undefined
+  const setRefreshError = useCallback((error: FetchError | undefined, at: string | null = url) => setFailed(error && at ? { url: at, error } : undefined), [url])
   useEffect(() => {
     if (!url || !refreshMs) return
     return startVisibleInterval(
@@ -24,21 +25,21 @@ export function useJson<T>(url: string | null, o: { refreshMs?: number } & SWRCo
         fetchJson<T>(url, { background: true }).then(
           // Written under its own URL: the hook may have moved to another key meanwhile.
           (data) => {
-            setRefreshError(undefined)
+            setRefreshError(undefined, url)
             void write(url, data, { revalidate: false })
           },
-          (e: unknown) => setRefreshError(e instanceof FetchError ? e : new FetchError(0, String(e))),
+          (e: unknown) => setRefreshError(e instanceof FetchError ? e : new FetchError(0, String(e)), url),
         )
       },
       refreshMs,
       document,
     )
-  }, [url, refreshMs, write])
+  }, [url, refreshMs, write, setRefreshError])
 
   const { mutate } = res
   const retry = useCallback(() => {
     setRefreshError(undefined)
     return mutate()
-  }, [mutate])
+  }, [mutate, setRefreshError])
   return { data: res.data, error: res.error ?? refreshError, isLoading: res.isLoading, mutate, retry }
 }

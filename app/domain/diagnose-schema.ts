@@ -27,4 +27,3 @@ export const diagnoseRequest = z.object({
     .default({}),
 })
 
-export type DiagnoseRequest = z.infer<typeof diagnoseRequest>

@@ -2,8 +2,6 @@
 // invented customers, sites and staff. Telephone numbers sit in the 555-01xx range kept for fiction;
 // e-mail addresses use reserved .test domains.
 
-export const CONTRACTOR = 'Brightwater Mechanical'
-
 export const DEMO_USERS = [
   { email: 'admin@ductkeeper.test', name: 'Ada Whitlock', role: 'admin' },
   { email: 'lead@ductkeeper.test', name: 'Priya Castellano', role: 'lead' },
