@@ -293,8 +293,8 @@ export function seed(sqlite: Database.Database, scale: Scale, today: IsoDate): S
       for (const task of tasks) {
         // Miswired loops fail the latest functional test; a few others fail on their own.
         const fails =
-          task === 'functional' ? v === lastTestVisit && (miswire !== null || r.chance(0.03))
-          : task === 'sensitivity' ? r.chance(0.03)
+          task === 'functional' ? v === lastTestVisit && (miswire !== null || r.chance(0.015))
+          : task === 'sensitivity' ? r.chance(0.015)
           : task === 'visual' ? r.chance(0.01)
           : false
         failed ||= fails
