@@ -3,6 +3,7 @@ import { parseArgs } from 'node:util'
 import { z } from 'zod'
 import { seedFreshDatabase } from '~/.server/seed/fresh'
 import type { Scale } from '~/.server/seed/generate'
+import { officeToday } from '~/.server/today'
 import { isIsoDate } from '~/domain/dates'
 
 const { values } = parseArgs({
@@ -18,7 +19,7 @@ const opts = z
 
 const path = process.env.DATABASE_PATH ?? 'data/ductkeeper.db'
 // All or nothing: written beside the target and renamed over it when complete (see seedFreshDatabase).
-const result = seedFreshDatabase(path, opts.scale as Scale, opts.today ?? new Date().toISOString().slice(0, 10), { replace: opts.force })
+const result = seedFreshDatabase(path, opts.scale as Scale, opts.today ?? officeToday(), { replace: opts.force })
 if (!result.seeded) {
   console.error(`${path} already holds data; pass --force to replace it with freshly seeded data.`)
   process.exit(1)
