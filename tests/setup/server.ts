@@ -68,6 +68,7 @@ export async function startServer(databasePath: string, extraEnv: Record<string,
     url,
     issuer: idp.issuer,
     output: () => output,
+    pid: child.pid as number,
     stop: async () => {
       await new Promise<void>((resolve) => {
         if (child.exitCode !== null) return resolve()
