@@ -19,7 +19,7 @@ import {
   POSITIONS,
   READING_KINDS,
   SHUTDOWN_INPUTS,
-  TASKS,
+  VISIT_TASKS,
   TERMINALS,
   TEST_STATIONS,
   UNIT_KINDS,
@@ -262,6 +262,13 @@ export const visits = sqliteTable(
       .notNull()
       .default('planned'),
     notes: text('notes'),
+    // The time window agreed with the site, as 'HH:MM' in the site's time zone.
+    windowFrom: text('window_from'),
+    windowUntil: text('window_until'),
+    startedAt: text('started_at'),
+    completedAt: text('completed_at'),
+    cancelledAt: text('cancelled_at'),
+    cancelReason: text('cancel_reason'),
     createdBy: integer('created_by').references(() => users.id),
     version: integer('version').notNull().default(1),
     createdAt: createdAt(),
@@ -287,6 +294,11 @@ export const visitDetectors = sqliteTable(
       .notNull()
       .default('pending'),
     notes: text('notes'),
+    // Why it failed or was not tested, in the technician's words: the office's follow-up reads it.
+    resultReason: text('result_reason'),
+    // What the technician found beyond the readings (signal at the panel, unit shut down, reset,
+    // delay as found, test station, heads fitted), as recorded by the visit form.
+    findings: text('findings', { mode: 'json' }),
     completedAt: text('completed_at'),
   },
   (t) => [primaryKey({ columns: [t.visitId, t.detectorId] }), index('visit_detectors_detector_idx').on(t.detectorId)],
@@ -304,7 +316,7 @@ export const taskResults = sqliteTable(
     visitId: integer('visit_id')
       .notNull()
       .references(() => visits.id),
-    task: text('task', { enum: TASKS }).notNull(),
+    task: text('task', { enum: VISIT_TASKS }).notNull(),
     doneOn: text('done_on').notNull(),
     // A cleaning passes when done; a sensitivity test passes when the reading is inside the listed range.
     outcome: text('outcome', { enum: OUTCOMES }).notNull(),
@@ -357,7 +369,10 @@ export const notifications = sqliteTable(
     inTestFrom: text('in_test_from').notNull(),
     inTestUntil: text('in_test_until').notNull(),
     siteContactTold: text('site_contact_told'),
+    // The all-clear: the system taken out of test, who at the monitoring company confirmed, who logged it.
     clearedAt: text('cleared_at'),
+    clearedWith: text('cleared_with'),
+    clearedBy: integer('cleared_by').references(() => users.id),
   },
   (t) => [index('notifications_site_idx').on(t.siteId, t.notifiedAt), index('notifications_visit_idx').on(t.visitId)],
 )
@@ -393,6 +408,8 @@ export const attachments = sqliteTable(
     contentType: text('content_type').notNull(),
     sizeBytes: integer('size_bytes').notNull(),
     storageKey: text('storage_key').notNull().unique(),
+    // A small JPEG made from an image upload; null for documents.
+    thumbKey: text('thumb_key'),
     uploadedBy: integer('uploaded_by').references(() => users.id),
     uploadedAt: createdAt(),
   },

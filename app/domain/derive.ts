@@ -17,6 +17,7 @@ import type {
   Outcome,
   ReasonCode,
   Task,
+  VisitTask,
 } from './vocabulary'
 
 /** The parts of a detector's record the derivation reads. */
@@ -40,7 +41,8 @@ export interface SitePolicy {
 }
 
 export interface TaskResult {
-  task: Task
+  /** Shutdown and test-station checks are kept in the history too; the schedule reads the four tasks. */
+  task: VisitTask
   doneOn: IsoDate
   outcome: Outcome
 }

@@ -42,6 +42,10 @@ export type LoopVerdict = (typeof LOOP_VERDICTS)[number]
 export const TASKS = ['visual', 'functional', 'sensitivity', 'cleaning'] as const
 export type Task = (typeof TASKS)[number]
 
+/** Work a visit can cover on a detector: the periodic tasks, plus the checks done with the annual test. */
+export const VISIT_TASKS = [...TASKS, 'shutdown', 'test-station'] as const
+export type VisitTask = (typeof VISIT_TASKS)[number]
+
 export const OUTCOMES = ['pass', 'fail'] as const
 export type Outcome = (typeof OUTCOMES)[number]
 

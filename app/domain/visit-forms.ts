@@ -1,0 +1,93 @@
+// What a visit's actions accept, checked the same way by the page, the phone form and the API
+// (`POST /api/visits/:visitId` with an `intent`). Shared by client and server.
+import { z } from 'zod'
+import { dateProblem } from './dates'
+import { NOTIFY_METHODS, VISIT_KINDS, VISIT_TASKS } from './vocabulary'
+
+const day = z.string().superRefine((v, ctx) => {
+  const problem = dateProblem(v)
+  if (problem) ctx.addIssue({ code: 'custom', message: problem })
+})
+const clock = z.string().regex(/^([01]\d|2[0-3]):[0-5]\d$/, 'Use a 24-hour time such as 07:30')
+const instant = z.iso.datetime({ offset: true, error: 'Use an ISO 8601 date-time' })
+const text = (max: number) => z.string().trim().max(max)
+const required = (max: number, what: string) => z.string().trim().min(1, `${what} is required`).max(max)
+const id = z.number().int().positive()
+/** The visit's version as last read: a save against an older one is refused (409), never merged. */
+const version = z.number().int().positive()
+
+/** A loop reading as typed on site: ohms, or "open" for an over-range meter. */
+export const ohms = z.union([z.literal('open'), z.number().min(0).max(100_000_000)])
+
+/** Everything the technician records for one detector at a visit. */
+export const detectorEntry = z.object({
+  detectorId: id,
+  functional: z
+    .object({
+      signalAtPanel: z.enum(['alarm', 'supervisory', 'nothing']),
+      unitShutDown: z.boolean(),
+      resetOk: z.boolean(),
+    })
+    .optional(),
+  loop: z.object({ normal: ohms, alarm: ohms, trouble: ohms, unpowered: ohms }).partial().optional(),
+  inputVolts: z.object({ normal: z.number().min(0).max(300), alarm: z.number().min(0).max(300) }).partial().optional(),
+  pressureInWc: z.number().min(0).max(10).optional(),
+  velocityFpm: z.number().min(0).max(20_000).optional(),
+  sensitivityPctFt: z.number().min(0).max(20).optional(),
+  delaySecondsFound: z.number().int().min(0).max(3_600).optional(),
+  testStationWorked: z.boolean().optional(),
+  cleaned: z.boolean().optional(),
+  headsFitted: z.number().int().min(0).max(4).optional(),
+  notes: text(2_000).optional(),
+  result: z.enum(['pass', 'fail', 'not-tested']),
+  /** Why it failed or was not tested; required for both. */
+  reason: text(500).optional(),
+}).superRefine((e, ctx) => {
+  if (e.result !== 'pass' && !e.reason) ctx.addIssue({ code: 'custom', path: ['reason'], message: 'Say why the detector failed or was not tested' })
+})
+export type DetectorEntry = z.infer<typeof detectorEntry>
+
+export const visitIntent = z.discriminatedUnion('intent', [
+  z.object({
+    intent: z.literal('notify'),
+    version,
+    method: z.enum(NOTIFY_METHODS),
+    spokeWith: required(120, 'The person spoken with'),
+    confirmation: text(60).optional(),
+    inTestFrom: instant,
+    inTestUntil: instant,
+    siteManagementTold: z.boolean(),
+    siteContact: text(120).optional(),
+  }),
+  z.object({ intent: z.literal('start'), version }),
+  z.object({ intent: z.literal('record'), version, entries: z.array(detectorEntry).min(1).max(500) }),
+  z.object({ intent: z.literal('complete'), version, entries: z.array(detectorEntry).max(500).default([]) }),
+  z.object({ intent: z.literal('all-clear'), version, confirmedWith: required(120, 'Who confirmed the system is out of test'), at: instant.optional() }),
+  z.object({ intent: z.literal('cancel'), version, reason: required(500, 'A reason') }),
+  z.object({
+    intent: z.literal('reschedule'),
+    version,
+    scheduledOn: day,
+    windowFrom: clock.optional(),
+    windowUntil: clock.optional(),
+  }),
+  z.object({ intent: z.literal('assign'), version, technicianId: id.nullable() }),
+  z.object({ intent: z.literal('edit'), version, kind: z.enum(VISIT_KINDS).optional(), notes: text(2_000).optional() }),
+])
+export type VisitIntent = z.infer<typeof visitIntent>
+
+/** Booking a visit from a site, a unit, a detector or a selection of detectors. */
+export const newVisit = z.object({
+  siteId: id,
+  kind: z.enum(VISIT_KINDS),
+  scheduledOn: day,
+  windowFrom: clock.optional(),
+  windowUntil: clock.optional(),
+  technicianId: id.nullable().optional(),
+  notes: text(2_000).optional(),
+  detectors: z
+    .array(z.object({ detectorId: id, tasks: z.array(z.enum(VISIT_TASKS)).min(1).max(VISIT_TASKS.length) }))
+    .min(1, 'Choose at least one detector')
+    .max(2_000),
+})
+export type NewVisit = z.infer<typeof newVisit>
