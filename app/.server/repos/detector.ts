@@ -1,6 +1,6 @@
-import { asc, desc, eq, inArray, max, sql } from 'drizzle-orm'
+import { and, asc, desc, eq, inArray, isNotNull, max, sql } from 'drizzle-orm'
 import type { Db } from '../db'
-import { customers, detectorModels, detectors, events, monitoringCompanies, readings, sites, units, users } from '../schema'
+import { customers, detectorModels, detectors, events, monitoringCompanies, readings, sites, units, users, visitDetectors } from '../schema'
 import { perDb } from './statements'
 
 const EVENTS_CAP = 40
@@ -110,6 +110,14 @@ const statements = perDb((db: Db) => ({
     .orderBy(desc(events.occurredAt), desc(events.id))
     .limit(EVENTS_CAP)
     .prepare(),
+  // The latest finished result at a visit: when it failed, the technician's reason is the office's follow-up.
+  lastVisitResult: db
+    .select({ visitId: visitDetectors.visitId, result: visitDetectors.result, reason: visitDetectors.resultReason, on: visitDetectors.completedAt })
+    .from(visitDetectors)
+    .where(and(eq(visitDetectors.detectorId, id), inArray(visitDetectors.result, ['pass', 'fail']), isNotNull(visitDetectors.completedAt)))
+    .orderBy(desc(visitDetectors.completedAt), desc(visitDetectors.visitId))
+    .limit(1)
+    .prepare(),
   siblings: db
     .select({ id: detectors.id, tag: detectors.tag, position: detectors.position })
     .from(detectors)
@@ -130,6 +138,11 @@ export function detectorRecord(db: Db, detectorId: number) {
     device,
     readings: s.readings.all({ id: detectorId }),
     events: s.events.all({ id: detectorId }),
+    followUp: followUpOf(s.lastVisitResult.get({ id: detectorId })),
     siblings: s.siblings.all({ unitId: device.unitId }),
   }
+}
+
+function followUpOf(last: { visitId: number; result: string; reason: string | null; on: string | null } | undefined) {
+  return last?.result === 'fail' ? { visitId: last.visitId, reason: last.reason, on: last.on } : null
 }
