@@ -6,6 +6,8 @@ const schema = z
   .object({
     NODE_ENV: z.enum(['development', 'production', 'test']).default('development'),
     DATABASE_PATH: z.string().min(1).default('data/ductkeeper.db'),
+    /** Where uploaded photos and documents are kept; unset, a folder `attachments` beside the database file. */
+    ATTACHMENTS_DIR: z.string().min(1).optional(),
     PORT: z.coerce.number().int().positive().default(3000),
     /** The public origin, e.g. https://ductkeeper.example.com; sets Secure cookies and the origin check. */
     APP_URL: optionalUrl,
