@@ -145,12 +145,18 @@ describe('visit work: booking, notice, recording and completing', () => {
   it('takes one of two saves made from the same version and refuses the other (409)', async () => {
     const v = version(visitId)
     const [a] = covered()
-    const first = await post(`/api/visits/${visitId}`, { intent: 'record', version: v, entries: [{ detectorId: a, result: 'pass', cleaned: true, loop: { normal: 15_200 } }] }, 'tech')
-    const second = await post(`/api/visits/${visitId}`, { intent: 'record', version: v, entries: [{ detectorId: a, result: 'fail', reason: 'Other tab' }] }, 'tech')
-    expect(first.status).toBe(200)
-    expect(second.status).toBe(409)
-    expect((await second.json()).error).toMatch(/^This visit changed since you opened it/)
-    expect(q().prepare('select result, result_reason as r from visit_detectors where visit_id = ? and detector_id = ?').get(visitId, a)).toEqual({ result: 'pass', r: null })
+    // Sent together, as from two tabs opened on the same version: the write lock orders them.
+    const tabs = [
+      { detectorId: a, result: 'pass', cleaned: true, loop: { normal: 15_200 } },
+      { detectorId: a, result: 'fail', reason: 'Other tab' },
+    ]
+    const answers = await Promise.all(tabs.map((entry) => post(`/api/visits/${visitId}`, { intent: 'record', version: v, entries: [entry] }, 'tech')))
+    expect(answers.map((r) => r.status).sort()).toEqual([200, 409])
+    const winner = tabs[answers.findIndex((r) => r.status === 200)]
+    const loser = answers.find((r) => r.status === 409)!
+    expect((await loser.json()).error).toMatch(/^This visit changed since you opened it/)
+    expect(q().prepare('select result, result_reason as r from visit_detectors where visit_id = ? and detector_id = ?').get(visitId, a)).toEqual({ result: winner.result, r: winner.reason ?? null })
+    expect(version(visitId)).toBe(v + 1)
     // Saving again replaces that detector's entry; no history is written yet.
     const again = await post(`/api/visits/${visitId}`, { intent: 'record', version: v + 1, entries: [{ detectorId: a, result: 'pass', cleaned: true, loop: { normal: 15_150, alarm: 6.5 }, delaySecondsFound: 12 }] }, 'tech')
     expect(again.status).toBe(200)
