@@ -21,6 +21,8 @@ const schema = z
     OIDC_CLIENT_ID: z.string().default('ductkeeper-local'),
     OIDC_CLIENT_SECRET: z.string().default('local-secret-not-for-production'),
     OIDC_REDIRECT_URI: optionalUrl,
+    /** The contractor's name as printed on inspection records. */
+    COMPANY_NAME: z.string().trim().min(1).max(120).default('Brightwater Mechanical'),
   })
   .superRefine((env, ctx) => {
     // Production refuses to start without a real signing secret.
