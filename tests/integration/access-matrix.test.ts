@@ -4,6 +4,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { allows, ROLE_KEYS, type Access, type Role, type RouteAccess } from '~/domain/permissions'
 import { DEMO_EMAIL } from '#tests/setup/fixture'
 import { startServer } from '#tests/setup/server'
+import sharp from 'sharp'
 import { sessionCookieFor, userIdByEmail } from '#tests/setup/sessions'
 import { seededDb } from '#tests/setup/temp-db'
 
@@ -39,6 +40,13 @@ describe('route × role matrix', () => {
   beforeAll(async () => {
     data = seededDb('small')
     server = await startServer(data.path)
+    // The seed holds no photos: one real upload gives the attachment routes their row 1.
+    const png = await sharp({ create: { width: 8, height: 8, channels: 3, background: '#2a6' } }).png().toBuffer()
+    const form = new FormData()
+    form.append('file', new Blob([new Uint8Array(png)], { type: 'image/png' }), 'matrix.png')
+    const admin = (await sessionCookieFor(data.db, userIdByEmail(data.db, DEMO_EMAIL.admin))).cookie
+    const upload = await fetch(`${server.url}/api/visits/1/attachments`, { method: 'POST', headers: { Cookie: admin, Origin: server.url }, body: form })
+    expect(upload.status, await upload.clone().text()).toBe(201)
   })
   afterAll(async () => {
     await server?.stop()
