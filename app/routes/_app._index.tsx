@@ -9,5 +9,5 @@ export const handle = { access: { loader: 'view:fleet' } satisfies RouteAccess, 
 
 export async function loader({ request }: Route.LoaderArgs) {
   const user = await requireUser(request, 'view:fleet')
-  throw redirect(homeFor(can(user.role, 'triage:fleet') || can(user.role, 'schedule:visits')))
+  throw redirect(homeFor(can(user.role, 'triage:fleet') || can(user.role, 'schedule:visits'), can(user.role, 'record:work')))
 }

@@ -4,6 +4,8 @@ import { getDb } from '~/.server/db'
 import { deviceReport } from '~/.server/device-report'
 import { pageNotFound, pageRecordId } from '~/.server/repos/record-id'
 import { officeToday } from '~/.server/today'
+import { openVisitsOfDetector } from '~/.server/repos/visit-field'
+import { BookVisit } from '~/components/visit/book-visit'
 import { Caution } from '~/components/caution'
 import { EventTimeline } from '~/components/event-timeline'
 import { StateBadge } from '~/components/state-badge'
@@ -26,9 +28,10 @@ export const meta: Route.MetaFunction = ({ data }) => [
 export async function loader({ request, params }: Route.LoaderArgs) {
   await requireUser(request, 'view:fleet')
   const today = officeToday()
-  const report = deviceReport(getDb(), pageRecordId(params, 'deviceId', 'detector'), today)
+  const id = pageRecordId(params, 'deviceId', 'detector')
+  const report = deviceReport(getDb(), id, today)
   if (!report) throw pageNotFound('detector')
-  return { report, today }
+  return { report, today, openVisits: openVisitsOfDetector(getDb(), id) }
 }
 
 const ohms = (n: number) => `${formatCount(Math.round(n * 10) / 10)} Ω`
@@ -76,6 +79,20 @@ export default function Device({ loaderData }: Route.ComponentProps) {
           {d.position === 'supply' ? 'Supply' : 'Return'} duct of {d.unitKind.toUpperCase()} {d.unitTag}
           {d.unitLocation && ` (${d.unitLocation})`} · {d.street}, {d.city} · {d.modelName}
         </p>
+        <section aria-label="Open visits" className="mt-3 flex flex-wrap items-center gap-x-3 gap-y-2 text-sm">
+          {loaderData.openVisits.length === 0 ? (
+            <span className="text-ink-soft">No open visit.</span>
+          ) : (
+            loaderData.openVisits.map((v) => (
+              <Link key={v.id} to={`/visits/${v.id}`} className="inline-flex items-center gap-1.5 rounded-sm border border-line bg-panel px-2 py-1 hover:border-accent">
+                <span className="font-mono text-xs">{v.scheduledOn}</span>
+                <span className="capitalize">{v.kind}</span>
+                <StateBadge value={v.status} />
+              </Link>
+            ))
+          )}
+          <BookVisit siteId={d.siteId} detectors={[{ id: d.id, tag: d.tag }]} what={d.tag} />
+        </section>
       </header>
 
       <Caution />

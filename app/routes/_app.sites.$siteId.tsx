@@ -5,6 +5,7 @@ import { pageNotFound, pageRecordId } from '~/.server/repos/record-id'
 import { siteRecord } from '~/.server/repos/site'
 import { officeToday } from '~/.server/today'
 import { Caution } from '~/components/caution'
+import { BookVisit } from '~/components/visit/book-visit'
 import { EventTimeline } from '~/components/event-timeline'
 import { StateBadge } from '~/components/state-badge'
 import type { RouteAccess } from '~/domain/permissions'
@@ -70,6 +71,9 @@ export default function Site({ loaderData }: Route.ComponentProps) {
           {s.street}, {s.city} {s.postalCode} · {formatCount(units.total)} {units.total === 1 ? 'unit' : 'units'},{' '}
           {formatCount(detectors.total)} {detectors.total === 1 ? 'detector' : 'detectors'}
         </p>
+        <div className="mt-3">
+          <BookVisit siteId={s.id} detectors={detectors.rows.map((d) => ({ id: d.id, tag: d.tag }))} what={s.name} />
+        </div>
       </header>
 
       <section aria-labelledby="before-h" className="rounded-md border border-soon/40 bg-panel p-3 sm:p-4">
@@ -268,7 +272,9 @@ export default function Site({ loaderData }: Route.ComponentProps) {
                   {visits.rows.map((v) => (
                     <tr key={v.id} className="border-t border-line/70 align-top sm:align-middle">
                       <td className="px-4 py-2 whitespace-nowrap">
-                        <span className="font-mono text-xs">{v.scheduledOn}</span>{' '}
+                        <Link to={`/visits/${v.id}`} className="font-mono text-xs text-accent hover:underline">
+                          {v.scheduledOn}
+                        </Link>{' '}
                         <span className="text-xs text-ink-faint">{formatDay(v.scheduledOn).slice(0, 3)}</span>
                       </td>
                       <td className="px-2 py-2">

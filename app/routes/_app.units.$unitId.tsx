@@ -3,6 +3,7 @@ import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
 import { pageNotFound, pageRecordId } from '~/.server/repos/record-id'
 import { unitRecord } from '~/.server/repos/unit'
+import { BookVisit } from '~/components/visit/book-visit'
 import { Caution } from '~/components/caution'
 import { StateBadge } from '~/components/state-badge'
 import type { RouteAccess } from '~/domain/permissions'
@@ -73,6 +74,9 @@ export default function Unit({ loaderData }: Route.ComponentProps) {
         <p className="mt-1 text-sm text-ink-soft">
           {u.location ?? 'Location not recorded'} · {site.city} · {u.shutdownInput} shutdown input
         </p>
+        <div className="mt-3">
+          <BookVisit siteId={site.id} detectors={detectors.map((d) => ({ id: d.id, tag: d.tag }))} what={`unit ${u.tag}`} />
+        </div>
       </header>
 
       <div className="grid gap-6 lg:grid-cols-[2fr_3fr]">

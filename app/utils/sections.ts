@@ -12,6 +12,7 @@ export interface Section {
 }
 
 export const SECTIONS: Section[] = [
+  { to: '/my-day', label: 'My day', key: 'm', capability: 'record:work' },
   { to: '/triage', label: 'Triage', key: 't', capability: 'view:fleet' },
   { to: '/overview', label: 'Overview', key: 'o', capability: 'view:fleet' },
   { to: '/devices', label: 'Detectors', key: 'd', capability: 'view:fleet' },
@@ -29,7 +30,11 @@ export function sectionsFor(role: Role): Section[] {
   return SECTIONS.filter((s) => can(role, s.capability))
 }
 
-/** Where each role lands after sign-in: the queue for those who triage or schedule, else the overview. */
-export function homeFor(canTriageOrSchedule: boolean) {
-  return canTriageOrSchedule ? '/triage' : '/overview'
+/**
+ * Where each role lands after sign-in: the queue for those who triage or schedule, their own visits
+ * for those who record work, else the overview.
+ */
+export function homeFor(canTriageOrSchedule: boolean, recordsWork = false) {
+  if (canTriageOrSchedule) return '/triage'
+  return recordsWork ? '/my-day' : '/overview'
 }

@@ -8,7 +8,7 @@ import { badgeCell, linkCell, monoCell, selectColumn } from '~/components/column
 import { ListPage, options } from '~/components/list-page'
 import { StateBadge } from '~/components/state-badge'
 import type { RouteAccess } from '~/domain/permissions'
-import type { Route } from './+types/_app.visits'
+import type { Route } from './+types/_app.visits._index'
 
 // Bare /visits redirects to today's work; sampleQuery reaches the page itself in the route × role test.
 export const handle = { access: { loader: 'view:fleet' } satisfies RouteAccess, sampleQuery: 'status=planned' }
@@ -62,7 +62,7 @@ export default function Visits({ loaderData }: Route.ComponentProps) {
         { kind: 'date', param: 'to', label: 'To' },
       ]}
       columns={columns}
-      rowHref={(r) => `/sites/${r.siteId}`}
+      rowHref={(r) => `/visits/${r.id}`}
     />
   )
 }
