@@ -1,4 +1,6 @@
-import { calendarFor } from '~/domain/calendar'
+import { bookVisit } from '../visits/book'
+import { VisitRefusal } from '../visits/refusal'
+import type { VisitTask } from '~/domain/vocabulary'
 import { writeTx, type Db } from '../db'
 import { writeAudit } from '../audit'
 import { listsChanged } from '../list-query'
@@ -50,38 +52,24 @@ export function assign(db: Db, actorId: number, ids: Ids, technicianId: number) 
 }
 
 /**
- * Books one visit per site for the selected detectors on a working day of each site's region.
- * Refuses the whole request (nothing written) if any site cannot take that date.
+ * Books one visit per site for the selected detectors, each through the one booking path (working
+ * day, technician, open visits for the same tasks). All or nothing: one refusal books none.
  */
 export function scheduleVisits(db: Db, actorId: number, ids: Ids, o: { date: string; kind: 'inspection' | 'test' | 'cleaning' | 'repair'; technicianId: number | null; today: string }) {
-  if (o.date < o.today) throw new Refusal('Pick today or a later date.')
-  const q = db.$client
+  const tasks: VisitTask[] = o.kind === 'cleaning' ? ['visual', 'cleaning'] : o.kind === 'inspection' ? ['visual'] : ['visual', 'functional']
   const result = writeTx(db, () => {
-    if (o.technicianId !== null && !q.prepare("select 1 from users where id = ? and role = 'technician' and active = 1").get(o.technicianId)) {
-      throw new Refusal('Choose an active technician, or leave the visit unassigned.')
-    }
     const rows = detectorsById(db, ids)
     const bySite = new Map<number, number[]>()
     for (const r of rows) bySite.set(r.siteId, [...(bySite.get(r.siteId) ?? []), r.id])
-    const regions = q.prepare(`select id, name, region from sites where id in (${[...bySite.keys()].map(() => '?').join(',')})`).all(...bySite.keys()) as Array<{ id: number; name: string; region: string }>
-    for (const s of regions) {
-      const cal = calendarFor(s.region)
-      if (!cal.isWorkingDay(o.date)) {
-        const why = cal.holidayName(o.date) ?? 'a weekend day'
-        throw new Refusal(`${o.date} is not a working day at ${s.name} (${why}); the next one is ${cal.nextWorkingDay(o.date)}.`)
+    try {
+      for (const [siteId, detectorIds] of bySite) {
+        bookVisit(db, actorId, { siteId, kind: o.kind, scheduledOn: o.date, technicianId: o.technicianId, detectors: detectorIds.map((detectorId) => ({ detectorId, tasks })) }, o.today)
       }
+    } catch (error) {
+      if (error instanceof VisitRefusal) throw new Refusal(error.message)
+      throw error
     }
-    const insVisit = q.prepare("insert into visits (site_id, kind, scheduled_on, technician_id, status, created_by) values (?, ?, ?, ?, 'planned', ?)")
-    const insItem = q.prepare("insert or ignore into visit_detectors (visit_id, detector_id, tasks, result) values (?, ?, ?, 'pending')")
-    const tasks = o.kind === 'cleaning' ? 'visual,cleaning' : o.kind === 'inspection' ? 'visual' : 'visual,functional'
-    const visitIds: number[] = []
-    for (const [siteId, detectorIds] of bySite) {
-      const visitId = Number(insVisit.run(siteId, o.kind, o.date, o.technicianId, actorId).lastInsertRowid)
-      for (const d of detectorIds) insItem.run(visitId, d, tasks)
-      writeAudit(db, { actorId, action: 'visit.schedule', entity: 'visit', entityId: visitId, after: { siteId, date: o.date, kind: o.kind, technicianId: o.technicianId, detectorIds } })
-      visitIds.push(visitId)
-    }
-    return { visits: visitIds.length, detectors: rows.length }
+    return { visits: bySite.size, detectors: rows.length }
   })
   listsChanged()
   return result
