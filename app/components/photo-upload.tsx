@@ -19,6 +19,8 @@ interface Props {
   visitId: number
   /** Files go on this detector's record as well as the visit's. */
   detectorId?: number
+  /** The detector's tag, to name it in words. */
+  detectorTag?: string
   onUploaded?: (attachments: UploadedAttachment[]) => void
 }
 
@@ -65,7 +67,7 @@ const bigButton =
   'flex min-h-14 flex-1 cursor-pointer items-center justify-center gap-2 rounded-md border px-4 py-3 text-base font-semibold focus-within:outline-2 focus-within:outline-offset-2 focus-within:outline-accent'
 
 /** Photos and documents for a visit from a phone: take a picture or pick files; shows progress and what was sent. */
-export function PhotoUpload({ visitId, detectorId, onUploaded }: Props) {
+export function PhotoUpload({ visitId, detectorId, detectorTag, onUploaded }: Props) {
   const [sending, setSending] = useState<Sending>({ state: 'idle' })
   const [sent, setSent] = useState<UploadedAttachment[]>([])
   const hintId = useId()
@@ -120,14 +122,14 @@ export function PhotoUpload({ visitId, detectorId, onUploaded }: Props) {
           />
         </label>
         <label className={`${bigButton} border-line-strong bg-panel text-ink ${busy ? 'pointer-events-none opacity-60' : ''}`}>
-          <span aria-hidden="true">＋</span> Choose files
+          <span aria-hidden="true">+</span> Choose files
           <input type="file" accept={UPLOAD_ACCEPT} multiple className="sr-only" disabled={busy} aria-describedby={hintId} onChange={chosen} />
         </label>
       </div>
       <p id={hintId} className="text-sm text-ink-soft">
         JPEG, PNG, WebP or HEIC photos and PDF documents; up to {UPLOAD_LIMITS.files} files, {sizeInWords(UPLOAD_LIMITS.fileBytes)} each,{' '}
         {sizeInWords(UPLOAD_LIMITS.requestBytes)} at a time.
-        {detectorId !== undefined ? ` Filed under detector ${detectorId} as well as this visit.` : ''}
+        {detectorId !== undefined ? ` Filed under ${detectorTag ?? `detector ${detectorId}`} as well as this visit.` : ''}
       </p>
 
       {sending.state === 'sending' && (

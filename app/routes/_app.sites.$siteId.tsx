@@ -71,8 +71,14 @@ export default function Site({ loaderData }: Route.ComponentProps) {
           {s.street}, {s.city} {s.postalCode} · {formatCount(units.total)} {units.total === 1 ? 'unit' : 'units'},{' '}
           {formatCount(detectors.total)} {detectors.total === 1 ? 'detector' : 'detectors'}
         </p>
-        <div className="mt-3">
+        <div className="mt-3 flex flex-wrap items-center gap-x-4 gap-y-2">
           <BookVisit siteId={s.id} detectors={detectors.rows.map((d) => ({ id: d.id, tag: d.tag }))} what={s.name} />
+          <Link to={`/sites/${s.id}/record`} className="text-sm text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink">
+            Inspection record
+          </Link>
+          <Link to={`/sites/${s.id}/labels`} className="text-sm text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink">
+            Detector labels with QR codes
+          </Link>
         </div>
       </header>
 

@@ -101,6 +101,9 @@ export default function Visit({ loaderData }: Route.ComponentProps) {
           <span>
             {done} of {detectors.total} {detectors.total === 1 ? 'detector' : 'detectors'} recorded
           </span>
+          <Link to={`/visits/${v.id}/record`} className="text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink">
+            Inspection record
+          </Link>
         </p>
       </header>
 

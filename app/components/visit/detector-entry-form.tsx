@@ -333,7 +333,7 @@ function DetectorCard({ visitId, version, d, delayPolicySeconds }: { visitId: nu
         <h4 id={`photo-${d.id}`} className="text-lg font-semibold">
           Photos of {d.tag}
         </h4>
-        <PhotoUpload visitId={visitId} detectorId={d.id} onUploaded={() => void revalidator.revalidate()} />
+        <PhotoUpload visitId={visitId} detectorId={d.id} detectorTag={d.tag} onUploaded={() => void revalidator.revalidate()} />
       </section>
 
       <section aria-labelledby={`res-${d.id}`} className="space-y-3">
