@@ -1,7 +1,7 @@
 import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
 import { parseQuery, runList } from '~/.server/list-query'
-import { eventList, eventQuery, searchIsBroad, type EventListRow, type EventQuery } from '~/.server/lists/events'
+import { eventList, eventQuery, searchIsBroad, type EventQuery } from '~/.server/lists/events'
 import type { RouteAccess } from '~/domain/permissions'
 import type { Route } from './+types/api.events'
 
@@ -12,5 +12,5 @@ export async function loader({ request }: Route.LoaderArgs) {
   const parsed = parseQuery(eventQuery, request)
   const db = getDb()
   const query: EventQuery = { ...parsed, broad: parsed.q ? searchIsBroad(db, parsed.q) : false }
-  return Response.json(runList<EventQuery, EventListRow>(db, eventList, query))
+  return Response.json(runList(db, eventList, query))
 }

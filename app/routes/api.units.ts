@@ -1,7 +1,7 @@
 import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
 import { parseQuery, runList } from '~/.server/list-query'
-import { unitList, unitQuery, type UnitListRow } from '~/.server/lists/units'
+import { unitList, unitQuery } from '~/.server/lists/units'
 import type { RouteAccess } from '~/domain/permissions'
 import type { Route } from './+types/api.units'
 
@@ -10,5 +10,5 @@ export const handle = { access: { loader: 'view:fleet' } satisfies RouteAccess }
 export async function loader({ request }: Route.LoaderArgs) {
   await requireUser(request, 'view:fleet')
   const query = parseQuery(unitQuery, request)
-  return Response.json(runList<typeof query, UnitListRow>(getDb(), unitList, query))
+  return Response.json(runList(getDb(), unitList, query))
 }

@@ -2,7 +2,7 @@ import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
 import { readJsonOrForm } from '~/.server/http'
 import { parseQuery, runList } from '~/.server/list-query'
-import { asVisitRow, visitList, visitQuery, type VisitListRowRaw } from '~/.server/lists/visits'
+import { visitList, visitQuery } from '~/.server/lists/visits'
 import { officeToday } from '~/.server/today'
 import { bookVisit } from '~/.server/visits/book'
 import { payloadOf, refusalResponse } from '~/.server/visits/refusal'
@@ -15,8 +15,7 @@ export const handle = { access: { loader: 'view:fleet', action: 'schedule:visits
 export async function loader({ request }: Route.LoaderArgs) {
   await requireUser(request, 'view:fleet')
   const query = parseQuery(visitQuery, request)
-  const page = runList<typeof query, VisitListRowRaw>(getDb(), visitList, query)
-  return Response.json({ ...page, rows: page.rows.map(asVisitRow) })
+  return Response.json(runList(getDb(), visitList, query))
 }
 
 /** Books a visit: 201 with its id, or 409 listing the open visits that already cover those tasks. */

@@ -1,24 +1,26 @@
+import { eq, gte, inArray, lte, type SQL } from 'drizzle-orm'
 import { z } from 'zod'
 import { DETECTOR_STATES, DUE_STATUSES, ENVIRONMENTS, HOUSINGS, DELAY_AGREEMENTS, LOOP_VERDICTS, POSITIONS } from '~/domain/vocabulary'
-import { ftsIds, ftsQuery, idParam, isoDate, multi, pagingSchema, type ListSpec, whereBuilder } from '../list-query'
+import { customers, detectors, sites, units } from '../schema'
+import { ftsIds, ftsQuery, idParam, inList, isoDate, multi, pagingSchema, type ListRow, type ListSpec } from '../list-query'
 
 const SORTS = {
-  tag: 't.tag',
-  site: 's.name',
-  customer: 'c.name',
-  unit: 'u.tag',
-  position: 't.position',
-  state: 't.state',
-  due: 't.due_status',
-  nextDueOn: 't.next_due_on',
-  environment: 't.environment',
-  housing: 't.housing',
-  delay: 't.delay_agreement',
-  loop: 't.loop_verdict',
-  risk: 't.risk_score',
-  lastFunctionalOn: 't.last_functional_on',
-  installedOn: 't.installed_on',
-} as const
+  tag: detectors.tag,
+  site: sites.name,
+  customer: customers.name,
+  unit: units.tag,
+  position: detectors.position,
+  state: detectors.state,
+  due: detectors.dueStatus,
+  nextDueOn: detectors.nextDueOn,
+  environment: detectors.environment,
+  housing: detectors.housing,
+  delay: detectors.delayAgreement,
+  loop: detectors.loopVerdict,
+  risk: detectors.riskScore,
+  lastFunctionalOn: detectors.lastFunctionalOn,
+  installedOn: detectors.installedOn,
+}
 
 export const deviceQuery = pagingSchema(Object.keys(SORTS) as [keyof typeof SORTS, ...Array<keyof typeof SORTS>]).extend({
   state: multi(DETECTOR_STATES),
@@ -40,78 +42,65 @@ export const deviceQuery = pagingSchema(Object.keys(SORTS) as [keyof typeof SORT
 })
 export type DeviceQuery = z.infer<typeof deviceQuery>
 
-export interface DeviceListRow {
-  id: number
-  tag: string
-  siteId: number
-  site: string
-  city: string
-  customerId: number
-  customer: string
-  unitId: number
-  unit: string
-  position: string
-  state: string
-  due: string
-  nextDueOn: string | null
-  environment: string
-  housing: string
-  delay: string
-  loop: string | null
-  risk: number
-  lastFunctionalOn: string | null
-  installedOn: string
+const select = {
+  id: detectors.id,
+  tag: detectors.tag,
+  siteId: detectors.siteId,
+  site: sites.name,
+  city: sites.city,
+  customerId: detectors.customerId,
+  customer: customers.name,
+  unitId: detectors.unitId,
+  unit: units.tag,
+  position: detectors.position,
+  state: detectors.state,
+  due: detectors.dueStatus,
+  nextDueOn: detectors.nextDueOn,
+  environment: detectors.environment,
+  housing: detectors.housing,
+  delay: detectors.delayAgreement,
+  loop: detectors.loopVerdict,
+  risk: detectors.riskScore,
+  lastFunctionalOn: detectors.lastFunctionalOn,
+  installedOn: detectors.installedOn,
+}
+export type DeviceListRow = ListRow<typeof select>
+
+/** Detectors whose words (tag, serial, site, unit…) start with those of `q`. */
+export function detectorSearch(q: string | undefined): SQL | undefined {
+  const fts = q ? ftsQuery(q) : null
+  return fts ? inArray(detectors.id, ftsIds('detector', fts)) : undefined
 }
 
-export const deviceList: ListSpec<DeviceQuery> = {
-  // Left joins, though every detector has all three: SQLite drops an unused left join, so paging and
-  // counting over detectors alone stay on the detectors indexes.
-  from: 'detectors t left join sites s on s.id = t.site_id left join customers c on c.id = t.customer_id left join units u on u.id = t.unit_id',
-  select: {
-    id: 't.id',
-    tag: 't.tag',
-    siteId: 't.site_id',
-    site: 's.name',
-    city: 's.city',
-    customerId: 't.customer_id',
-    customer: 'c.name',
-    unitId: 't.unit_id',
-    unit: 'u.tag',
-    position: 't.position',
-    state: 't.state',
-    due: 't.due_status',
-    nextDueOn: 't.next_due_on',
-    environment: 't.environment',
-    housing: 't.housing',
-    delay: 't.delay_agreement',
-    loop: 't.loop_verdict',
-    risk: 't.risk_score',
-    lastFunctionalOn: 't.last_functional_on',
-    installedOn: 't.installed_on',
-  },
+export const deviceList: ListSpec<DeviceQuery, typeof select> = {
+  table: detectors,
+  // Left joins, though every detector has all three (NOT NULL foreign keys): SQLite drops an unused
+  // left join, so paging and counting over detectors alone stay on the detectors indexes.
+  from: (q) =>
+    q
+      .leftJoin(sites, eq(sites.id, detectors.siteId))
+      .leftJoin(customers, eq(customers.id, detectors.customerId))
+      .leftJoin(units, eq(units.id, detectors.unitId)),
+  select,
   sorts: SORTS,
   defaultSort: { key: 'risk', dir: 'desc' },
-  countedAs: 'detectors',
-  where(f) {
-    const { add, list, done } = whereBuilder()
-    const fts = f.q ? ftsQuery(f.q) : null
-    if (fts) add(`t.id in (${ftsIds('detector')})`, fts)
-    list('t.state', f.state)
-    list('t.due_status', f.due)
-    list('t.environment', f.environment)
-    list('t.housing', f.housing)
-    list('t.delay_agreement', f.delay)
-    list('t.loop_verdict', f.loop)
-    list('t.position', f.position)
-    if (f.customer) add('t.customer_id = ?', f.customer)
-    if (f.site) add('t.site_id = ?', f.site)
-    if (f.unit) add('t.unit_id = ?', f.unit)
-    if (f.assignedTo) add('t.assigned_to = ?', f.assignedTo)
-    if (f.nextDueFrom) add('t.next_due_on >= ?', f.nextDueFrom)
-    if (f.nextDueTo) add('t.next_due_on <= ?', f.nextDueTo)
-    if (f.installedFrom) add('t.installed_on >= ?', f.installedFrom)
-    if (f.installedTo) add('t.installed_on <= ?', f.installedTo)
-    if (f.minRisk !== undefined) add('t.risk_score >= ?', f.minRisk)
-    return done()
-  },
+  where: (f) => [
+    detectorSearch(f.q),
+    inList(detectors.state, f.state),
+    inList(detectors.dueStatus, f.due),
+    inList(detectors.environment, f.environment),
+    inList(detectors.housing, f.housing),
+    inList(detectors.delayAgreement, f.delay),
+    inList(detectors.loopVerdict, f.loop),
+    inList(detectors.position, f.position),
+    f.customer ? eq(detectors.customerId, f.customer) : undefined,
+    f.site ? eq(detectors.siteId, f.site) : undefined,
+    f.unit ? eq(detectors.unitId, f.unit) : undefined,
+    f.assignedTo ? eq(detectors.assignedTo, f.assignedTo) : undefined,
+    f.nextDueFrom ? gte(detectors.nextDueOn, f.nextDueFrom) : undefined,
+    f.nextDueTo ? lte(detectors.nextDueOn, f.nextDueTo) : undefined,
+    f.installedFrom ? gte(detectors.installedOn, f.installedFrom) : undefined,
+    f.installedTo ? lte(detectors.installedOn, f.installedTo) : undefined,
+    f.minRisk !== undefined ? gte(detectors.riskScore, f.minRisk) : undefined,
+  ],
 }

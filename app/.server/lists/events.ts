@@ -1,17 +1,19 @@
+import { eq, gte, inArray, lt, lte, or, sql } from 'drizzle-orm'
 import { z } from 'zod'
 import { addDays } from '~/domain/dates'
-import type { Db } from '../db'
 import { EVENT_KINDS } from '~/domain/vocabulary'
-import { ftsIds, ftsQuery, idParam, inList, isoDate, multi, pagingSchema, type ListSpec, whereBuilder } from '../list-query'
+import type { Db } from '../db'
+import { detectors, events, sites, users } from '../schema'
+import { ftsIds, ftsQuery, idParam, inList, isoDate, multi, orNull, pagingSchema, sitesOfCustomer, type ListRow, type ListSpec } from '../list-query'
 
 const SORTS = {
-  occurredAt: 't.occurred_at',
-  kind: 't.kind',
-  detail: 't.detail',
-  detector: 'd.tag',
-  site: 's.name',
-  by: 'u.name',
-} as const
+  occurredAt: events.occurredAt,
+  kind: events.kind,
+  detail: events.detail,
+  detector: detectors.tag,
+  site: sites.name,
+  by: users.name,
+}
 
 // Millions of rows: occurredAt is served by events_time_idx (and by the site, detector and kind
 // indexes, which all end in occurred_at). Any other order sorts every event: over the 2.1 million
@@ -53,66 +55,53 @@ const BROAD_DETECTORS = 1000
 export function searchIsBroad(db: Db, q: string): boolean {
   const fts = ftsQuery(q)
   if (!fts) return false
-  const sql = `select count(*) as n from (${ftsIds('detector')} limit ${BROAD_DETECTORS + 1})`
-  return (db.$client.prepare(sql).get(fts) as { n: number }).n > BROAD_DETECTORS
+  const n = db.get<{ n: number }>(sql`select count(*) as n from ${ftsIds('detector', fts, BROAD_DETECTORS + 1)}`).n
+  return n > BROAD_DETECTORS
 }
 
-export interface EventListRow {
-  id: number
-  occurredAt: string
-  kind: string
-  detail: string | null
-  detectorId: number | null
-  detectorTag: string | null
-  siteId: number
-  site: string
-  userId: number | null
-  by: string | null
+const select = {
+  id: events.id,
+  occurredAt: events.occurredAt,
+  kind: events.kind,
+  detail: events.detail,
+  detectorId: events.detectorId,
+  detectorTag: orNull(detectors.tag),
+  siteId: events.siteId,
+  site: sites.name,
+  userId: events.userId,
+  by: orNull(users.name),
 }
+export type EventListRow = ListRow<typeof select>
 
 const isDay = (v: string) => v.length === 10
 // Stored instants are `toISOString()` text; an offset or missing milliseconds would compare wrongly.
 const instant = (v: string) => new Date(v).toISOString()
 
-export const eventList: ListSpec<EventQuery> = {
+export const eventList: ListSpec<EventQuery, typeof select> = {
+  table: events,
   // Left joins on primary keys (detector and user may be absent): SQLite drops them from the id walk
   // whenever the sort and filters use none of their columns.
-  from: 'events t left join detectors d on d.id = t.detector_id left join sites s on s.id = t.site_id left join users u on u.id = t.user_id',
-  select: {
-    id: 't.id',
-    occurredAt: 't.occurred_at',
-    kind: 't.kind',
-    detail: 't.detail',
-    detectorId: 't.detector_id',
-    detectorTag: 'd.tag',
-    siteId: 't.site_id',
-    site: 's.name',
-    userId: 't.user_id',
-    by: 'u.name',
-  },
+  from: (q) =>
+    q
+      .leftJoin(detectors, eq(detectors.id, events.detectorId))
+      .leftJoin(sites, eq(sites.id, events.siteId))
+      .leftJoin(users, eq(users.id, events.userId)),
+  select,
   sorts: SORTS,
   defaultSort: { key: 'occurredAt', dir: 'desc' },
-  countedAs: 'events',
   where(f) {
-    const { add, done } = whereBuilder()
-    if (f.kind?.length) {
-      const l = inList('t.kind', f.kind)
-      add(l.clause, ...l.params)
-    }
-    if (f.site) add('t.site_id = ?', f.site)
-    if (f.detector) add('t.detector_id = ?', f.detector)
-    if (f.customer) add('t.site_id in (select id from sites where customer_id = ?)', f.customer)
-    if (f.from) add('t.occurred_at >= ?', isDay(f.from) ? f.from : instant(f.from))
-    if (f.to) {
-      if (isDay(f.to)) add('t.occurred_at < ?', addDays(f.to, 1))
-      else add('t.occurred_at <= ?', instant(f.to))
-    }
     const fts = f.q ? ftsQuery(f.q) : null
-    if (fts) {
-      // A unary plus keeps SQLite from answering the term through an index (see BROAD_DETECTORS).
-      const col = (name: string) => (f.broad ? `+t.${name}` : `t.${name}`)
-      add(`(${col('detector_id')} in (${ftsIds('detector')}) or ${col('site_id')} in (${ftsIds('site')}))`, fts, fts)
-    }
-    return done()
+    return [
+      inList(events.kind, f.kind),
+      f.site ? eq(events.siteId, f.site) : undefined,
+      f.detector ? eq(events.detectorId, f.detector) : undefined,
+      f.customer ? inArray(events.siteId, sitesOfCustomer(f.customer)) : undefined,
+      f.from ? gte(events.occurredAt, isDay(f.from) ? f.from : instant(f.from)) : undefined,
+      f.to ? (isDay(f.to) ? lt(events.occurredAt, addDays(f.to, 1)) : lte(events.occurredAt, instant(f.to))) : undefined,
+      // Raw SQL for the FTS5 match, and for the unary plus that keeps SQLite from answering the term
+      // through an index (see BROAD_DETECTORS).
+      fts && f.broad ? sql`(+${events.detectorId} in ${ftsIds('detector', fts)} or +${events.siteId} in ${ftsIds('site', fts)})` : undefined,
+      fts && !f.broad ? or(inArray(events.detectorId, ftsIds('detector', fts)), inArray(events.siteId, ftsIds('site', fts))) : undefined,
+    ]
   },
 }

@@ -1,32 +1,38 @@
+import { and, eq, gte, inArray, min, sql } from 'drizzle-orm'
+import { QueryBuilder } from 'drizzle-orm/sqlite-core'
 import { z } from 'zod'
-import { sites } from '../schema'
-import { ftsIds, ftsQuery, idParam, multi, pagingSchema, type ListSpec, whereBuilder } from '../list-query'
+import { customers, detectors, monitoringCompanies, sites, units, visits } from '../schema'
+import { countOf, ftsIds, ftsQuery, idParam, inList, multi, orNull, pagingSchema, type ListRow, type ListSpec } from '../list-query'
 
-// Counts ride detectors_site_idx and units_site_idx, the next visit visits_site_idx. The overdue
-// count also reads each detector's row for its status: sorting all 15,000 stress-scale sites by it
-// costs ~80 ms (an index on detectors (site_id, due_status) made it ~13 ms).
-const UNITS = '(select count(*) from units x where x.site_id = t.id)'
-const DETECTORS = '(select count(*) from detectors x where x.site_id = t.id)'
-const OVERDUE = `(select count(*) from detectors x where x.site_id = t.id and x.due_status = 'overdue')`
-// `@today` is the office's day, set by the route: the next visit still to come.
-const NEXT_VISIT = `(select min(v.scheduled_on) from visits v
-  where v.site_id = t.id and v.scheduled_on >= @today and v.status in ('planned', 'notified'))`
+// Correlated figures, computed only for the rows shown unless the table is sorted by one. Counts
+// ride detectors_site_idx and units_site_idx, the next visit visits_site_idx. The overdue count also
+// reads each detector's row for its status: sorting all 15,000 stress-scale sites by it costs ~80 ms
+// (an index on detectors (site_id, due_status) made it ~13 ms).
+const UNITS = countOf(units, eq(units.siteId, sites.id))
+const DETECTORS = countOf(detectors, eq(detectors.siteId, sites.id))
+const OVERDUE = countOf(detectors, and(eq(detectors.siteId, sites.id), eq(detectors.dueStatus, 'overdue')))
+// The next visit still to come from the office's day (`today`, set by the route). Wrapped in `sql`:
+// a scalar subquery as a column.
+const NEXT_VISIT = sql<string | null>`${new QueryBuilder()
+  .select({ on: min(visits.scheduledOn) })
+  .from(visits)
+  .where(and(eq(visits.siteId, sites.id), gte(visits.scheduledOn, sql.placeholder('today')), inArray(visits.status, ['planned', 'notified'])))}`
 
 const SORTS = {
-  id: 't.id',
-  name: 't.name',
-  customer: 'c.name',
-  street: 't.street',
-  city: 't.city',
-  region: 't.region',
-  codeBasis: 't.code_basis',
-  monitoring: 'm.name',
-  delayPolicySeconds: 't.delay_policy_seconds',
+  id: sites.id,
+  name: sites.name,
+  customer: customers.name,
+  street: sites.street,
+  city: sites.city,
+  region: sites.region,
+  codeBasis: sites.codeBasis,
+  monitoring: monitoringCompanies.name,
+  delayPolicySeconds: sites.delayPolicySeconds,
   units: UNITS,
   detectors: DETECTORS,
   overdue: OVERDUE,
   nextVisitOn: NEXT_VISIT,
-} as const
+}
 
 /** One or more subdivision codes such as `US-OR`, repeated or comma separated. */
 const regions = z.preprocess(
@@ -48,58 +54,44 @@ export const siteQuery = pagingSchema(Object.keys(SORTS) as [keyof typeof SORTS,
 // `today` is added by the route from the office's calendar, never taken from the client.
 export type SiteQuery = z.infer<typeof siteQuery> & { today: string }
 
-export interface SiteListRow {
-  id: number
-  name: string
-  customerId: number
-  customer: string
-  street: string
-  city: string
-  region: string
-  codeBasis: string
-  monitoringId: number | null
-  monitoring: string | null
-  delayPolicySeconds: number
-  units: number
-  detectors: number
-  overdue: number
-  nextVisitOn: string | null
+const select = {
+  id: sites.id,
+  name: sites.name,
+  customerId: sites.customerId,
+  customer: customers.name,
+  street: sites.street,
+  city: sites.city,
+  region: sites.region,
+  codeBasis: sites.codeBasis,
+  monitoringId: sites.monitoringCompanyId,
+  monitoring: orNull(monitoringCompanies.name),
+  delayPolicySeconds: sites.delayPolicySeconds,
+  units: UNITS,
+  detectors: DETECTORS,
+  overdue: OVERDUE,
+  nextVisitOn: NEXT_VISIT,
 }
+export type SiteListRow = ListRow<typeof select>
 
-export const siteList: ListSpec<SiteQuery> = {
+export const siteList: ListSpec<SiteQuery, typeof select> = {
+  table: sites,
   // Left joins on primary keys (the customer is a NOT NULL foreign key, so no row is lost): SQLite
   // drops them from the id walk whenever the sort and filters use none of their columns.
-  from: 'sites t left join customers c on c.id = t.customer_id left join monitoring_companies m on m.id = t.monitoring_company_id',
-  select: {
-    id: 't.id',
-    name: 't.name',
-    customerId: 't.customer_id',
-    customer: 'c.name',
-    street: 't.street',
-    city: 't.city',
-    region: 't.region',
-    codeBasis: 't.code_basis',
-    monitoringId: 't.monitoring_company_id',
-    monitoring: 'm.name',
-    delayPolicySeconds: 't.delay_policy_seconds',
-    units: UNITS,
-    detectors: DETECTORS,
-    overdue: OVERDUE,
-    nextVisitOn: NEXT_VISIT,
-  },
+  from: (q) =>
+    q.leftJoin(customers, eq(customers.id, sites.customerId)).leftJoin(monitoringCompanies, eq(monitoringCompanies.id, sites.monitoringCompanyId)),
+  select,
   sorts: SORTS,
   defaultSort: { key: 'name', dir: 'asc' },
-  countedAs: 'sites',
-  named: (f) => ({ today: f.today }),
+  placeholders: (f) => ({ today: f.today }),
   where(f) {
-    const { add, list, done } = whereBuilder()
     const fts = f.q ? ftsQuery(f.q) : null
-    if (fts) add(`t.id in (${ftsIds('site')})`, fts)
-    if (f.customer) add('t.customer_id = ?', f.customer)
-    list('t.region', f.region)
-    list('t.code_basis', f.codeBasis)
-    if (f.monitoring) add('t.monitoring_company_id = ?', f.monitoring)
-    if (f.delayPolicy !== undefined) add('t.delay_policy_seconds = ?', f.delayPolicy)
-    return done()
+    return [
+      fts ? inArray(sites.id, ftsIds('site', fts)) : undefined,
+      f.customer ? eq(sites.customerId, f.customer) : undefined,
+      inList(sites.region, f.region),
+      inList(sites.codeBasis, f.codeBasis),
+      f.monitoring ? eq(sites.monitoringCompanyId, f.monitoring) : undefined,
+      f.delayPolicy !== undefined ? eq(sites.delayPolicySeconds, f.delayPolicy) : undefined,
+    ]
   },
 }

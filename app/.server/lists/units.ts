@@ -1,23 +1,24 @@
+import { eq, inArray } from 'drizzle-orm'
 import { z } from 'zod'
-import { units } from '../schema'
-import { ftsIds, ftsQuery, idParam, multi, pagingSchema, type ListSpec, whereBuilder } from '../list-query'
+import { customers, detectors, sites, units } from '../schema'
+import { countOf, ftsIds, ftsQuery, idParam, inList, multi, pagingSchema, sitesOfCustomer, type ListSpec } from '../list-query'
 
 // Rides detectors_unit_idx: one short index range per unit.
-const DETECTORS = '(select count(*) from detectors x where x.unit_id = t.id)'
+const DETECTORS = countOf(detectors, eq(detectors.unitId, units.id))
 
 const SORTS = {
-  id: 't.id',
-  tag: 't.tag',
-  site: 's.name',
-  customer: 'c.name',
-  kind: 't.kind',
-  location: 't.location',
-  shutdownInput: 't.shutdown_input',
-  supplyCfm: 't.supply_cfm',
-  returnCfm: 't.return_cfm',
-  storeysServed: 't.storeys_served',
+  id: units.id,
+  tag: units.tag,
+  site: sites.name,
+  customer: customers.name,
+  kind: units.kind,
+  location: units.location,
+  shutdownInput: units.shutdownInput,
+  supplyCfm: units.supplyCfm,
+  returnCfm: units.returnCfm,
+  storeysServed: units.storeysServed,
   detectors: DETECTORS,
-} as const
+}
 
 export const unitQuery = pagingSchema(Object.keys(SORTS) as [keyof typeof SORTS, ...Array<keyof typeof SORTS>]).extend({
   site: idParam.optional(),
@@ -27,54 +28,39 @@ export const unitQuery = pagingSchema(Object.keys(SORTS) as [keyof typeof SORTS,
 })
 export type UnitQuery = z.infer<typeof unitQuery>
 
-export interface UnitListRow {
-  id: number
-  tag: string
-  siteId: number
-  site: string
-  city: string
-  customerId: number
-  customer: string
-  kind: string
-  location: string | null
-  shutdownInput: string
-  supplyCfm: number
-  returnCfm: number
-  storeysServed: number
-  detectors: number
+const select = {
+  id: units.id,
+  tag: units.tag,
+  siteId: units.siteId,
+  site: sites.name,
+  city: sites.city,
+  customerId: sites.customerId,
+  customer: customers.name,
+  kind: units.kind,
+  location: units.location,
+  shutdownInput: units.shutdownInput,
+  supplyCfm: units.supplyCfm,
+  returnCfm: units.returnCfm,
+  storeysServed: units.storeysServed,
+  detectors: DETECTORS,
 }
 
-export const unitList: ListSpec<UnitQuery> = {
+export const unitList: ListSpec<UnitQuery, typeof select> = {
+  table: units,
   // Left joins on primary keys (the keys are NOT NULL foreign keys, so no row is lost): SQLite drops
   // them from the id walk whenever the sort and filters use none of their columns.
-  from: 'units t left join sites s on s.id = t.site_id left join customers c on c.id = s.customer_id',
-  select: {
-    id: 't.id',
-    tag: 't.tag',
-    siteId: 't.site_id',
-    site: 's.name',
-    city: 's.city',
-    customerId: 's.customer_id',
-    customer: 'c.name',
-    kind: 't.kind',
-    location: 't.location',
-    shutdownInput: 't.shutdown_input',
-    supplyCfm: 't.supply_cfm',
-    returnCfm: 't.return_cfm',
-    storeysServed: 't.storeys_served',
-    detectors: DETECTORS,
-  },
+  from: (q) => q.leftJoin(sites, eq(sites.id, units.siteId)).leftJoin(customers, eq(customers.id, sites.customerId)),
+  select,
   sorts: SORTS,
   defaultSort: { key: 'site', dir: 'asc' },
-  countedAs: 'units',
   where(f) {
-    const { add, list, done } = whereBuilder()
     const fts = f.q ? ftsQuery(f.q) : null
-    if (fts) add(`t.id in (${ftsIds('unit')})`, fts)
-    if (f.site) add('t.site_id = ?', f.site)
-    if (f.customer) add('t.site_id in (select id from sites where customer_id = ?)', f.customer)
-    list('t.kind', f.kind)
-    list('t.shutdown_input', f.shutdownInput)
-    return done()
+    return [
+      fts ? inArray(units.id, ftsIds('unit', fts)) : undefined,
+      f.site ? eq(units.siteId, f.site) : undefined,
+      f.customer ? inArray(units.siteId, sitesOfCustomer(f.customer)) : undefined,
+      inList(units.kind, f.kind),
+      inList(units.shutdownInput, f.shutdownInput),
+    ]
   },
 }
