@@ -15,6 +15,10 @@ export type FilterOption =
   | { kind: 'date'; param: string; label: string }
 
 /** The filters of a list page, kept in the URL so a view can be bookmarked and shared. */
+// The URL as it is now, not as of the last render: a filter chosen just after typing must keep the
+// text the search box has only just written.
+const currentParams = (rendered: URLSearchParams) => new URLSearchParams(typeof window === 'undefined' ? rendered : window.location.search)
+
 export function FilterBar({ placeholder, filters, children }: { placeholder: string; filters: FilterOption[]; children?: React.ReactNode }) {
   const [params, setParams] = useSearchParams()
   const urlText = params.get('q') ?? ''
@@ -36,7 +40,7 @@ export function FilterBar({ placeholder, filters, children }: { placeholder: str
   useEffect(() => {
     const t = setTimeout(() => {
       if (urlText === text.trim()) return
-      const next = new URLSearchParams(params)
+      const next = currentParams(params)
       if (text.trim()) next.set('q', text.trim())
       else next.delete('q')
       written.current = text.trim()
@@ -46,7 +50,7 @@ export function FilterBar({ placeholder, filters, children }: { placeholder: str
   }, [text, urlText, params, setParams])
 
   const set = (param: string, value: string) => {
-    const next = new URLSearchParams(params)
+    const next = currentParams(params)
     if (value) next.set(param, value)
     else next.delete(param)
     setParams(next, { replace: true })

@@ -252,6 +252,8 @@ describe('list pages in Chromium', () => {
     expect(page.url()).toBe(t.server.url + path)
     await page.getByRole('searchbox').waitFor()
     await expect(page.getByRole('searchbox').inputValue()).resolves.toBe('copper')
+    // Let the page's own list request finish first, so the refusal comes from the save below.
+    await page.waitForLoadState('networkidle')
 
     const lead = userIdByEmail(t.data.db, DEMO_EMAIL.lead)
     sql().prepare("update sessions set revoked_at = strftime('%Y-%m-%dT%H:%M:%fZ','now') where user_id = ? and revoked_at is null").run(lead)
