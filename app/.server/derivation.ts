@@ -40,14 +40,8 @@ export function arrangementOf(d: ArrangementFields): Arrangement {
   }
 }
 
-const recordColumns = {
-  id: detectors.id,
-  installedOn: detectors.installedOn,
-  environment: detectors.environment,
-  housing: detectors.housing,
-  state: detectors.state,
-  delaySeconds: detectors.delaySeconds,
-  cleaningIntervalDays: detectors.cleaningIntervalDays,
+/** The columns `arrangementOf` reads (detectors joined to detector_models), for any query that draws or checks the loop. */
+export const arrangementColumns = {
   eolOhms: detectors.eolOhms,
   eolPlacement: detectors.eolPlacement,
   alarmTerminal: detectors.alarmTerminal,
@@ -56,6 +50,17 @@ const recordColumns = {
   conductorAwg: detectors.conductorAwg,
   conductorStranded: detectors.conductorStranded,
   runFeet: detectors.runFeet,
+}
+
+const recordColumns = {
+  id: detectors.id,
+  installedOn: detectors.installedOn,
+  environment: detectors.environment,
+  housing: detectors.housing,
+  state: detectors.state,
+  delaySeconds: detectors.delaySeconds,
+  cleaningIntervalDays: detectors.cleaningIntervalDays,
+  ...arrangementColumns,
   delayPolicySeconds: sites.delayPolicySeconds,
   // What is stored now, to compare with the derivation.
   lastVisualOn: detectors.lastVisualOn,

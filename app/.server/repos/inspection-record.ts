@@ -5,7 +5,7 @@ import { checkPressure, type RangeStatus } from '~/domain/airflow'
 import type { DetectorState } from '~/domain/contacts'
 import { diagnose, expectedReadings, type Expected, type Readings } from '~/domain/loop'
 import type { Db } from '../db'
-import { arrangementOf } from '../derivation'
+import { arrangementColumns, arrangementOf } from '../derivation'
 import { env } from '../env'
 import {
   customers,
@@ -143,14 +143,7 @@ function recordVisits(db: Db, visitIds: readonly number[]) {
       pressureMaxInWc: detectors.pressureMaxInWc,
       velocityMinFpm: detectors.velocityMinFpm,
       velocityMaxFpm: detectors.velocityMaxFpm,
-      eolOhms: detectors.eolOhms,
-      eolPlacement: detectors.eolPlacement,
-      alarmTerminal: detectors.alarmTerminal,
-      supervisoryTerminal: detectors.supervisoryTerminal,
-      supervisoryLabelledIn: detectorModels.supervisoryLabelledIn,
-      conductorAwg: detectors.conductorAwg,
-      conductorStranded: detectors.conductorStranded,
-      runFeet: detectors.runFeet,
+      ...arrangementColumns,
       tasks: visitDetectors.tasks,
       result: visitDetectors.result,
       reason: visitDetectors.resultReason,

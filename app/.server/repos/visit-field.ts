@@ -3,7 +3,7 @@
 // for a run of days. Read-only; the writes go through `POST /api/visits/:visitId`.
 import { and, asc, between, eq, inArray, sql } from 'drizzle-orm'
 import type { Db } from '../db'
-import { arrangementOf } from '../derivation'
+import { arrangementColumns, arrangementOf } from '../derivation'
 import { OPEN_VISIT_STATUSES } from '~/domain/vocabulary'
 import { detectorModels, detectors, monitoringCompanies, sites, units, users, visitDetectors, visits } from '../schema'
 import { perDb } from './statements'
@@ -21,14 +21,7 @@ const statements = perDb((db: Db) => ({
   detectors: db
     .select({
       id: detectors.id,
-      eolOhms: detectors.eolOhms,
-      eolPlacement: detectors.eolPlacement,
-      alarmTerminal: detectors.alarmTerminal,
-      supervisoryTerminal: detectors.supervisoryTerminal,
-      supervisoryLabelledIn: detectorModels.supervisoryLabelledIn,
-      conductorAwg: detectors.conductorAwg,
-      conductorStranded: detectors.conductorStranded,
-      runFeet: detectors.runFeet,
+      ...arrangementColumns,
       shutdownInput: units.shutdownInput,
       testStation: detectors.testStation,
       headsFitted: detectors.headsFitted,
