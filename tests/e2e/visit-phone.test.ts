@@ -1,3 +1,4 @@
+import sharp from 'sharp'
 import { beforeAll, describe, expect, it } from 'vitest'
 import { DEMO_EMAIL, useSeededServer } from '#tests/setup/fixture'
 import { sessionCookieFor, userIdByEmail } from '#tests/setup/sessions'
@@ -105,6 +106,13 @@ describe('a visit on a phone', () => {
     await card.getByLabel('Why it failed (required)').fill('Normal reads a short at the panel: alarm appears wired on NC. Reported to the fire alarm contractor.')
     await card.getByRole('button', { name: `Save ${firstTag}` }).click()
     await card.getByText(`Saved ${firstTag}.`).waitFor()
+    // A photo of the terminals, filed under this detector.
+    const photo = await sharp({ create: { width: 64, height: 48, channels: 3, background: '#6a8' } }).jpeg().toBuffer()
+    await card.locator('input[type=file]').last().setInputFiles({ name: 'terminals.jpg', mimeType: 'image/jpeg', buffer: photo })
+    await card.getByRole('heading', { name: 'Sent from here (1)' }).waitFor()
+    expect(t.data.db.$client.prepare('select detector_id as detectorId, content_type as type, thumb_key is not null as thumb from attachments where visit_id = ?').all(visitId)).toEqual([
+      { detectorId: firstId, type: 'image/jpeg', thumb: 1 },
+    ])
 
     await page.getByRole('button', { name: 'Next detector' }).click()
     const second = page.locator('article').first()
@@ -129,6 +137,12 @@ describe('a visit on a phone', () => {
     await expect(page.evaluate(() => Object.keys(localStorage).filter((k) => k.startsWith('dk:visit-draft:')).length)).resolves.toBe(0)
     // Nothing on the page is wider than the phone.
     await expect(page.evaluate(() => document.documentElement.scrollWidth)).resolves.toBeLessThanOrEqual(PHONE.width)
+    // The printable record holds the reading typed on the roof and the failure with its reason.
+    await page.goto(`${t.server.url}/visits/${visitId}/record`)
+    const record = await page.locator('main').innerText()
+    expect(record).toContain(firstTag)
+    expect(record).toMatch(/0\.4 Ω/)
+    expect(record).toContain('alarm appears wired on NC')
     await context.close()
 
     const lead = await sessionCookieFor(t.data.db, userIdByEmail(t.data.db, DEMO_EMAIL.lead))
