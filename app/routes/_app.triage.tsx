@@ -67,8 +67,9 @@ const columns: ColumnDef<TriageRow>[] = [
     minSize: 260,
     enableSorting: false,
     cell: ({ row }) => (
-      <span title={row.original.reasons.map((r) => `${r.text} (+${r.points})`).join('\n')}>
+      <span title={[...row.original.reasons.map((r) => `${r.text} (+${r.points})`), row.original.followUp ? `Technician: ${row.original.followUp}` : ''].filter(Boolean).join('\n')}>
         {row.original.reasons.map((r) => REASON_LABELS[r.code] ?? r.text).join(' · ')}
+        {row.original.followUp && <span className="text-ink-soft"> · “{row.original.followUp}”</span>}
       </span>
     ),
   },

@@ -148,8 +148,10 @@ describe('a visit on a phone', () => {
     const lead = await sessionCookieFor(t.data.db, userIdByEmail(t.data.db, DEMO_EMAIL.lead))
     const res = await fetch(`${t.server.url}/api/triage?reason=failed-test&q=${encodeURIComponent(firstTag)}`, { headers: { Cookie: lead.cookie } })
     expect(res.status).toBe(200)
-    const body = (await res.json()) as { rows: Array<{ id: number; reasons: Array<{ code: string }> }> }
+    const body = (await res.json()) as { rows: Array<{ id: number; reasons: Array<{ code: string }>; followUp: string | null }> }
     const row = body.rows.find((r) => r.id === firstId)
     expect(row?.reasons.map((r) => r.code)).toContain('failed-test')
+    // The office's follow-up carries the technician's reason.
+    expect(row?.followUp).toMatch(/alarm appears wired on NC/)
   }, 90_000)
 })

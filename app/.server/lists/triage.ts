@@ -28,6 +28,12 @@ const select = {
   troubles30d: detectors.troubles30d,
   acknowledgedAt: detectors.acknowledgedAt,
   assignee: orNull(users.name),
+  // The technician's own words on the latest failed visit result, while the last test stands failed:
+  // the office's follow-up. Correlated, but read only for the rows of the window on screen.
+  followUp: sql<string | null>`(case when ${detectors.lastResult} = 'fail' then (
+    select vd.result_reason from visit_detectors vd join visits v on v.id = vd.visit_id
+    where vd.detector_id = ${detectors.id} and vd.result = 'fail' and v.status = 'done'
+    order by vd.completed_at desc limit 1) end)`,
 }
 export type TriageRow = ListRow<typeof select> & { reasons: TriageReason[] }
 
