@@ -4,44 +4,6 @@ import { DETECTOR_STATES, DUE_STATUSES, ENVIRONMENTS, HOUSINGS, DELAY_AGREEMENTS
 import { customers, detectors, sites, units } from '../schema'
 import { ftsIds, ftsQuery, idParam, inList, isoDate, multi, pagingSchema, type ListRow, type ListSpec } from '../list-query'
 
-const SORTS = {
-  tag: detectors.tag,
-  site: sites.name,
-  customer: customers.name,
-  unit: units.tag,
-  position: detectors.position,
-  state: detectors.state,
-  due: detectors.dueStatus,
-  nextDueOn: detectors.nextDueOn,
-  environment: detectors.environment,
-  housing: detectors.housing,
-  delay: detectors.delayAgreement,
-  loop: detectors.loopVerdict,
-  risk: detectors.riskScore,
-  lastFunctionalOn: detectors.lastFunctionalOn,
-  installedOn: detectors.installedOn,
-}
-
-export const deviceQuery = pagingSchema(Object.keys(SORTS) as [keyof typeof SORTS, ...Array<keyof typeof SORTS>]).extend({
-  state: multi(DETECTOR_STATES),
-  due: multi(DUE_STATUSES),
-  environment: multi(ENVIRONMENTS),
-  housing: multi(HOUSINGS),
-  delay: multi(DELAY_AGREEMENTS),
-  loop: multi(LOOP_VERDICTS),
-  position: multi(POSITIONS),
-  customer: idParam.optional(),
-  site: idParam.optional(),
-  unit: idParam.optional(),
-  assignedTo: idParam.optional(),
-  nextDueFrom: isoDate.optional(),
-  nextDueTo: isoDate.optional(),
-  installedFrom: isoDate.optional(),
-  installedTo: isoDate.optional(),
-  minRisk: z.coerce.number().int().min(0).optional(),
-})
-export type DeviceQuery = z.infer<typeof deviceQuery>
-
 const select = {
   id: detectors.id,
   tag: detectors.tag,
@@ -64,6 +26,30 @@ const select = {
   lastFunctionalOn: detectors.lastFunctionalOn,
   installedOn: detectors.installedOn,
 }
+// A column's id is its field and its sort key: each sortable column sorts by the column it shows.
+const SORTABLE = ['tag', 'site', 'customer', 'unit', 'position', 'state', 'due', 'nextDueOn', 'environment', 'housing', 'delay', 'loop', 'risk', 'lastFunctionalOn', 'installedOn'] as const
+const SORTS = Object.fromEntries(SORTABLE.map((k) => [k, select[k]])) as Pick<typeof select, (typeof SORTABLE)[number]>
+
+export const deviceQuery = pagingSchema(Object.keys(SORTS) as [keyof typeof SORTS, ...Array<keyof typeof SORTS>]).extend({
+  state: multi(DETECTOR_STATES),
+  due: multi(DUE_STATUSES),
+  environment: multi(ENVIRONMENTS),
+  housing: multi(HOUSINGS),
+  delay: multi(DELAY_AGREEMENTS),
+  loop: multi(LOOP_VERDICTS),
+  position: multi(POSITIONS),
+  customer: idParam.optional(),
+  site: idParam.optional(),
+  unit: idParam.optional(),
+  assignedTo: idParam.optional(),
+  nextDueFrom: isoDate.optional(),
+  nextDueTo: isoDate.optional(),
+  installedFrom: isoDate.optional(),
+  installedTo: isoDate.optional(),
+  minRisk: z.coerce.number().int().min(0).optional(),
+})
+export type DeviceQuery = z.infer<typeof deviceQuery>
+
 export type DeviceListRow = ListRow<typeof select>
 
 /** Detectors whose words (tag, serial, site, unit…) start with those of `q`. */

@@ -1,3 +1,4 @@
+import { noticeColumns } from './notice-columns'
 import { and, asc, count, desc, eq, gte, inArray, lte } from 'drizzle-orm'
 import { alias } from 'drizzle-orm/sqlite-core'
 import { z } from 'zod'
@@ -179,17 +180,9 @@ function recordVisits(db: Db, visitIds: readonly number[]) {
   const notices = db
     .select({
       visitId: notifications.visitId,
-      id: notifications.id,
       company: monitoringCompanies.name,
-      notifiedAt: notifications.notifiedAt,
+      ...noticeColumns,
       notifiedBy: notifier.name,
-      method: notifications.method,
-      spokeWith: notifications.spokeWith,
-      confirmation: notifications.confirmation,
-      inTestFrom: notifications.inTestFrom,
-      inTestUntil: notifications.inTestUntil,
-      siteContactTold: notifications.siteContactTold,
-      clearedAt: notifications.clearedAt,
       clearedWith: notifications.clearedWith,
       clearedBy: clearer.name,
     })

@@ -1,3 +1,4 @@
+import { noticeColumns } from './notice-columns'
 import { and, asc, count, desc, eq, gte, inArray, sql } from 'drizzle-orm'
 import type { IsoDate } from '~/domain/dates'
 import { OPEN_VISIT_STATUSES } from '~/domain/vocabulary'
@@ -114,17 +115,9 @@ const statements = perDb((db: Db) => ({
   visitCount: db.select({ n: count() }).from(visits).where(visitsToCome).prepare(),
   notifications: db
     .select({
-      id: notifications.id,
       visitId: notifications.visitId,
-      notifiedAt: notifications.notifiedAt,
+      ...noticeColumns,
       notifiedBy: users.name,
-      method: notifications.method,
-      spokeWith: notifications.spokeWith,
-      confirmation: notifications.confirmation,
-      inTestFrom: notifications.inTestFrom,
-      inTestUntil: notifications.inTestUntil,
-      siteContactTold: notifications.siteContactTold,
-      clearedAt: notifications.clearedAt,
       monitoring: monitoringCompanies.name,
     })
     .from(notifications)

@@ -1,3 +1,4 @@
+import { noticeColumns } from './notice-columns'
 import { asc, count, eq, sql } from 'drizzle-orm'
 import { alias } from 'drizzle-orm/sqlite-core'
 import type { Db } from '../db'
@@ -95,16 +96,8 @@ const statements = perDb((db: Db) => ({
   detectorCount: db.select({ n: count() }).from(visitDetectors).where(detectorsOfVisit).prepare(),
   notifications: db
     .select({
-      id: notifications.id,
-      notifiedAt: notifications.notifiedAt,
+      ...noticeColumns,
       notifiedBy: users.name,
-      method: notifications.method,
-      spokeWith: notifications.spokeWith,
-      confirmation: notifications.confirmation,
-      inTestFrom: notifications.inTestFrom,
-      inTestUntil: notifications.inTestUntil,
-      siteContactTold: notifications.siteContactTold,
-      clearedAt: notifications.clearedAt,
       clearedWith: notifications.clearedWith,
       clearedBy: clearer.name,
     })
