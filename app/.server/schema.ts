@@ -2,6 +2,7 @@ import { sql } from 'drizzle-orm'
 import { index, integer, primaryKey, real, sqliteTable, text, uniqueIndex } from 'drizzle-orm/sqlite-core'
 import { ROLE_KEYS } from '~/domain/permissions'
 import {
+  CAPACITY_UNITS,
   CODE_BASES,
   CUSTOMER_KINDS,
   DELAY_AGREEMENTS,
@@ -58,6 +59,7 @@ export const customers = sqliteTable(
     contactName: text('contact_name'),
     contactEmail: text('contact_email'),
     contactPhone: text('contact_phone'),
+    version: integer('version').notNull().default(1),
     createdAt: createdAt(),
   },
   (t) => [index('customers_name_idx').on(t.name)],
@@ -86,6 +88,7 @@ export const sites = sqliteTable(
     // The reporting delay agreed with the monitoring company, in seconds (0 = report at once).
     delayPolicySeconds: integer('delay_policy_seconds').notNull().default(0),
     accessNotes: text('access_notes'),
+    version: integer('version').notNull().default(1),
     createdAt: createdAt(),
   },
   (t) => [
@@ -116,6 +119,7 @@ export const units = sqliteTable(
     sharedPlenum: integer('shared_plenum', { mode: 'boolean' }).notNull().default(false),
     areaDetection: integer('area_detection', { mode: 'boolean' }).notNull().default(false),
     transformerVa: integer('transformer_va').notNull().default(40),
+    version: integer('version').notNull().default(1),
     createdAt: createdAt(),
   },
   (t) => [index('units_site_idx').on(t.siteId, t.tag)],
@@ -136,6 +140,9 @@ export const detectorModels = sqliteTable('detector_models', {
   velocityMaxFpm: integer('velocity_max_fpm').notNull(),
   pressureMinInWc: real('pressure_min_in_wc').notNull(),
   pressureMaxInWc: real('pressure_max_in_wc').notNull(),
+  // The sensitivity range on the listing, in %/ft obscuration; null until the office enters it.
+  sensitivityLowPctFt: real('sensitivity_low_pct_ft'),
+  sensitivityHighPctFt: real('sensitivity_high_pct_ft'),
 })
 
 export const detectors = sqliteTable(
@@ -239,6 +246,11 @@ export const users = sqliteTable('users', {
     .notNull()
     .references(() => roles.key),
   active: integer('active', { mode: 'boolean' }).notNull().default(true),
+  // For technicians: the site regions they cover (comma list of ISO 3166-2 codes) and how much
+  // work one day holds, counted in detectors or in visits.
+  regions: text('regions'),
+  dailyCapacity: integer('daily_capacity'),
+  capacityUnit: text('capacity_unit', { enum: CAPACITY_UNITS }).notNull().default('detectors'),
   createdAt: createdAt(),
 })
 
@@ -389,8 +401,11 @@ export const events = sqliteTable(
     kind: text('kind', { enum: EVENT_KINDS }).notNull(),
     detail: text('detail'),
     userId: integer('user_id').references(() => users.id),
+    // Set on events brought in from a monitoring company's file, so the same file twice adds nothing.
+    sourceKey: text('source_key'),
   },
   (t) => [
+    uniqueIndex('events_source_key_idx').on(t.sourceKey).where(sql`source_key is not null`),
     index('events_detector_idx').on(t.detectorId, t.occurredAt),
     index('events_site_idx').on(t.siteId, t.occurredAt),
     index('events_kind_idx').on(t.kind, t.occurredAt),
@@ -523,4 +538,51 @@ export const appState = sqliteTable('app_state', {
 export const reasonCounts = sqliteTable('reason_counts', {
   code: text('code').primaryKey(),
   n: integer('n').notNull().default(0),
+})
+
+// The company's own calendar. Public holidays of a region are worked unless listed here as observed.
+export const observedHolidays = sqliteTable(
+  'observed_holidays',
+  {
+    region: text('region').notNull(),
+    name: text('name').notNull(),
+  },
+  (t) => [primaryKey({ columns: [t.region, t.name] })],
+)
+
+// Days the whole company is closed (shutdowns, training days), on top of weekends and observed holidays.
+export const closedDays = sqliteTable('closed_days', {
+  on: text('on').primaryKey(),
+  label: text('label').notNull(),
+})
+
+// One applied bulk change: what it did to each record, so it can be shown and undone. `records` holds,
+// per record, the entity, id, the fields before and after and the version the change left behind;
+// undo refuses a record whose version has moved on since.
+export const bulkChanges = sqliteTable(
+  'bulk_changes',
+  {
+    id: id(),
+    actorId: integer('actor_id')
+      .notNull()
+      .references(() => users.id),
+    action: text('action').notNull(),
+    summary: text('summary').notNull(),
+    recordCount: integer('record_count').notNull(),
+    records: text('records', { mode: 'json' }).notNull(),
+    at: createdAt(),
+    undoneAt: text('undone_at'),
+    undoneBy: integer('undone_by').references(() => users.id),
+  },
+  (t) => [index('bulk_changes_actor_idx').on(t.actorId, t.at)],
+)
+
+// How a source's CSV columns map to fields, remembered per source so the next file maps itself.
+export const importMappings = sqliteTable('import_mappings', {
+  source: text('source').primaryKey(),
+  kind: text('kind').notNull(),
+  mapping: text('mapping', { mode: 'json' }).notNull(),
+  updatedAt: text('updated_at')
+    .notNull()
+    .default(sql`(strftime('%Y-%m-%dT%H:%M:%fZ','now'))`),
 })

@@ -49,6 +49,10 @@ export type VisitTask = (typeof VISIT_TASKS)[number]
 export const OUTCOMES = ['pass', 'fail'] as const
 export type Outcome = (typeof OUTCOMES)[number]
 
+/** What a technician's daily capacity counts. */
+export const CAPACITY_UNITS = ['detectors', 'visits'] as const
+export type CapacityUnit = (typeof CAPACITY_UNITS)[number]
+
 export const VISIT_KINDS = ['inspection', 'test', 'cleaning', 'repair', 'commissioning'] as const
 
 export const VISIT_STATUSES = ['planned', 'notified', 'in-progress', 'done', 'cancelled'] as const
