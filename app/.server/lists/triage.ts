@@ -46,7 +46,8 @@ const keptReasons = perDb((db) =>
     .prepare(),
 )
 
-const spec: ListSpec<TriageQuery, typeof select> = {
+/** The queue as a list spec (the CSV export walks it too). */
+export const triageSpec: ListSpec<TriageQuery, typeof select> = {
   ...deviceList,
   from: (q) => deviceList.from(q).leftJoin(users, eq(users.id, detectors.assignedTo)),
   select,
@@ -69,7 +70,7 @@ const spec: ListSpec<TriageQuery, typeof select> = {
 
 /** The queue: detectors ranked by the engine's score, each with the reasons that make it up. */
 export function triageList(db: Db, query: TriageQuery, today: string): ListResult<TriageRow> {
-  const page = runList(db, spec, query)
+  const page = runList(db, triageSpec, query)
   return {
     ...page,
     rows: page.rows.map((r) => ({
