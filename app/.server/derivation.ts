@@ -207,8 +207,6 @@ export function detectorIdRange(db: Db): { min: number; max: number } | null {
 }
 
 export const CHUNK = 2_000
-// Work done beside live requests takes smaller bites: each chunk holds the event loop for its span.
-export const TURN_CHUNK = 50
 
 /** Each chunk of the fleet's derivation inputs, in id order. */
 export function* fleetInputs(db: Db, today: string, chunk = CHUNK): Generator<DerivationInput[]> {
@@ -247,6 +245,13 @@ export function rederiveFleet(db: Db, today: string): { checked: number; changed
  * trouble leaving the 30-day window. Any other fact changes only with a write, which re-derives then.
  */
 export function dayTurnCandidates(db: Db, from: string, to: string): number[] {
+  const ids = new Set<number>()
+  for (const query of dayTurnQueries(db, from, to)) for (const id of query()) ids.add(id)
+  return [...ids].sort((x, y) => x - y)
+}
+
+/** The candidate search as separate index queries, so the refresh can yield between them. */
+export function dayTurnQueries(db: Db, from: string, to: string): Array<() => number[]> {
   const nextDue = detectors.nextDueOn
   const ranges: SQL[] = [
     // Turning overdue: due on a day in [from, to).
@@ -258,9 +263,9 @@ export function dayTurnCandidates(db: Db, from: string, to: string): number[] {
     ranges.push(and(gt(nextDue, addDays(from, -OVERDUE_STEP_DAYS * k)), lte(nextDue, addDays(to, -OVERDUE_STEP_DAYS * k)))!)
   }
   // Each range on its own: SQLite's OR-of-ranges plan cost 100 ms at stress scale, the parts a few ms.
-  const ids = new Set<number>()
-  for (const range of ranges) for (const r of db.select({ id: detectors.id }).from(detectors).where(range).all()) ids.add(r.id)
-  const ageing = db
+  const inRange = ranges.map((range) => () => db.select({ id: detectors.id }).from(detectors).where(range).all().map((r) => r.id))
+  const ageing = () =>
+    db
     .selectDistinct({ id: events.detectorId })
     .from(events)
     .where(
@@ -271,54 +276,76 @@ export function dayTurnCandidates(db: Db, from: string, to: string): number[] {
       ),
     )
     .all()
-  for (const r of ageing) if (r.id !== null) ids.add(r.id)
-  return [...ids].sort((x, y) => x - y)
+    .flatMap((r) => (r.id === null ? [] : [r.id]))
+  return [...inRange, ageing]
 }
 
 export interface TurnStats {
   checked: number
   changed: number
+  turns: number
   /** The longest the event loop was held by one chunk (load, derive, write), in wall time. */
   slowestTurnMs: number
   /** The same in CPU time, which a busy machine does not inflate. */
   slowestTurnCpuMs: number
 }
 
-/** Runs chunk after chunk, handing the event loop back between them so requests are answered meanwhile. */
-async function inTurns(db: Db, today: string, loads: Iterable<() => DerivationInput[]>): Promise<TurnStats> {
-  const stats: TurnStats = { checked: 0, changed: 0, slowestTurnMs: 0, slowestTurnCpuMs: 0 }
-  for (const load of loads) {
+// Each turn aims to hold the event loop this long; the chunk size follows what the last turn cost, so
+// the first turns (cold caches, code not yet compiled) stay small and a busy machine gets smaller bites.
+const TURN_TARGET_MS = 10
+const FIRST_TURN = 2
+const MAX_TURN = 500
+
+export const nextTurn = () => new Promise((resolve) => setImmediate(resolve))
+
+/**
+ * Runs turn after turn, handing the event loop back between them so requests are answered meanwhile.
+ * `take(n)` loads the next n detectors' inputs, or null when there are no more.
+ */
+async function inTurns(db: Db, today: string, take: (n: number) => DerivationInput[] | null): Promise<TurnStats> {
+  const stats: TurnStats = { checked: 0, changed: 0, turns: 0, slowestTurnMs: 0, slowestTurnCpuMs: 0 }
+  let size = FIRST_TURN
+  for (;;) {
     const started = performance.now()
     const cpu = process.cpuUsage()
-    const inputs = load()
+    const inputs = take(size)
+    if (inputs === null) break
     stats.changed += rederiveChunk(db, inputs, today)
     stats.checked += inputs.length
+    stats.turns++
     const used = process.cpuUsage(cpu)
-    stats.slowestTurnMs = Math.max(stats.slowestTurnMs, performance.now() - started)
+    const ms = performance.now() - started
+    stats.slowestTurnMs = Math.max(stats.slowestTurnMs, ms)
     stats.slowestTurnCpuMs = Math.max(stats.slowestTurnCpuMs, (used.user + used.system) / 1000)
-    await new Promise((resolve) => setImmediate(resolve))
+    size = Math.max(1, Math.min(MAX_TURN, Math.round((size * TURN_TARGET_MS) / Math.max(ms, 1))))
+    await nextTurn()
   }
   stats.slowestTurnMs = Math.round(stats.slowestTurnMs)
   stats.slowestTurnCpuMs = Math.round(stats.slowestTurnCpuMs)
   return stats
 }
 
-/** The whole fleet in turns. */
-export function rederiveFleetInTurns(db: Db, today: string, chunk = TURN_CHUNK): Promise<TurnStats> {
+/** The whole fleet in turns, walking the id range. */
+export function rederiveFleetInTurns(db: Db, today: string): Promise<TurnStats> {
   const range = detectorIdRange(db)
-  function* loads() {
-    if (!range) return
-    for (let from = range.min; from <= range.max; from += chunk) yield () => derivationInputs(db, { fromId: from, toId: from + chunk - 1 }, today)
-  }
-  return inTurns(db, today, loads())
+  let cursor = range?.min ?? 1
+  return inTurns(db, today, (n) => {
+    if (!range || cursor > range.max) return null
+    const inputs = derivationInputs(db, { fromId: cursor, toId: cursor + n - 1 }, today)
+    cursor += n
+    return inputs
+  })
 }
 
 /** The given detectors in turns. */
-export function rederiveInTurns(db: Db, ids: readonly number[], today: string, chunk = TURN_CHUNK): Promise<TurnStats> {
-  function* loads() {
-    for (let i = 0; i < ids.length; i += chunk) yield () => derivationInputs(db, { ids: ids.slice(i, i + chunk) }, today)
-  }
-  return inTurns(db, today, loads())
+export function rederiveInTurns(db: Db, ids: readonly number[], today: string): Promise<TurnStats> {
+  let at = 0
+  return inTurns(db, today, (n) => {
+    if (at >= ids.length) return null
+    const slice = ids.slice(at, at + n)
+    at += n
+    return derivationInputs(db, { ids: slice }, today)
+  })
 }
 
 const DERIVED_DAY = 'derived-day'

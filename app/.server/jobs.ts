@@ -10,7 +10,7 @@ export function startBackgroundJobs() {
   const tick = async () => {
     try {
       const result = await refreshIfNewDay(getDb())
-      if (result) console.log(`Stored facts derived for ${result.to} (${result.plan === 'fleet' ? 'whole fleet' : `day turn from ${result.from}`}): ${result.changed} of ${result.checked} detectors changed in ${result.ms} ms, the longest turn ${result.slowestTurnMs} ms (${result.slowestTurnCpuMs} ms of CPU)`)
+      if (result) console.log(`Stored facts derived for ${result.to} (${result.plan === 'fleet' ? 'whole fleet' : `day turn from ${result.from}`}): ${result.changed} of ${result.checked} detectors changed in ${result.ms} ms over ${result.turns} turns, the longest turn ${result.slowestTurnMs} ms (${result.slowestTurnCpuMs} ms of CPU)`)
     } catch (error) {
       console.error('Refreshing derived fleet fields failed', error)
     }

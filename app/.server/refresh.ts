@@ -1,5 +1,5 @@
 import type { Db } from './db'
-import { dayTurnCandidates, derivedDay, rederiveFleet, rederiveFleetInTurns, rederiveInTurns, setDerivedDay, turnPlan } from './derivation'
+import { dayTurnQueries, derivedDay, nextTurn, rederiveFleet, rederiveFleetInTurns, rederiveInTurns, setDerivedDay, turnPlan } from './derivation'
 import { listsChanged } from './list-query'
 import { officeToday } from './today'
 
@@ -21,6 +21,7 @@ export interface RefreshResult {
   plan: 'candidates' | 'fleet'
   checked: number
   changed: number
+  turns: number
   slowestTurnMs: number
   slowestTurnCpuMs: number
   ms: number
@@ -41,7 +42,17 @@ export function refreshIfNewDay(db: Db, to = officeToday()): Promise<RefreshResu
     const plan = turnPlan(from, to)
     if (plan === 'none') return null
     const started = performance.now()
-    const stats = plan === 'fleet' ? await rederiveFleetInTurns(db, to) : await rederiveInTurns(db, dayTurnCandidates(db, from as string, to), to)
+    let stats
+    if (plan === 'fleet') stats = await rederiveFleetInTurns(db, to)
+    else {
+      // One index query per turn, then the detectors found.
+      const ids = new Set<number>()
+      for (const query of dayTurnQueries(db, from as string, to)) {
+        for (const id of query()) ids.add(id)
+        await nextTurn()
+      }
+      stats = await rederiveInTurns(db, [...ids].sort((x, y) => x - y), to)
+    }
     setDerivedDay(db, to)
     if (stats.changed > 0) listsChanged()
     return { from, to, plan, ...stats, ms: Math.round(performance.now() - started) }
