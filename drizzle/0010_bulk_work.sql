@@ -14,7 +14,7 @@ CREATE TABLE `bulk_changes` (
 --> statement-breakpoint
 CREATE INDEX `bulk_changes_actor_idx` ON `bulk_changes` (`actor_id`,`created_at`);--> statement-breakpoint
 CREATE TABLE `closed_days` (
-	`on` text PRIMARY KEY NOT NULL,
+	`day` text PRIMARY KEY NOT NULL,
 	`label` text NOT NULL
 );
 --> statement-breakpoint

@@ -552,7 +552,7 @@ export const observedHolidays = sqliteTable(
 
 // Days the whole company is closed (shutdowns, training days), on top of weekends and observed holidays.
 export const closedDays = sqliteTable('closed_days', {
-  on: text('on').primaryKey(),
+  day: text('day').primaryKey(),
   label: text('label').notNull(),
 })
 
