@@ -27,6 +27,11 @@ export interface ListSpec<F, S extends SelectedFields = SelectedFields> {
   /** A kept total for some filtered views (a reader of a counter table), or null to count. */
   keptTotal?: (filters: F) => ((db: Db) => number) | null
   /**
+   * For filters whose exact count would read a large share of the table (a broad word over millions
+   * of events): count no further than this, and report the total as "more than" it.
+   */
+  countCap?: (filters: F) => number | null
+  /**
    * The filters' conditions, all to hold (`undefined` for a filter not given), on the listed table's
    * own columns or through subqueries: totals are counted without the joins.
    */
@@ -92,6 +97,8 @@ export interface ListResult<Row> {
   limit: number
   /** False when the total came from the per-filter cache and rows may have changed since. */
   totalExact: boolean
+  /** True when counting stopped at its cap: there are more than `total` matching rows. */
+  totalCapped: boolean
 }
 
 // Filtered totals cost a count over the matching rows (tens of ms on millions of events), so each
@@ -171,13 +178,19 @@ type PageStatement = { all: (values: Record<string, unknown>) => unknown[] }
 const pageStatements = perDb(() => new WeakMap<object, Map<string, PageStatement>>())
 const MAX_STATEMENTS = 200
 
+/** The sort key and direction a list request asks for, else the list's default. */
+export function listOrder(spec: Pick<ListSpec<never>, 'sorts' | 'defaultSort'>, params: Pick<Paging, 'sort' | 'dir'>) {
+  const key = params.sort && spec.sorts[params.sort] ? params.sort : spec.defaultSort.key
+  const dir = params.dir ?? (params.sort ? 'asc' : spec.defaultSort.dir)
+  return { key, dir }
+}
+
 export function runList<F extends Paging, S extends SelectedFields>(db: Db, spec: ListSpec<F, S>, params: F): ListResult<ListRow<S>> {
   const { table } = spec
   const conditions = spec.where(params).filter((c) => c !== undefined)
   const where = conditions.length ? and(...conditions) : undefined
   const filter = where ? dialect.sqlToQuery(where) : { sql: '', params: [] }
-  const key = params.sort && spec.sorts[params.sort] ? params.sort : spec.defaultSort.key
-  const dir = params.dir ?? (params.sort ? 'asc' : spec.defaultSort.dir)
+  const { key, dir } = listOrder(spec, params)
 
   const lists = pageStatements(db)
   const statements = lists.get(spec) ?? new Map<string, PageStatement>()
@@ -211,11 +224,19 @@ export function runList<F extends Paging, S extends SelectedFields>(db: Db, spec
 
   let total: number
   let totalExact = true
+  let totalCapped = false
   const kept = spec.keptTotal?.(params)
+  const cap = spec.countCap?.(params) ?? null
   if (!where) {
     total = keptRows(db).get({ name: getTableName(table) })?.rows ?? 0
   } else if (kept) {
     total = kept(db)
+  } else if (cap !== null) {
+    // Counts the first cap + 1 matches only: a few ms however many there are.
+    const first = db.select({ one: sql`1` }).from(table).where(where).limit(cap + 1).as('first')
+    const n = db.select({ n: count() }).from(first).get()?.n ?? 0
+    totalCapped = n > cap
+    total = Math.min(n, cap)
   } else {
     const cacheKey = `${getTableName(table)}|${filter.sql}|${JSON.stringify(filter.params)}`
     const hit = totals.get(cacheKey)
@@ -232,7 +253,7 @@ export function runList<F extends Paging, S extends SelectedFields>(db: Db, spec
       totals.set(cacheKey, { total, at: Date.now(), version: writeVersion })
     }
   }
-  return { rows, total, offset: params.offset, limit: params.limit, totalExact }
+  return { rows, total, offset: params.offset, limit: params.limit, totalExact, totalCapped }
 }
 
 /** Parses a list route's query string: 400 with the issues on anything it does not accept. */

@@ -1,7 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { deviceReport } from '~/.server/device-report'
 import { runList } from '~/.server/list-query'
-import { eventList, eventQuery, type EventQuery } from '~/.server/lists/events'
+import { BROAD_COUNT_CAP, eventList, eventQuery, type EventQuery } from '~/.server/lists/events'
 import type { siteRecord } from '~/.server/repos/site'
 import type { visitRecord } from '~/.server/repos/visit'
 import { addDays } from '~/domain/dates'
@@ -310,8 +310,16 @@ describe('list routes page, filter and sort in SQL', () => {
       const query: EventQuery = { ...eventQuery.parse({ q: 'emberton', limit: '500' }), broad }
       const page = runList(data.db, eventList, query)
       expect(page.rows.map((r) => r.id), `broad: ${broad}`).toEqual(expected.slice(0, 500))
-      expect(page.total).toBe(expected.length)
+      // A broad word is counted only up to its cap, then reported as "more than".
+      expect(page.total).toBe(broad ? Math.min(expected.length, BROAD_COUNT_CAP) : expected.length)
+      expect(page.totalCapped).toBe(broad && expected.length > BROAD_COUNT_CAP)
     }
+    // The cap itself, made small enough for this data: the count stops there and says so.
+    const query: EventQuery = { ...eventQuery.parse({ q: 'emberton', limit: '5' }), broad: true }
+    const capped = runList(data.db, { ...eventList, countCap: () => 9 }, query)
+    expect(expected.length).toBeGreaterThan(9)
+    expect([capped.total, capped.totalCapped]).toEqual([9, true])
+    expect(capped.rows.map((r) => r.id)).toEqual(expected.slice(0, 5))
   })
 
   it('answers an empty page past the end, with the total', async () => {

@@ -50,6 +50,8 @@ export type EventQuery = z.infer<typeof eventQuery> & { broad?: boolean }
 // 'rtu', 75% of 2.1 million events) than by gathering every match through the detector index and
 // sorting it (360 ms). For a narrow search (a street, a serial) the index is right, and far faster.
 const BROAD_DETECTORS = 1000
+// A broad word's events are counted this far only (a few ms on the time index), shown as "more than".
+export const BROAD_COUNT_CAP = 10_000
 
 /** Whether `q` matches so many detectors that its events are best found in time order. */
 export function searchIsBroad(db: Db, q: string): boolean {
@@ -89,6 +91,7 @@ export const eventList: ListSpec<EventQuery, typeof select> = {
   select,
   sorts: SORTS,
   defaultSort: { key: 'occurredAt', dir: 'desc' },
+  countCap: (f) => (f.broad ? BROAD_COUNT_CAP : null),
   where(f) {
     const fts = f.q ? ftsQuery(f.q) : null
     return [
