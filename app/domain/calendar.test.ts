@@ -172,3 +172,20 @@ describe('calendarFor: the server time zone does not move holidays', () => {
     })
   }
 })
+
+describe('calendarFor: the company calendar', () => {
+  it('takes off only the observed public holidays and works the rest', () => {
+    const cal = calendarFor('US-TX', { observedHolidays: ['Independence Day'] })
+    expect(cal.isWorkingDay('2026-07-03')).toBe(false) // the substitute day goes with its holiday
+    expect(cal.isWorkingDay('2026-06-19')).toBe(true) // Juneteenth: a public holiday the company works
+    expect(cal.addWorkingDays('2026-06-18', 1)).toBe('2026-06-19')
+    expect(calendarFor('US-TX').isWorkingDay('2026-06-19')).toBe(false)
+  })
+
+  it('adds company closed days on top', () => {
+    const cal = calendarFor('US-TX', { observedHolidays: [], extraClosedDays: ['2026-06-17'] })
+    expect(cal.isWorkingDay('2026-06-17')).toBe(false)
+    expect(cal.addWorkingDays('2026-06-16', 1)).toBe('2026-06-18')
+    expect(cal.isWorkingDay('2026-07-03')).toBe(true)
+  })
+})

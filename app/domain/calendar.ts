@@ -23,6 +23,11 @@ export interface CalendarOptions {
   workingWeekdays?: number[]
   /** Further days off for this calendar (shutdowns, company days). */
   extraClosedDays?: IsoDate[]
+  /**
+   * Names of the region's public holidays the company takes off. When given, only these are days
+   * off and every other public holiday is worked; when left out, every public holiday is off.
+   */
+  observedHolidays?: readonly string[]
 }
 
 const MON_TO_FRI = [1, 2, 3, 4, 5]
@@ -99,7 +104,7 @@ function publicHolidays(key: string, parts: string[], year: number): Map<IsoDate
 
 export function calendarFor(region: string, o: CalendarOptions = {}): WorkCalendar {
   const { key, parts } = parseRegion(region)
-  const plain = o.workingWeekdays === undefined && o.extraClosedDays === undefined
+  const plain = o.workingWeekdays === undefined && o.extraClosedDays === undefined && o.observedHolidays === undefined
   const cached = plain ? plainCalendars.get(key) : undefined
   if (cached) return cached
   const cal = buildCalendar(key, parts, o)
@@ -113,6 +118,7 @@ function buildCalendar(key: string, parts: string[], o: CalendarOptions): WorkCa
     throw new Error('A calendar needs at least one working weekday (0 = Sunday … 6 = Saturday)')
   }
   const closed = new Set(o.extraClosedDays ?? [])
+  const observed = o.observedHolidays === undefined ? null : new Set(o.observedHolidays)
 
   const check = (date: IsoDate) => {
     if (!isIsoDate(date)) throw new Error(`Not a date: '${date}'`)
@@ -128,7 +134,10 @@ function buildCalendar(key: string, parts: string[], o: CalendarOptions): WorkCa
     let working = answers.get(date)
     if (working === undefined) {
       check(date)
-      working = weekdays.has(weekday(date)) && !closed.has(date) && holidayOn(date) === null
+      const holiday = holidayOn(date)
+      // A substitute day ('Independence Day (substitute day)') goes with the holiday it stands for.
+      const off = holiday !== null && (observed === null || observed.has(holiday) || observed.has(holiday.replace(/ \(.*\)$/, '')))
+      working = weekdays.has(weekday(date)) && !closed.has(date) && !off
       answers.set(date, working)
     }
     return working

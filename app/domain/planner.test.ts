@@ -383,3 +383,15 @@ describe('shiftVisits: properties', () => {
     )
   })
 })
+
+describe('shiftVisits: without rolling on', () => {
+  it('reports a visit whose target day is full instead of moving it further', () => {
+    const visits: VisitToShift[] = [
+      { id: 1, siteId: 1, region: 'US-OR', date: '2026-03-09', technicianId: 5, detectorCount: 4 },
+      { id: 2, siteId: 2, region: 'US-OR', date: '2026-03-09', technicianId: 5, detectorCount: 4 },
+    ]
+    const r = shiftVisits({ visits, by: { businessDays: 2 }, capacity: { 5: 6 }, roll: false })
+    expect(r.moved).toEqual([{ id: 1, from: '2026-03-09', to: '2026-03-11' }])
+    expect(r.unplaced).toEqual([{ id: 2, reason: 'Technician 5 is full on 2026-03-11: 2 of 6 left, the visit needs 4' }])
+  })
+})

@@ -268,6 +268,8 @@ export interface ShiftInput {
   calendars?: CalendarLookup
   /** Last date a visit may land on; by default 60 working days after its target. */
   limitDate?: IsoDate
+  /** false: a visit whose target day is full stays where it is, reported, instead of rolling on. */
+  roll?: boolean
 }
 
 export interface ShiftResult {
@@ -326,7 +328,7 @@ export function shiftVisits(input: ShiftInput): ShiftResult {
     }
 
     const target = how.by !== undefined ? cal.addWorkingDays(v.date, how.by) : cal.nextWorkingDay(how.to)
-    const limit = input.limitDate ?? cal.addWorkingDays(target, DEFAULT_SHIFT_LIMIT_WORKING_DAYS)
+    const limit = input.roll === false ? target : (input.limitDate ?? cal.addWorkingDays(target, DEFAULT_SHIFT_LIMIT_WORKING_DAYS))
     if (limit < target) {
       fail(`The target day ${target} is after the last allowed day ${limit}`)
       continue
@@ -337,6 +339,11 @@ export function shiftVisits(input: ShiftInput): ShiftResult {
         landed = d
         break
       }
+    }
+    if (!landed && input.roll === false) {
+      const room = Math.max(0, cap - load.get(v.technicianId!, target))
+      fail(`Technician ${v.technicianId} is full on ${target}: ${room} of ${cap} left, the visit needs ${v.detectorCount}`)
+      continue
     }
     if (!landed) {
       fail(`No working day with room for technician ${v.technicianId} from ${target} to ${limit}`)

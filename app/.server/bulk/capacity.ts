@@ -1,0 +1,96 @@
+import type { Db } from '../db'
+import type { Technician } from './actions/rows'
+
+/** One technician's booked work on one day, before and after a change, in the technician's own unit. */
+export interface DayLoad {
+  technicianId: number
+  technician: string
+  date: string
+  before: number
+  after: number
+  /** null: no daily limit set. */
+  capacity: number | null
+  unit: 'detectors' | 'visits'
+}
+
+export interface BookedVisit {
+  id: number
+  technicianId: number
+  scheduledOn: string
+  detectorCount: number
+}
+
+/** Open visits of these technicians from `from` on (what a day already holds). */
+export function bookedVisits(db: Db, technicianIds: readonly number[], from: string): BookedVisit[] {
+  if (technicianIds.length === 0) return []
+  // Raw SQL: the visit with its correlated detector count, on visits_tech_idx.
+  return db.$client
+    .prepare(
+      `select v.id, v.technician_id as technicianId, v.scheduled_on as scheduledOn,
+              (select count(*) from visit_detectors vd where vd.visit_id = v.id) as detectorCount
+         from visits v
+        where v.technician_id in (${technicianIds.map(() => '?').join(',')}) and v.scheduled_on >= ?
+          and v.status in ('planned', 'notified', 'in-progress')`,
+    )
+    .all(...technicianIds, from) as BookedVisit[]
+}
+
+/** What a visit weighs against its technician's day: its detectors, or 1 when capacity counts visits. */
+export const weight = (tech: Technician | undefined, detectorCount: number) => (tech?.capacityUnit === 'visits' ? 1 : detectorCount)
+
+/** A limit for the planner: no daily capacity set means no limit. */
+export const limitOf = (tech: Technician | undefined) => (tech?.dailyCapacity == null ? Infinity : tech.dailyCapacity)
+
+const MAX_DAY_LOADS = 500
+
+/** A visit changing day or technician. */
+export interface Move {
+  id: number
+  detectorCount: number
+  from: { tech: number | null; date: string }
+  to: { tech: number | null; date: string }
+}
+
+/**
+ * Each technician's load on every day a move touches, before and after. `booked` is every open
+ * visit (those moving at their old place), `moves` the visits that change day or technician.
+ */
+export function dayLoads(
+  booked: readonly BookedVisit[],
+  moves: readonly Move[],
+  techs: ReadonlyMap<number, Technician>,
+): DayLoad[] {
+  const key = (tech: number, date: string) => `${tech}|${date}`
+  const before = new Map<string, number>()
+  for (const b of booked) before.set(key(b.technicianId, b.scheduledOn), (before.get(key(b.technicianId, b.scheduledOn)) ?? 0) + weight(techs.get(b.technicianId), b.detectorCount))
+  const after = new Map(before)
+  const touched = new Set<string>()
+  for (const m of moves) {
+    if (m.from.tech !== null) {
+      const k = key(m.from.tech, m.from.date)
+      after.set(k, (after.get(k) ?? 0) - weight(techs.get(m.from.tech), m.detectorCount))
+      touched.add(k)
+    }
+    if (m.to.tech !== null) {
+      const k = key(m.to.tech, m.to.date)
+      after.set(k, (after.get(k) ?? 0) + weight(techs.get(m.to.tech), m.detectorCount))
+      touched.add(k)
+    }
+  }
+  return [...touched]
+    .map((k) => {
+      const [tech, date] = k.split('|')
+      const t = techs.get(Number(tech))
+      return {
+        technicianId: Number(tech),
+        technician: t?.name ?? `Technician ${tech}`,
+        date,
+        before: before.get(k) ?? 0,
+        after: after.get(k) ?? 0,
+        capacity: t?.dailyCapacity ?? null,
+        unit: t?.capacityUnit ?? 'detectors',
+      }
+    })
+    .sort((a, b) => a.technician.localeCompare(b.technician) || a.date.localeCompare(b.date))
+    .slice(0, MAX_DAY_LOADS)
+}

@@ -1,0 +1,10 @@
+import type { BulkAction } from './action'
+import { reschedule } from './actions/reschedule'
+
+// Every bulk action, by its URL name. A new action is one module under actions/ and one line here.
+const ACTIONS: ReadonlyArray<BulkAction<unknown>> = [reschedule]
+
+/** The action of that name, or null. */
+export function bulkAction(name: string): BulkAction<unknown> | null {
+  return ACTIONS.find((a) => a.name === name) ?? null
+}

@@ -1,0 +1,153 @@
+import { randomUUID } from 'node:crypto'
+import { writeAudit } from '../audit'
+import { writeTx, type Db } from '../db'
+import { rederive } from '../derivation'
+import { listsChanged } from '../list-query'
+import { bulkChanges } from '../schema'
+import { BulkError, type BulkAction, type BulkChange, type BulkContext, type BulkEntity, type BulkRefusal, type Fields } from './action'
+import { writeFields } from './write'
+
+/** Rows of a preview or result sent back; the whole selection is still applied. */
+export const LISTED_ROWS = 200
+// Up to this many records, a preview hands the versions to the caller, who sends them back to apply.
+// Beyond it they stay on the server under the preview's id (a body holds at most 1 MB).
+const VERSIONS_INLINE = 2_000
+
+export interface PreviewAnswer {
+  action: string
+  entity: BulkEntity
+  /** Records selected. */
+  selected: number
+  summary: string
+  changeCount: number
+  refusedCount: number
+  /** The first LISTED_ROWS of each. */
+  changes: BulkChange[]
+  refused: BulkRefusal[]
+  extra?: unknown
+  /** Send back to apply exactly what was previewed (valid 30 minutes, for the same person). */
+  previewId: string
+  /** id → version previewed, for a selection small enough to send back whole. */
+  versions?: Record<string, number>
+}
+
+export interface ApplyAnswer {
+  /** The bulk_changes row to undo with; null when nothing was applied. */
+  changeId: number | null
+  applied: number
+  refusedCount: number
+  refused: BulkRefusal[]
+  summary: string
+}
+
+/** One record as a bulk change left it, kept in bulk_changes.records for display and undo. */
+export interface ChangedRecord {
+  entity: BulkEntity
+  id: number
+  label: string
+  before: Fields
+  after: Fields
+  /** The version the change left; undo refuses the record if it has moved on. */
+  version: number
+}
+
+interface Snapshot {
+  actorId: number
+  action: string
+  input: string
+  versions: Map<number, number>
+  at: number
+}
+const PREVIEW_TTL_MS = 30 * 60_000
+const MAX_SNAPSHOTS = 200
+const snapshots = new Map<string, Snapshot>()
+
+function remember(s: Snapshot): string {
+  const now = Date.now()
+  for (const [k, v] of snapshots) if (now - v.at > PREVIEW_TTL_MS) snapshots.delete(k)
+  if (snapshots.size >= MAX_SNAPSHOTS) snapshots.delete(snapshots.keys().next().value as string)
+  const id = randomUUID()
+  snapshots.set(id, s)
+  return id
+}
+
+/** Runs the action's preview and keeps the versions it read, for the apply that follows. */
+export function previewBulk<I>(db: Db, action: BulkAction<I>, ids: readonly number[], input: I, ctx: BulkContext): PreviewAnswer {
+  const plan = action.preview(db, ids, input, ctx)
+  const versions = new Map(plan.changes.map((c) => [c.id, c.version]))
+  const previewId = remember({ actorId: ctx.actor.id, action: action.name, input: JSON.stringify(input), versions, at: Date.now() })
+  return {
+    action: action.name,
+    entity: action.entity,
+    selected: ids.length,
+    summary: plan.summary,
+    changeCount: plan.changes.length,
+    refusedCount: plan.refused.length,
+    changes: plan.changes.slice(0, LISTED_ROWS),
+    refused: plan.refused.slice(0, LISTED_ROWS),
+    extra: plan.extra,
+    previewId,
+    versions: versions.size <= VERSIONS_INLINE ? Object.fromEntries(versions) : undefined,
+  }
+}
+
+/** The versions a preview kept, checked against who asks and what for. */
+export function previewedVersions(previewId: string, action: BulkAction<unknown>, input: unknown, actorId: number): Map<number, number> {
+  const s = snapshots.get(previewId)
+  if (!s || Date.now() - s.at > PREVIEW_TTL_MS || s.actorId !== actorId || s.action !== action.name) {
+    throw new BulkError(409, 'That preview has expired or is not yours; preview again.')
+  }
+  if (s.input !== JSON.stringify(input)) throw new BulkError(409, 'The settings differ from the ones previewed; preview again.')
+  return s.versions
+}
+
+/**
+ * Applies an action to the records previewed (id → version previewed), in one IMMEDIATE
+ * transaction: the preview is run again on the data as it now is, each record whose version is not
+ * the previewed one is refused and left alone, the rest are written. A throw anywhere rolls all of
+ * it back. Detectors changed are re-derived in the same transaction.
+ */
+export function applyBulk<I>(db: Db, action: BulkAction<I>, input: I, previewed: ReadonlyMap<number, number>, ctx: BulkContext): ApplyAnswer {
+  const ids = [...previewed.keys()].sort((a, b) => a - b)
+  const answer = writeTx(db, () => {
+    const plan = action.preview(db, ids, input, ctx)
+    const refused = [...plan.refused]
+    const done: ChangedRecord[] = []
+    for (const c of plan.changes) {
+      const seen = previewed.get(c.id)
+      const stale = (now: number | string) => refused.push({ id: c.id, label: c.label, reason: `Changed since the preview (version ${seen} then, ${now} now); left as it is` })
+      if (seen === undefined) refused.push({ id: c.id, label: c.label, reason: 'Not in the preview; left as it is' })
+      else if (c.version !== seen) stale(c.version)
+      else if (!writeFields(db, c.entity, c.id, c.to, seen)) stale('another')
+      else done.push({ entity: c.entity, id: c.id, label: c.label, before: c.from, after: c.to, version: seen + 1 })
+    }
+    if (done.length === 0) return { changeId: null, applied: 0, refused, summary: plan.summary }
+    rederiveDetectors(db, done, ctx.today)
+    const changeId = recordChange(db, action.name, plan.summary, done, ctx.actor.id)
+    return { changeId, applied: done.length, refused, summary: plan.summary }
+  })
+  listsChanged()
+  return { ...answer, refusedCount: answer.refused.length, refused: answer.refused.slice(0, LISTED_ROWS) }
+}
+
+/** Re-derives the detectors among `records`, in chunks SQLite's parameter limit allows. */
+export function rederiveDetectors(db: Db, records: readonly ChangedRecord[], today: string) {
+  const ids = records.filter((r) => r.entity === 'detector').map((r) => r.id)
+  for (let i = 0; i < ids.length; i += 2_000) rederive(db, ids.slice(i, i + 2_000), today)
+}
+
+function recordChange(db: Db, action: string, summary: string, records: ChangedRecord[], actorId: number): number {
+  const row = db
+    .insert(bulkChanges)
+    .values({ actorId, action, summary, recordCount: records.length, records })
+    .returning({ id: bulkChanges.id })
+    .get()
+  writeAudit(db, {
+    actorId,
+    action: `bulk.${action}`,
+    entity: records[0].entity,
+    entityId: row.id,
+    after: { changeId: row.id, summary, count: records.length, records: records.map((r) => r.id) },
+  })
+  return row.id
+}

@@ -1,0 +1,121 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { seededDb, TEST_TODAY } from '#tests/setup/temp-db'
+import { bulkAction } from '~/.server/bulk/registry'
+import { applyBulk, previewBulk } from '~/.server/bulk/runner'
+import { contextFor, makeVisits } from '#tests/setup/bulk'
+import { undoBulk } from '~/.server/bulk/undo'
+import type { BulkAction } from '~/.server/bulk/action'
+
+// TEST_TODAY is Monday 2026-06-15; Friday 2026-06-19 is Juneteenth, a public holiday in the US.
+describe('bulk reschedule', () => {
+  let data: ReturnType<typeof seededDb>
+  let siteId: number
+  let techId: number
+  const reschedule = bulkAction('reschedule') as BulkAction<unknown>
+  const q = () => data.db.$client
+  const office = () => contextFor(data.db, 'office@ductkeeper.test', TEST_TODAY)
+  const dates = (ids: number[]) => (q().prepare(`select scheduled_on as d from visits where id in (${ids.join(',')}) order by id`).all() as Array<{ d: string }>).map((r) => r.d)
+  const visitsSnapshot = () => q().prepare('select * from visits order by id').all()
+  const versions = (plan: { changes: Array<{ id: number; version: number }> }) => new Map(plan.changes.map((c) => [c.id, c.version]))
+
+  beforeAll(() => {
+    data = seededDb('small')
+    siteId = (q().prepare("select id from sites where region = 'US-TX' order by id limit 1").get() as { id: number }).id
+    techId = (q().prepare("select id from users where email = 'jonah.keel@ductkeeper.test'").get() as { id: number }).id
+    // Each test sets the calendar and capacity it needs, whatever the seed holds.
+    q().exec('delete from closed_days; delete from observed_holidays')
+    q().prepare('update users set daily_capacity = null where id = ?').run(techId)
+  })
+  afterAll(() => data?.cleanup())
+
+  it('applies exactly what the preview showed, and undo puts every row back', () => {
+    const ids = makeVisits(data.db, { n: 5, siteId, date: '2026-06-16', technicianId: techId })
+    const before = visitsSnapshot()
+    const input = { mode: 'shift', days: 2 }
+    const preview = previewBulk(data.db, reschedule, ids, input, office())
+    expect(preview.changeCount).toBe(5)
+    // Tuesday + 2 working days: Juneteenth is worked while the company does not observe it.
+    expect(preview.changes.map((c) => c.to)).toEqual(ids.map(() => ({ scheduledOn: '2026-06-18' })))
+    const applied = applyBulk(data.db, reschedule, input, versions(preview), office())
+    expect(applied.applied).toBe(5)
+    expect(dates(ids)).toEqual(preview.changes.map((c) => c.to.scheduledOn))
+    const change = q().prepare('select action, record_count as n, undone_at as undone from bulk_changes where id = ?').get(applied.changeId) as Record<string, unknown>
+    expect(change).toEqual({ action: 'reschedule', n: 5, undone: null })
+    const audit = q().prepare("select after from audit_log where action = 'bulk.reschedule' order by id desc limit 1").get() as { after: string }
+    expect(JSON.parse(audit.after)).toMatchObject({ changeId: applied.changeId, count: 5, records: ids })
+
+    undoBulk(data.db, applied.changeId!, office().actor, TEST_TODAY)
+    const after = visitsSnapshot() as Array<Record<string, unknown>>
+    // Row for row the same, apart from the versions, which moved on twice.
+    expect(after.map((r) => ({ ...r, version: 0 }))).toEqual((before as Array<Record<string, unknown>>).map((r) => ({ ...r, version: 0 })))
+    expect(dates(ids)).toEqual(ids.map(() => '2026-06-16'))
+    expect(() => undoBulk(data.db, applied.changeId!, office().actor, TEST_TODAY)).toThrow(/already undone/)
+  })
+
+  it('refuses to undo once a record has changed since, naming it, and changes nothing', () => {
+    const ids = makeVisits(data.db, { n: 3, siteId, date: '2026-06-16', technicianId: null })
+    const input = { mode: 'date', date: '2026-06-23' }
+    const preview = previewBulk(data.db, reschedule, ids, input, office())
+    const applied = applyBulk(data.db, reschedule, input, versions(preview), office())
+    q().prepare("update visits set notes = 'called ahead', version = version + 1 where id = ?").run(ids[1])
+    expect(() => undoBulk(data.db, applied.changeId!, office().actor, TEST_TODAY)).toThrow(new RegExp(`1 of the records changed since \\(Visit ${ids[1]} `))
+    expect(dates(ids)).toEqual(['2026-06-23', '2026-06-23', '2026-06-23'])
+  })
+
+  it('reports a record changed between preview and apply, and leaves it alone', () => {
+    const ids = makeVisits(data.db, { n: 3, siteId, date: '2026-06-16', technicianId: null })
+    const input = { mode: 'shift', days: 1 }
+    const preview = previewBulk(data.db, reschedule, ids, input, office())
+    q().prepare("update visits set scheduled_on = '2026-06-30', version = version + 1 where id = ?").run(ids[0])
+    const applied = applyBulk(data.db, reschedule, input, versions(preview), office())
+    expect(applied.applied).toBe(2)
+    expect(applied.refused).toEqual([{ id: ids[0], label: `Visit ${ids[0]} · ${preview.changes[0].label.split(' · ')[1]} · 2026-06-30`, reason: expect.stringMatching(/Changed since the preview \(version 1 then, 2 now\)/) }])
+    expect(dates(ids)).toEqual(['2026-06-30', '2026-06-17', '2026-06-17'])
+  })
+
+  it('rolls everything back when one write fails part way', () => {
+    const ids = makeVisits(data.db, { n: 4, siteId, date: '2026-06-16', technicianId: null })
+    q().exec(`create trigger bulk_test_boom before update on visits when new.id = ${ids[2]} begin select raise(abort, 'injected failure'); end`)
+    const input = { mode: 'shift', days: 3 }
+    const preview = previewBulk(data.db, reschedule, ids, input, office())
+    const changes = (q().prepare('select count(*) n from bulk_changes').get() as { n: number }).n
+    expect(() => applyBulk(data.db, reschedule, input, versions(preview), office())).toThrow(/injected failure/)
+    q().exec('drop trigger bulk_test_boom')
+    expect(dates(ids)).toEqual(ids.map(() => '2026-06-16'))
+    expect((q().prepare('select count(*) n from bulk_changes').get() as { n: number }).n).toBe(changes)
+  })
+
+  it('follows the company calendar: closed days are off, unobserved public holidays are worked', () => {
+    const ids = makeVisits(data.db, { n: 2, siteId, date: '2026-06-17', technicianId: null })
+    q().prepare("insert into closed_days (day, label) values ('2026-06-18', 'Stocktake')").run()
+    // Wednesday + 1 working day skips the closed Thursday and lands on Juneteenth, which is worked.
+    let preview = previewBulk(data.db, reschedule, ids, { mode: 'shift', days: 1 }, office())
+    expect(preview.changes.map((c) => c.to.scheduledOn)).toEqual(['2026-06-19', '2026-06-19'])
+    preview = previewBulk(data.db, reschedule, ids, { mode: 'date', date: '2026-06-18' }, office())
+    expect(preview.changeCount).toBe(0)
+    expect(preview.refused[0].reason).toMatch(/2026-06-18 is not a working day at .* \(company closed: Stocktake\)/)
+    q().prepare("insert into observed_holidays (region, name) values ('US', 'Juneteenth')").run()
+    preview = previewBulk(data.db, reschedule, ids, { mode: 'shift', days: 1 }, office())
+    expect(preview.changes.map((c) => c.to.scheduledOn)).toEqual(['2026-06-22', '2026-06-22'])
+    preview = previewBulk(data.db, reschedule, ids, { mode: 'date', date: '2026-06-19' }, office())
+    expect(preview.refused[0].reason).toMatch(/\(Juneteenth\)/)
+    q().exec("delete from closed_days; delete from observed_holidays")
+  })
+
+  it("keeps within a technician's daily capacity and shows the day's load before and after", () => {
+    q().prepare("update users set daily_capacity = 4, capacity_unit = 'detectors' where id = ?").run(techId)
+    const existing = makeVisits(data.db, { n: 1, siteId, date: '2026-06-25', technicianId: techId, detectors: 2 })
+    const ids = makeVisits(data.db, { n: 3, siteId, date: '2026-06-24', technicianId: techId, detectors: 1 })
+    const preview = previewBulk(data.db, reschedule, ids, { mode: 'shift', days: 1 }, office())
+    expect(preview.changeCount).toBe(2)
+    expect(preview.refused).toEqual([{ id: ids[2], label: expect.any(String), reason: 'Jonah Keel is full on 2026-06-25: 0 of 4 left, the visit needs 1' }])
+    const loads = (preview.extra as { dayLoads: Array<Record<string, unknown>> }).dayLoads
+    expect(loads).toEqual([
+      { technicianId: techId, technician: 'Jonah Keel', date: '2026-06-24', before: 3, after: 1, capacity: 4, unit: 'detectors' },
+      { technicianId: techId, technician: 'Jonah Keel', date: '2026-06-25', before: 2, after: 4, capacity: 4, unit: 'detectors' },
+    ])
+    q().prepare(`delete from visit_detectors where visit_id in (${[...existing, ...ids].join(',')})`).run()
+    q().prepare(`delete from visits where id in (${[...existing, ...ids].join(',')})`).run()
+    q().prepare('update users set daily_capacity = null where id = ?').run(techId)
+  })
+})
