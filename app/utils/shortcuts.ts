@@ -13,6 +13,7 @@ export type ShortcutId =
   | 'toggle-select'
   | 'open'
   | 'close'
+  | 'edit'
   | `go:${string}`
 
 export interface Shortcut {
@@ -27,6 +28,7 @@ export const SHORTCUTS: Shortcut[] = [
   { id: 'palette', keys: ['mod+k'], label: 'Open the command palette', group: 'Anywhere' },
   { id: 'help', keys: ['?'], label: 'Show every shortcut', group: 'Anywhere' },
   { id: 'close', keys: ['Escape'], label: 'Close, or clear the selection', group: 'Anywhere' },
+  { id: 'edit', keys: ['e'], label: 'Edit the record on the page', group: 'Anywhere' },
   { id: 'focus-filter', keys: ['/'], label: 'Focus the filter', group: 'Lists' },
   { id: 'row-down', keys: ['j', 'ArrowDown'], label: 'Move to the next row', group: 'Lists' },
   { id: 'row-up', keys: ['k', 'ArrowUp'], label: 'Move to the previous row', group: 'Lists' },
