@@ -91,3 +91,15 @@ export const newVisit = z.object({
     .max(2_000),
 })
 export type NewVisit = z.infer<typeof newVisit>
+
+/** One site's visit when a selection of detectors is booked from the queue: its own day and technician. */
+export const siteBooking = z.object({
+  siteId: id,
+  scheduledOn: day,
+  technicianId: z
+    .number({ error: 'Choose a technician from the list, or leave the visit unassigned' })
+    .int('Choose a technician from the list, or leave the visit unassigned')
+    .positive('Choose a technician from the list, or leave the visit unassigned')
+    .nullable(),
+})
+export type SiteBooking = z.infer<typeof siteBooking>

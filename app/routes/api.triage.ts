@@ -4,9 +4,10 @@ import { getDb } from '~/.server/db'
 import { readJsonOrForm } from '~/.server/http'
 import { idParam, isoDate, parseQuery } from '~/.server/list-query'
 import { reasonCounts, triageList, triageQuery } from '~/.server/lists/triage'
-import { acknowledge, assign, Refusal, scheduleVisits } from '~/.server/repos/triage-actions'
+import { acknowledge, assign, BOOKING_KINDS, Refusal, scheduleVisits } from '~/.server/repos/triage-actions'
 import { officeToday } from '~/.server/today'
 import { can, type RouteAccess } from '~/domain/permissions'
+import { siteBooking } from '~/domain/visit-forms'
 import type { Route } from './+types/api.triage'
 
 // Scheduling is the widest write here (office may do it); acknowledging and assigning are checked
@@ -28,13 +29,17 @@ const ids = z
 const body = z.discriminatedUnion('intent', [
   z.object({ intent: z.literal('acknowledge'), ids, note: z.string().trim().max(500).optional() }),
   z.object({ intent: z.literal('assign'), ids, technicianId: idParam }),
-  z.object({
-    intent: z.literal('schedule'),
-    ids,
-    date: isoDate,
-    kind: z.enum(['inspection', 'test', 'cleaning', 'repair']).default('test'),
-    technicianId: idParam.nullable().default(null),
-  }),
+  z
+    .object({
+      intent: z.literal('schedule'),
+      ids,
+      // The common day and technician; `sites` gives each site its own, as the booking form does.
+      date: isoDate.optional(),
+      kind: z.enum(BOOKING_KINDS).default('test'),
+      technicianId: idParam.nullable().default(null),
+      sites: z.array(siteBooking).max(500).optional(),
+    })
+    .refine((b) => b.date !== undefined || (b.sites?.length ?? 0) > 0, { path: ['date'], message: 'Pick a day for the visit' }),
 ])
 
 /** A form post carries one `ids` field per detector. */
@@ -60,12 +65,18 @@ export async function action({ request }: Route.ActionArgs) {
         return Response.json({ ok: true, message: `Assigned ${r.count} to ${r.technician}.` })
       }
       case 'schedule': {
-        const r = scheduleVisits(db, user.id, input.ids, { date: input.date, kind: input.kind, technicianId: input.technicianId, today: officeToday() })
-        return Response.json({ ok: true, message: `Booked ${r.visits} visit${r.visits === 1 ? '' : 's'} on ${input.date} for ${r.detectors} detector${r.detectors === 1 ? '' : 's'}. Notify each monitoring company before the work.` })
+        const r = scheduleVisits(db, user.id, input.ids, { date: input.date, kind: input.kind, technicianId: input.technicianId, sites: input.sites, today: officeToday() })
+        const days = [...new Set(r.booked.map((b) => b.scheduledOn))].sort()
+        const when = days.length === 1 ? `on ${days[0]}` : `from ${days[0]} to ${days[days.length - 1]}`
+        return Response.json({
+          ok: true,
+          visits: r.booked,
+          message: `Booked ${r.visits} visit${r.visits === 1 ? '' : 's'} ${when} for ${r.detectors} detector${r.detectors === 1 ? '' : 's'}. Notify each monitoring company before the work.`,
+        })
       }
     }
   } catch (error) {
-    if (error instanceof Refusal) return Response.json({ error: error.message }, { status: 409 })
+    if (error instanceof Refusal) return Response.json({ error: error.message, ...error.extra }, { status: error.status })
     throw error
   }
 }

@@ -1,11 +1,29 @@
 import { bookVisit } from '../visits/book'
 import { VisitRefusal } from '../visits/refusal'
+import type { SiteBooking } from '~/domain/visit-forms'
 import type { VisitTask } from '~/domain/vocabulary'
 import { writeTx, type Db } from '../db'
 import { writeAudit } from '../audit'
 import { listsChanged } from '../list-query'
 
-export class Refusal extends Error {}
+/** A triage write refused for a reason the lead can act on; the route answers with its status. */
+export class Refusal extends Error {
+  constructor(
+    message: string,
+    readonly status: 400 | 403 | 404 | 409 = 409,
+    readonly extra: Record<string, unknown> = {},
+  ) {
+    super(message)
+  }
+}
+
+export const BOOKING_KINDS = ['inspection', 'test', 'cleaning', 'repair'] as const
+export type BookingKind = (typeof BOOKING_KINDS)[number]
+
+/** The tasks a visit booked from the queue carries on each detector. */
+export function tasksFor(kind: BookingKind): VisitTask[] {
+  return kind === 'cleaning' ? ['visual', 'cleaning'] : kind === 'inspection' ? ['visual'] : ['visual', 'functional']
+}
 
 type Ids = number[]
 
@@ -38,7 +56,7 @@ export function assign(db: Db, actorId: number, ids: Ids, technicianId: number) 
   const q = db.$client
   const n = writeTx(db, () => {
     const tech = q.prepare("select name from users where id = ? and role = 'technician' and active = 1").get(technicianId) as { name: string } | undefined
-    if (!tech) throw new Refusal('Choose an active technician.')
+    if (!tech) throw new Refusal(`There is no active technician ${technicianId}; choose one from the list.`, 400)
     const rows = detectorsById(db, ids)
     const update = q.prepare('update detectors set assigned_to = ?, version = version + 1 where id = ?')
     for (const r of rows) {
@@ -53,23 +71,38 @@ export function assign(db: Db, actorId: number, ids: Ids, technicianId: number) 
 
 /**
  * Books one visit per site for the selected detectors, each through the one booking path (working
- * day, technician, open visits for the same tasks). All or nothing: one refusal books none.
+ * day, technician, open visits for the same tasks). Each site takes its own day and technician when
+ * given, else the common ones. All or nothing: one refusal books none.
  */
-export function scheduleVisits(db: Db, actorId: number, ids: Ids, o: { date: string; kind: 'inspection' | 'test' | 'cleaning' | 'repair'; technicianId: number | null; today: string }) {
-  const tasks: VisitTask[] = o.kind === 'cleaning' ? ['visual', 'cleaning'] : o.kind === 'inspection' ? ['visual'] : ['visual', 'functional']
+export function scheduleVisits(
+  db: Db,
+  actorId: number,
+  ids: Ids,
+  o: { date?: string; kind: BookingKind; technicianId: number | null; sites?: SiteBooking[]; today: string },
+) {
+  const tasks = tasksFor(o.kind)
   const result = writeTx(db, () => {
     const rows = detectorsById(db, ids)
     const bySite = new Map<number, number[]>()
     for (const r of rows) bySite.set(r.siteId, [...(bySite.get(r.siteId) ?? []), r.id])
+    const given = new Map((o.sites ?? []).map((s) => [s.siteId, s]))
+    const strangers = [...given.keys()].filter((siteId) => !bySite.has(siteId))
+    if (strangers.length) throw new Refusal(`None of the selected detectors is at site ${strangers.join(', ')}.`, 400, { siteIds: strangers })
+    const booked: Array<{ visitId: number; siteId: number; scheduledOn: string; technicianId: number | null }> = []
     try {
       for (const [siteId, detectorIds] of bySite) {
-        bookVisit(db, actorId, { siteId, kind: o.kind, scheduledOn: o.date, technicianId: o.technicianId, detectors: detectorIds.map((detectorId) => ({ detectorId, tasks })) }, o.today)
+        const own = given.get(siteId)
+        const scheduledOn = own?.scheduledOn ?? o.date
+        if (!scheduledOn) throw new Refusal(`Pick a day for the visit to site ${siteId}.`, 400, { siteIds: [siteId] })
+        const technicianId = own ? own.technicianId : o.technicianId
+        const { visitId } = bookVisit(db, actorId, { siteId, kind: o.kind, scheduledOn, technicianId, detectors: detectorIds.map((detectorId) => ({ detectorId, tasks })) }, o.today)
+        booked.push({ visitId, siteId, scheduledOn, technicianId })
       }
     } catch (error) {
-      if (error instanceof VisitRefusal) throw new Refusal(error.message)
+      if (error instanceof VisitRefusal) throw new Refusal(error.message, error.status, error.extra)
       throw error
     }
-    return { visits: bySite.size, detectors: rows.length }
+    return { visits: bySite.size, detectors: rows.length, booked }
   })
   listsChanged()
   return result
