@@ -1,21 +1,27 @@
 import type Database from 'better-sqlite3'
+import { calendarFor, type WorkCalendar } from '~/domain/calendar'
 import { addDays, daysBetween, type IsoDate } from '~/domain/dates'
 import { deriveDetector, workFacts, type TaskResult } from '~/domain/derive'
 import { CLEANING_INTERVAL_DAYS, nextSensitivityDue, type Environment } from '~/domain/schedule'
 import type { Task } from '~/domain/vocabulary'
 import {
   CITIES,
+  CLOSED_DAYS,
   DEMO_USERS,
   DETECTOR_MODELS,
   MONITORING_COMPANIES,
   NAME_FIRST,
   NAME_SECOND,
   NAMED_CUSTOMERS,
+  OBSERVED_HOLIDAYS,
+  repeatsAWord,
   ROLES,
   SITE_SUFFIX,
   STREET_KINDS,
   STREETS,
   TECH_NOTES,
+  UNIT_LOCATIONS,
+  UNIT_MIX,
 } from './names'
 import { withBulkLoad } from './bulk'
 import type { Awg } from '~/domain/conductors'
@@ -45,6 +51,12 @@ function rng(seed: number) {
     next,
     int: (min: number, max: number) => min + Math.floor(next() * (max - min + 1)),
     pick: <T>(list: readonly T[]): T => list[Math.floor(next() * list.length)],
+    /** One of `[item, weight]` pairs, chosen in proportion to the weights. */
+    weighted: <T>(list: ReadonlyArray<readonly [T, number]>): T => {
+      let roll = next() * list.reduce((sum, [, w]) => sum + w, 0)
+      for (const [item, w] of list) if ((roll -= w) < 0) return item
+      return list[list.length - 1][0]
+    },
     chance: (p: number) => next() < p,
   }
 }
@@ -78,9 +90,9 @@ export function seed(sqlite: Database.Database, scale: Scale, today: IsoDate): S
     sqlite.prepare(`insert into ${table} (${cols.join(',')}) values (${cols.map(() => '?').join(',')})`)
 
   const insRole = ins('roles', ['key', 'label', 'description'])
-  const insUser = ins('users', ['id', 'email', 'name', 'role', 'active', 'created_at'])
+  const insUser = ins('users', ['id', 'email', 'name', 'role', 'active', 'regions', 'daily_capacity', 'capacity_unit', 'created_at'])
   const insMonitor = ins('monitoring_companies', ['id', 'name', 'phone', 'email', 'notify_method', 'notify_lead_minutes', 'hours', 'created_at'])
-  const insModel = ins('detector_models', ['id', 'name', 'supervisory_labelled_in', 'aux_contacts', 'standby_va', 'alarm_va', 'velocity_min_fpm', 'velocity_max_fpm', 'pressure_min_in_wc', 'pressure_max_in_wc'])
+  const insModel = ins('detector_models', ['id', 'name', 'supervisory_labelled_in', 'aux_contacts', 'standby_va', 'alarm_va', 'velocity_min_fpm', 'velocity_max_fpm', 'pressure_min_in_wc', 'pressure_max_in_wc', 'sensitivity_low_pct_ft', 'sensitivity_high_pct_ft'])
   const insCustomer = ins('customers', ['id', 'name', 'kind', 'contact_name', 'contact_email', 'contact_phone', 'created_at'])
   const insSite = ins('sites', ['id', 'customer_id', 'name', 'street', 'city', 'region', 'postal_code', 'time_zone', 'jurisdiction', 'ahj_name', 'ahj_contact', 'code_basis', 'monitoring_company_id', 'monitoring_account', 'delay_policy_seconds', 'access_notes', 'created_at'])
   const insUnit = ins('units', ['id', 'site_id', 'tag', 'kind', 'location', 'shutdown_input', 'supply_cfm', 'return_cfm', 'duct_shape', 'duct_width_in', 'duct_height_in', 'duct_diameter_in', 'storeys_served', 'shared_plenum', 'area_detection', 'transformer_va', 'created_at'])
@@ -91,40 +103,78 @@ export function seed(sqlite: Database.Database, scale: Scale, today: IsoDate): S
   const insVisit = ins('visits', ['id', 'site_id', 'kind', 'scheduled_on', 'technician_id', 'status', 'notes', 'created_by', 'created_at'])
   const insVisitDetector = ins('visit_detectors', ['visit_id', 'detector_id', 'tasks', 'result', 'notes', 'completed_at'])
   const insResult = ins('task_results', ['detector_id', 'visit_id', 'task', 'done_on', 'outcome', 'value', 'recorded_by', 'created_at'])
+  const insHoliday = ins('observed_holidays', ['region', 'name'])
+  const insClosed = ins('closed_days', ['day', 'label'])
   const insNotice = ins('notifications', ['site_id', 'visit_id', 'monitoring_company_id', 'notified_at', 'notified_by', 'method', 'spoke_with', 'confirmation', 'in_test_from', 'in_test_until', 'site_contact_told', 'cleared_at'])
 
-  const techIds = DEMO_USERS.map((u, i) => ({ ...u, id: i + 1 }))
-    .filter((u) => u.role === 'technician')
-    .map((u) => u.id)
+  // Each site's work goes to a technician who covers its region.
+  const techsByRegion = new Map<string, number[]>()
+  DEMO_USERS.forEach((u, i) => {
+    if (!('regions' in u)) return
+    for (const region of u.regions) techsByRegion.set(region, [...(techsByRegion.get(region) ?? []), i + 1])
+  })
   const officeId = DEMO_USERS.findIndex((u) => u.role === 'office') + 1
+
+  // The company's own closed days lie ahead of `today`, each on what would otherwise be a working day.
+  const closedDays = CLOSED_DAYS.map((d) => ({ on: calendarFor('US').nextWorkingDay(addDays(today, d.after)), label: d.label }))
+  // Past visits kept off weekends and the national public holidays (one calendar: reading a region's
+  // holidays for every past year costs more than the rest of a small seed); bookings ahead also keep
+  // off the site region's own holidays and the company's closed days.
+  const pastCalendar = calendarFor('US')
+  const calendars = new Map<string, WorkCalendar>()
+  const calendarOf = (region: string) => {
+    let cal = calendars.get(region)
+    if (!cal) calendars.set(region, (cal = calendarFor(region, { extraClosedDays: closedDays.map((d) => d.on) })))
+    return cal
+  }
 
   sqlite.transaction(() => {
     for (const role of ROLES) insRole.run(role.key, role.label, role.description)
-    DEMO_USERS.forEach((u, i) => insUser.run(i + 1, u.email, u.name, u.role, 1, now))
+    DEMO_USERS.forEach((u, i) =>
+      'regions' in u
+        ? insUser.run(i + 1, u.email, u.name, u.role, 1, u.regions.join(','), u.dailyCapacity, 'detectors', now)
+        : insUser.run(i + 1, u.email, u.name, u.role, 1, null, null, 'detectors', now),
+    )
     MONITORING_COMPANIES.forEach((m, i) => insMonitor.run(i + 1, m.name, m.phone, m.email, m.method, m.lead, '24/7', now))
     DETECTOR_MODELS.forEach((m, i) =>
-      insModel.run(i + 1, m.name, m.labelled, 2, m.standby, m.alarm, m.vmin, m.vmax, m.pmin, m.pmax),
+      insModel.run(i + 1, m.name, m.labelled, m.aux, m.standby, m.alarm, m.vmin, m.vmax, m.pmin, m.pmax, m.slow, m.shigh),
     )
+    for (const d of closedDays) insClosed.run(d.on, d.label)
   })()
 
   // Customers: the named ones first, then generated chains up to the scale's count.
   const customerList: Array<{ id: number; name: string; kind: string; prefix: string }> = []
+  const customerNames = new Set<string>(NAMED_CUSTOMERS.map((c) => c.name))
+  // A generated chain's name: first word, the trade's tail, and past the first rounds a qualifier;
+  // the first combination that is new and uses no word twice ("Plaza Holdings Holdings").
+  const chainName = (i: number, kind: string) => {
+    const first = NAME_FIRST[i % NAME_FIRST.length]
+    const tails = NAME_SECOND[kind]
+    const qualifiers = ['', 'West', 'East', 'Group', 'Holdings', 'North', 'South']
+    const round = Math.floor(i / (NAME_FIRST.length * 3))
+    for (let k = 0; k < tails.length * qualifiers.length; k++) {
+      const tail = tails[(Math.floor(i / NAME_FIRST.length) + k) % tails.length]
+      const qualifier = qualifiers[(round + Math.floor(k / tails.length)) % qualifiers.length]
+      const name = `${first} ${tail}${qualifier ? ` ${qualifier}` : ''}`
+      if (!customerNames.has(name) && !repeatsAWord(name)) return name
+    }
+    return `${first} ${tails[0]} ${i + 1}`
+  }
   for (let i = 0; i < cfg.customers; i++) {
     const named = NAMED_CUSTOMERS[i]
     if (named) {
       customerList.push({ id: i + 1, name: named.name, kind: named.kind, prefix: named.sitePrefix })
     } else {
       const kind = r.pick(['restaurant', 'restaurant', 'retail', 'office', 'school', 'healthcare'])
-      const first = NAME_FIRST[i % NAME_FIRST.length]
-      const tail = NAME_SECOND[kind][Math.floor(i / NAME_FIRST.length) % NAME_SECOND[kind].length]
-      const round = Math.floor(i / (NAME_FIRST.length * 3))
-      const name = `${first} ${tail}${round > 0 ? ` ${['', 'West', 'East', 'Group', 'Holdings'][round % 5]}` : ''}`.trim()
-      customerList.push({ id: i + 1, name, kind, prefix: first })
+      const name = chainName(i, kind)
+      customerNames.add(name)
+      customerList.push({ id: i + 1, name, kind, prefix: NAME_FIRST[i % NAME_FIRST.length] })
     }
   }
 
   let siteId = 0
   const siteNames = new Set<string>()
+  const regionsUsed = new Set<string>()
   let unitId = 0
   let detectorId = 0
   let visitId = 0
@@ -132,7 +182,9 @@ export function seed(sqlite: Database.Database, scale: Scale, today: IsoDate): S
 
   const writeFleet = sqlite.transaction(() => {
     for (const c of customerList) {
-      insCustomer.run(c.id, c.name, c.kind, `${r.pick(['Dana', 'Lee', 'Sam', 'Robin', 'Jordan', 'Avery'])} ${r.pick(['Hale', 'Moreno', 'Baptiste', 'Lindqvist', 'Okafor'])}`, `facilities@${c.prefix.toLowerCase().replace(/[^a-z]+/g, '')}.test`, `555-01${String(r.int(0, 99)).padStart(2, '0')}`, now)
+      // The head office's line: an area code of one of the regions served, a number kept for fiction.
+      const phone = `(${r.pick(CITIES).area}) 555-01${String(r.int(0, 99)).padStart(2, '0')}`
+      insCustomer.run(c.id, c.name, c.kind, `${r.pick(['Dana', 'Lee', 'Sam', 'Robin', 'Jordan', 'Avery'])} ${r.pick(['Hale', 'Moreno', 'Baptiste', 'Lindqvist', 'Okafor'])}`, `facilities@${c.prefix.toLowerCase().replace(/[^a-z]+/g, '')}.test`, phone, now)
       counts.customers++
     }
     // Chains get many sites; the first customers get the most so the demo has a few big programs.
@@ -145,28 +197,44 @@ export function seed(sqlite: Database.Database, scale: Scale, today: IsoDate): S
       ci = (ci + 1) % customerList.length
       const siteShare = weights[customerList.indexOf(c)] / weightSum
       if (!r.chance(Math.min(1, siteShare * customerList.length))) continue
-      const place = r.pick(CITIES)
+      // A place and a street sharing no word with the customer's name, so no name says a word twice.
+      let place = r.pick(CITIES)
+      while (repeatsAWord(`${c.prefix} ${place.city}`)) place = r.pick(CITIES)
       siteId++
       const monitor = ((siteId * 7) % MONITORING_COMPANIES.length) + 1
       const policy = DELAY_POLICIES[(monitor + siteId) % DELAY_POLICIES.length]
       const suffix = r.pick(SITE_SUFFIX[c.kind])
-      const streetName = `${r.pick(STREETS)} ${r.pick(STREET_KINDS)}`
-      const street = `${r.int(100, 9899)} ${streetName}`
-      let siteName = `${c.prefix} ${place.city}${suffix ? ` ${suffix}` : ''}`
-      if (siteNames.has(siteName)) siteName = `${c.prefix} ${streetName}, ${place.city}${suffix ? ` ${suffix}` : ''}`
-      if (siteNames.has(siteName)) siteName = `${siteName} (${street.split(' ')[0]})`
+      const tail = `${place.city}${suffix ? ` ${suffix}` : ''}`
+      let streetName = `${r.pick(STREETS)} ${r.pick(STREET_KINDS)}`
+      while (repeatsAWord(`${c.prefix} ${streetName} ${tail}`)) streetName = `${r.pick(STREETS)} ${r.pick(STREET_KINDS)}`
+      const number = r.int(100, 9899)
+      const street = `${number} ${streetName}`
+      const siteName =
+        [`${c.prefix} ${tail}`, `${c.prefix} ${streetName}, ${tail}`, `${c.prefix} ${streetName}, ${tail} (${number})`].find((n) => !siteNames.has(n)) ??
+        `${c.prefix} ${streetName}, ${tail} #${siteId}`
       siteNames.add(siteName)
+      regionsUsed.add(place.region)
       const codeBasis = CITIES.indexOf(place) % 3 === 0 ? 'nfpa90a' : 'imc'
       insSite.run(siteId, c.id, siteName, street, place.city, place.region, `${place.zip}${String(r.int(100, 999))}`, place.tz, `City of ${place.city}`, `${place.city} Fire Prevention Bureau`, `fireprevention@${place.city.toLowerCase().replace(/[^a-z]+/g, '')}.test`, codeBasis, monitor, `AC-${String(100000 + siteId * 37).slice(-6)}`, policy, r.chance(0.4) ? r.pick(['Roof hatch key at front desk.', 'Ladder on site; call manager on arrival.', 'After 14:00 only: kitchen busy at lunch.', 'Escort required in patient areas.']) : null, now)
       counts.sites++
-      const siteVisits = writeSiteHistory(siteId, monitor, c.kind)
+      const siteVisits = writeSiteHistory(siteId, monitor, c.kind, place.region)
 
       const unitCount = c.kind === 'restaurant' ? r.int(2, 4) : c.kind === 'retail' ? r.int(3, 9) : r.int(2, 7)
+      // Tags number each kind on its own, as on a roof plan: RTU-1, RTU-2, MAU-1.
+      const perKind = new Map<string, number>()
       for (let u = 1; u <= unitCount && detectorId < cfg.detectors; u++) {
         unitId++
-        const isAhu = c.kind !== 'restaurant' && r.chance(0.35)
-        const supply = isAhu ? r.int(8, 60) * 500 : r.int(3, 25) * 400
-        const ret = Math.round(supply * (0.8 + r.next() * 0.15))
+        const kind = r.weighted(UNIT_MIX[c.kind])
+        perKind.set(kind, (perKind.get(kind) ?? 0) + 1)
+        const unitTag = `${kind.toUpperCase()}-${perKind.get(kind)}`
+        // Air handlers are the big ones; a make-up air unit brings in outdoor air only and has no return.
+        const supply =
+          kind === 'ahu' ? r.int(8, 60) * 500
+          : kind === 'mau' ? r.int(4, 16) * 500
+          : kind === 'erv' ? r.int(4, 12) * 500
+          : kind === 'fcu' ? r.int(9, 12) * 200
+          : r.int(3, 25) * 400
+        const ret = kind === 'mau' ? 0 : Math.round(supply * (0.8 + r.next() * 0.15))
         const round = r.chance(0.2)
         // Size the duct for roughly 700–2,300 fpm, with a few outside any listing.
         const targetFpm = r.chance(0.04) ? r.int(150, 280) : r.int(700, 2300)
@@ -174,35 +242,42 @@ export function seed(sqlite: Database.Database, scale: Scale, today: IsoDate): S
         const width = Math.max(8, Math.round(Math.sqrt(areaIn2 * 1.5) / 2) * 2)
         const height = Math.max(6, Math.round(areaIn2 / width / 2) * 2)
         const diameter = Math.max(8, Math.round(Math.sqrt((areaIn2 * 4) / Math.PI)))
-        const storeys = c.kind === 'office' && isAhu ? r.int(1, 6) : 1
-        insUnit.run(unitId, siteId, `${isAhu ? 'AHU' : 'RTU'}-${u}`, isAhu ? 'ahu' : r.chance(0.1) ? 'mau' : 'rtu', isAhu ? r.pick(['Mechanical room', 'Penthouse', 'Level 2 plant']) : r.pick(['Roof, north', 'Roof, south', 'Roof over kitchen', 'Roof, east']), r.chance(0.7) ? 'break-to-stop' : 'make-to-stop', supply, ret, round ? 'round' : 'rectangular', round ? null : width, round ? null : height, round ? diameter : null, storeys, r.chance(0.1) ? 1 : 0, r.chance(0.15) ? 1 : 0, r.pick([40, 40, 40, 50, 75]), now)
+        const storeys = c.kind === 'office' && kind === 'ahu' ? r.int(1, 6) : 1
+        const location = c.kind === 'restaurant' && kind === 'rtu' && r.chance(0.3) ? 'Roof over dining room' : r.pick(UNIT_LOCATIONS[kind])
+        insUnit.run(unitId, siteId, unitTag, kind, location, r.chance(0.7) ? 'break-to-stop' : 'make-to-stop', supply, ret, round ? 'round' : 'rectangular', round ? null : width, round ? null : height, round ? diameter : null, storeys, r.chance(0.1) ? 1 : 0, r.chance(0.15) ? 1 : 0, r.pick([40, 40, 40, 50, 75]), now)
         counts.units++
 
-        const positions: Array<'supply' | 'return'> = r.chance(0.55) ? ['supply', 'return'] : [r.chance(0.6) ? 'supply' : 'return']
+        const positions: Array<'supply' | 'return'> = kind === 'mau' ? ['supply'] : r.chance(0.55) ? ['supply', 'return'] : [r.chance(0.6) ? 'supply' : 'return']
         for (const position of positions) {
           if (detectorId >= cfg.detectors) break
           detectorId++
-          writeDetector(detectorId, { siteId, unitId, customerId: c.id, kind: c.kind, position, monitor, policy, unitTag: `${isAhu ? 'AHU' : 'RTU'}-${u}`, visits: siteVisits })
+          writeDetector(detectorId, { siteId, unitId, customerId: c.id, kind: c.kind, position, monitor, policy, unitTag, visits: siteVisits })
         }
       }
-      writePlannedVisit(siteId)
+      writePlannedVisit(siteId, place.region)
     }
   })
 
   interface SiteVisit {
     id: number
+    site: number
+    monitor: number
     on: IsoDate
     kind: 'test' | 'inspection'
     tech: number
+    written: boolean
   }
 
   /**
    * The site's program since the contractor took it over: a visit every quarter (restaurants, for the
-   * kitchen cleaning) or every half year, one a year being the annual test, each with its notice to
-   * the monitoring company logged and cleared. A few sites have lapsed and not been visited for a year.
+   * kitchen cleaning) or every half year, one a year being the annual test, on working days, mostly by
+   * the site's usual technician from those covering its region. A few sites have lapsed and not been
+   * visited for a year. The visits are written when a detector's work first lands on them (`writeVisit`),
+   * so a round that found nothing to do leaves no visit behind.
    */
-  function writeSiteHistory(site: number, monitor: number, kind: string): SiteVisit[] {
-    const m = MONITORING_COMPANIES[monitor - 1]
+  function writeSiteHistory(site: number, monitor: number, kind: string, region: string): SiteVisit[] {
+    const techs = techsByRegion.get(region) ?? []
+    const usual = r.pick(techs)
     const every = kind === 'restaurant' ? 91 : 182
     const perYear = Math.round(365 / every)
     const testPhase = r.int(0, perYear - 1)
@@ -211,35 +286,37 @@ export function seed(sqlite: Database.Database, scale: Scale, today: IsoDate): S
     let on = addDays(today, lapsed ? -r.int(380, 700) : -r.int(3, every - 3))
     const dates: IsoDate[] = []
     while (on >= start) {
-      dates.push(on)
+      // The last working day on or before the planned one.
+      dates.push(pastCalendar.addWorkingDays(addDays(on, 1), -1))
       on = addDays(on, -every + r.int(-6, 6))
     }
     dates.reverse()
-    const out: SiteVisit[] = []
-    dates.forEach((day, k) => {
+    return dates.map((day, k) => {
       visitId++
-      const tech = r.pick(techIds)
       const visitKind = (k + testPhase) % perYear === 0 ? 'test' : 'inspection'
-      insVisit.run(visitId, site, visitKind, day, tech, 'done', visitKind === 'test' ? 'Annual test, inspection and cleaning.' : 'Inspection and cleaning round.', officeId, `${addDays(day, -14)}T15:00:00.000Z`)
-      counts.visits++
-      const spoke = r.pick(['Operator 14', 'Dispatcher Ruiz', 'Desk K. Amani', 'Operator 7'])
-      const confirmation = `CF${String(visitId * 91 + 10000).slice(-5)}`
-      insNotice.run(site, visitId, monitor, `${day}T14:05:00.000Z`, tech, m.method, spoke, confirmation, `${day}T14:10:00.000Z`, `${day}T18:10:00.000Z`, 'Manager on duty', `${day}T18:02:00.000Z`)
-      counts.notifications++
-      // The notice's own entry in the site's timeline: one per logged notice, so counts and timeline agree.
-      insEvent.run(site, null, `${day}T14:05:00.000Z`, 'notice', `Monitoring company told (${spoke}, confirmation ${confirmation}); system in test`, tech)
-      counts.events++
-      out.push({ id: visitId, on: day, kind: visitKind, tech })
+      return { id: visitId, site, monitor, on: day, kind: visitKind, tech: r.chance(0.8) ? usual : r.pick(techs), written: false }
     })
-    return out
+  }
+
+  /** A past visit with its notice to the monitoring company, logged and cleared. */
+  function writeVisit(v: SiteVisit) {
+    v.written = true
+    const m = MONITORING_COMPANIES[v.monitor - 1]
+    insVisit.run(v.id, v.site, v.kind, v.on, v.tech, 'done', v.kind === 'test' ? 'Annual test, inspection and cleaning.' : 'Inspection and cleaning round.', officeId, `${addDays(v.on, -14)}T15:00:00.000Z`)
+    counts.visits++
+    const spoke = r.pick(['Operator 14', 'Dispatcher Ruiz', 'Desk K. Amani', 'Operator 7'])
+    const confirmation = `CF${String(v.id * 91 + 10000).slice(-5)}`
+    insNotice.run(v.site, v.id, v.monitor, `${v.on}T14:05:00.000Z`, v.tech, m.method, spoke, confirmation, `${v.on}T14:10:00.000Z`, `${v.on}T18:10:00.000Z`, 'Manager on duty', `${v.on}T18:02:00.000Z`)
+    counts.notifications++
+    // The notice's own entry in the site's timeline: one per logged notice, so counts and timeline agree.
+    insEvent.run(v.site, null, `${v.on}T14:05:00.000Z`, 'notice', `Monitoring company told (${spoke}, confirmation ${confirmation}); system in test`, v.tech)
+    counts.events++
   }
 
   function writeDetector(
     id: number,
     o: { siteId: number; unitId: number; customerId: number; kind: string; position: 'supply' | 'return'; monitor: number; policy: number; unitTag: string; visits: SiteVisit[] },
   ) {
-    const modelIdx = r.chance(0.08) ? 2 : r.chance(0.3) ? 1 : 0
-    const model = DETECTOR_MODELS[modelIdx]
     const env: Environment =
       o.kind === 'restaurant' && r.chance(0.45)
         ? 'kitchen'
@@ -249,6 +326,10 @@ export function seed(sqlite: Database.Database, scale: Scale, today: IsoDate): S
             ? 'dusty'
             : 'clean'
     const housing = env === 'humid' ? (r.chance(0.55) ? 'nema4x' : 'standard') : r.chance(0.04) ? 'nema4' : 'standard'
+    // A NEMA 4X location gets the module built in that housing; elsewhere the usual mix of the
+    // low-flow, dual-head, relay-board and plain modules (a NEMA 4 spot has its own enclosure).
+    const modelIdx = housing === 'nema4x' ? 4 : r.chance(0.08) ? 3 : r.chance(0.3) ? 2 : r.chance(0.5) ? 1 : 0
+    const model = DETECTOR_MODELS[modelIdx]
     const installedOn = addDays(today, -r.int(400, 6000))
     // Left out of the rounds (no access, unit replaced, never added to the list): the common way a
     // miswire goes uncaught. Some were left out from the start and have no result on record at all.
@@ -283,6 +364,7 @@ export function seed(sqlite: Database.Database, scale: Scale, today: IsoDate): S
     const lastTestVisit = [...worked].reverse().find((v) => v.kind === 'test')
     const visitsDone: Array<{ visit: SiteVisit; tasks: Task[]; failed: boolean }> = []
     for (const v of worked) {
+      if (!v.written) writeVisit(v)
       const facts = workFacts(results)
       const tasks: Task[] = ['visual']
       if (v.kind === 'test') tasks.push('functional')
@@ -319,7 +401,7 @@ export function seed(sqlite: Database.Database, scale: Scale, today: IsoDate): S
     insDetector.run(
       id, o.unitId, o.siteId, o.customerId, modelIdx + 1,
       `${o.unitTag}-${o.position === 'supply' ? 'S' : 'R'}`, `DK${String(1_000_000 + id * 13).slice(-7)}`,
-      o.position, modelIdx === 1 ? 2 : 1, housing, env, delay, delay === null ? null : facts.lastVisualOn, installedOn,
+      o.position, model.heads, housing, env, delay, delay === null ? null : facts.lastVisualOn, installedOn,
       recorded.eolOhms, recorded.eolPlacement, recorded.alarmTerminal, recorded.supervisoryTerminal,
       awg, stranded ? 1 : 0, runFeet, r.chance(0.3) ? (r.chance(0.5) ? 'key' : 'magnet') : 'none', r.chance(0.3) ? r.int(20, 300) : null,
       model.vmin, model.vmax, model.pmin, model.pmax, state,
@@ -403,18 +485,32 @@ export function seed(sqlite: Database.Database, scale: Scale, today: IsoDate): S
     }
   }
 
-  /** An upcoming visit for part of the sites, covering their detectors that fall due soon. */
-  function writePlannedVisit(site: number) {
+  /**
+   * An upcoming visit for part of the sites, on a working day at the site, covering their detectors that
+   * fall due soon (none due, no visit), most already given to a technician of the region.
+   */
+  const dueAtSite = sqlite.prepare('select id from detectors where site_id = ? and next_due_on <= ? order by id')
+  function writePlannedVisit(site: number, region: string) {
     if (!r.chance(0.35)) return
-    const when = addDays(today, r.int(1, 45))
+    const when = calendarOf(region).nextWorkingDay(addDays(today, r.int(1, 45)))
+    const kind = r.chance(0.3) ? 'cleaning' : 'test'
+    const tech = r.chance(0.85) ? r.pick(techsByRegion.get(region) ?? []) : null
+    const rows = dueAtSite.all(site, addDays(when, 30)) as Array<{ id: number }>
+    if (rows.length === 0) return
     visitId++
-    insVisit.run(visitId, site, r.chance(0.3) ? 'cleaning' : 'test', when, r.chance(0.85) ? r.pick(techIds) : null, 'planned', null, officeId, now)
-    const rows = sqlite.prepare('select id from detectors where site_id = ? and next_due_on <= ?').all(site, addDays(when, 30)) as Array<{ id: number }>
-    for (const row of rows) insVisitDetector.run(visitId, row.id, 'visual,functional,cleaning', 'pending', null, null)
+    insVisit.run(visitId, site, kind, when, tech, 'planned', null, officeId, now)
+    const tasks = kind === 'cleaning' ? 'visual,cleaning' : 'visual,functional,cleaning'
+    for (const row of rows) insVisitDetector.run(visitId, row.id, tasks, 'pending', null, null)
     counts.visits++
   }
 
+  /** The company calendar: the holidays it observes in every region it works in. */
+  function writeObservedHolidays() {
+    for (const region of [...regionsUsed].sort()) for (const name of OBSERVED_HOLIDAYS) insHoliday.run(region, name)
+  }
+
   withBulkLoad(sqlite, ['events', 'readings', 'visits', 'visit_detectors', 'task_results', 'notifications'], writeFleet)
+  sqlite.transaction(writeObservedHolidays)()
   // Every detector's facts were derived for `today` above: the refresh starts from there.
   sqlite.prepare("insert into app_state (key, value) values ('derived-day', ?) on conflict(key) do update set value = excluded.value").run(today)
   return counts
