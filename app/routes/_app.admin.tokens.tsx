@@ -1,3 +1,4 @@
+import { useRef, useState } from 'react'
 import { data, Form, useNavigation } from 'react-router'
 import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
@@ -35,7 +36,7 @@ export async function action({ request }: Route.ActionArgs) {
     if (!owner) return data({ ok: false, errors: { userId: 'Choose an active user' }, message: null, token: null }, { status: 400 })
     const expiresAt = new Date(Date.now() + input.expiresInDays * 86_400_000)
     const { token } = createToken(db, { userId: input.userId, name: input.name, expiresAt, actorId: me.id })
-    return { ok: true, errors: {}, message: `Token “${input.name}” created. Copy it now: it will not be shown again.`, token }
+    return { ok: true, errors: {}, message: `Token “${input.name}” created.`, token }
   }
   const revoked = revokeToken(db, input.tokenId, me.id)
   if (!revoked) return data({ ok: false, errors: {}, message: 'That token is already revoked or does not exist.', token: null }, { status: 409 })
@@ -49,33 +50,20 @@ export default function Tokens({ loaderData, actionData }: Route.ComponentProps)
     <div className="mx-auto max-w-5xl">
       <PageHeader title="API tokens">For scripts and integrations: send as Authorization: Bearer …</PageHeader>
       {actionData?.message && <Notice tone={actionData.ok ? 'ok' : 'error'}>{actionData.message}</Notice>}
-      {actionData?.token && (
-        <div className="mb-4 rounded-md border border-accent/40 bg-accent-soft p-3">
-          <label htmlFor="new-token" className="text-xs font-medium text-ink-soft">
-            New token (shown once)
-          </label>
-          <input
-            id="new-token"
-            readOnly
-            value={actionData.token}
-            onFocus={(e) => e.currentTarget.select()}
-            className={`${inputClass} mt-1 w-full font-mono`}
-          />
-        </div>
-      )}
+      {actionData?.token && <NewToken token={actionData.token} />}
 
       <section aria-labelledby="create-h" className="mb-6 rounded-md border border-line bg-panel p-4">
         <h2 id="create-h" className="font-semibold">
           Create a token
         </h2>
         <p className="mt-1 text-sm text-ink-soft">A token acts with its owner&apos;s role. Only its fingerprint is stored.</p>
-        <Form method="post" className="mt-3 flex flex-wrap items-start gap-3">
+        <Form method="post" className="mt-3 grid gap-3 sm:flex sm:flex-wrap sm:items-start">
           <input type="hidden" name="intent" value="create" />
           <Field label="Name" error={errors.name}>
-            <input name="name" required className={`${inputClass} w-56`} placeholder="e.g. Nightly export" />
+            <input name="name" required className={`${inputClass} w-full sm:w-56`} placeholder="e.g. Nightly export" />
           </Field>
           <Field label="Acts as" error={errors.userId}>
-            <select name="userId" className={`${inputClass} w-72`}>
+            <select name="userId" className={`${inputClass} w-full sm:w-72`}>
               {loaderData.users.map((u) => (
                 <option key={u.id} value={u.id}>
                   {u.label}
@@ -84,66 +72,102 @@ export default function Tokens({ loaderData, actionData }: Route.ComponentProps)
             </select>
           </Field>
           <Field label="Expires in (days)" error={errors.expiresInDays}>
-            <input name="expiresInDays" type="number" min={1} max={366} defaultValue={90} className={`${inputClass} w-28`} />
+            <input name="expiresInDays" type="number" min={1} max={366} defaultValue={90} className={`${inputClass} w-full sm:w-28`} />
           </Field>
-          <button type="submit" className={`${buttonClass} mt-5`} disabled={busy}>
+          <button type="submit" className={`${buttonClass} justify-self-start sm:mt-5`} disabled={busy}>
             Create
           </button>
         </Form>
       </section>
 
-      <div className="overflow-x-auto rounded-md border border-line bg-panel">
-        <table className="w-full text-sm">
-          <thead className="text-left text-xs text-ink-faint uppercase">
-            <tr>
-              <th className="px-4 py-2 font-medium">Token</th>
-              <th className="px-2 py-2 font-medium">Acts as</th>
-              <th className="px-2 py-2 font-medium">Expires</th>
-              <th className="hidden px-2 py-2 font-medium md:table-cell">Last used</th>
-              <th className="px-2 py-2 font-medium">Status</th>
-              <th className="px-4 py-2" />
-            </tr>
-          </thead>
-          <tbody>
-            {loaderData.tokens.length === 0 && (
-              <tr>
-                <td colSpan={6} className="px-4 py-6 text-center text-ink-soft">
-                  No tokens yet.
-                </td>
-              </tr>
-            )}
-            {loaderData.tokens.map((t) => {
-              const expired = t.expiresAt <= loaderData.now
-              const status = t.revokedAt ? 'Revoked' : expired ? 'Expired' : 'Active'
-              return (
-                <tr key={t.id} className="border-t border-line/70">
-                  <td className="px-4 py-2">
-                    <div className="font-medium">{t.name}</div>
-                    <div className="font-mono text-xs text-ink-faint">dk_{t.prefix}_…</div>
-                  </td>
-                  <td className="px-2 py-2 text-ink-soft">{t.userEmail}</td>
-                  <td className="px-2 py-2 font-mono text-xs">{t.expiresAt.slice(0, 10)}</td>
-                  <td className="hidden px-2 py-2 font-mono text-xs md:table-cell">{t.lastUsedAt?.slice(0, 16).replace('T', ' ') ?? 'never'}</td>
-                  <td className="px-2 py-2">
-                    <StateBadge value={status === 'Active' ? 'ok' : 'out-of-service'} label={status} />
-                  </td>
-                  <td className="px-4 py-2 text-right">
-                    {status === 'Active' && (
-                      <Form method="post">
-                        <input type="hidden" name="intent" value="revoke" />
-                        <input type="hidden" name="tokenId" value={t.id} />
-                        <button type="submit" className={quietButtonClass} disabled={busy}>
-                          Revoke
-                        </button>
-                      </Form>
-                    )}
-                  </td>
-                </tr>
-              )
-            })}
-          </tbody>
-        </table>
+      {loaderData.tokens.length === 0 ? (
+        <p className="rounded-md border border-line bg-panel px-4 py-6 text-center text-ink-soft">No tokens yet.</p>
+      ) : (
+        <ul aria-label="Tokens" className="divide-y divide-line/70 rounded-md border border-line bg-panel">
+          {loaderData.tokens.map((t) => {
+            const expired = t.expiresAt <= loaderData.now
+            const status = t.revokedAt ? 'Revoked' : expired ? 'Expired' : 'Active'
+            return (
+              <li key={t.id} className="grid gap-2 px-4 py-3 text-sm md:grid-cols-[minmax(0,1fr)_minmax(0,14rem)_8rem_6rem_auto] md:items-center">
+                <div className="min-w-0">
+                  <div className="font-medium">{t.name}</div>
+                  <div className="font-mono text-xs text-ink-faint">dk_{t.prefix}_…</div>
+                </div>
+                <div className="min-w-0 truncate text-ink-soft">
+                  <span className="text-xs text-ink-faint md:hidden">Acts as </span>
+                  {t.userEmail}
+                </div>
+                <div className="text-xs text-ink-soft">
+                  <div>
+                    {status === 'Active' ? 'Expires' : 'Expired'} <span className="font-mono">{t.expiresAt.slice(0, 10)}</span>
+                  </div>
+                  <div>
+                    Used <span className="font-mono">{t.lastUsedAt?.slice(0, 16).replace('T', ' ') ?? 'never'}</span>
+                  </div>
+                </div>
+                <div>
+                  <StateBadge value={status === 'Active' ? 'ok' : 'out-of-service'} label={status} />
+                </div>
+                <div className="md:text-right">
+                  {status === 'Active' && (
+                    <Form method="post">
+                      <input type="hidden" name="intent" value="revoke" />
+                      <input type="hidden" name="tokenId" value={t.id} />
+                      <button type="submit" className={quietButtonClass} disabled={busy} aria-label={`Revoke ${t.name}`}>
+                        Revoke
+                      </button>
+                    </Form>
+                  )}
+                </div>
+              </li>
+            )
+          })}
+        </ul>
+      )}
+    </div>
+  )
+}
+
+/**
+ * The token's text, shown this once: only its fingerprint is kept. Copy uses the clipboard where the
+ * browser allows it (secure pages); elsewhere the text is selected for Ctrl+C.
+ */
+function NewToken({ token }: { token: string }) {
+  const input = useRef<HTMLInputElement>(null)
+  const [status, setStatus] = useState<'idle' | 'copied' | 'selected'>('idle')
+  const copy = async () => {
+    try {
+      if (!navigator.clipboard) throw new Error('no clipboard')
+      await navigator.clipboard.writeText(token)
+      setStatus('copied')
+    } catch {
+      input.current?.focus()
+      input.current?.select()
+      setStatus('selected')
+    }
+  }
+  return (
+    <div className="mb-4 rounded-md border border-accent/40 bg-accent-soft p-3">
+      <label htmlFor="new-token" className="text-sm font-medium">
+        Your new token
+      </label>
+      <p className="text-xs text-ink-soft">Shown once: copy it now and keep it somewhere safe. Ductkeeper stores only a fingerprint, so it cannot show it again.</p>
+      <div className="mt-2 flex flex-col gap-2 sm:flex-row">
+        <input
+          id="new-token"
+          ref={input}
+          readOnly
+          value={token}
+          onFocus={(e) => e.currentTarget.select()}
+          className={`${inputClass} min-w-0 flex-1 font-mono text-xs`}
+        />
+        <button type="button" onClick={() => void copy()} className={`${buttonClass} shrink-0`}>
+          {status === 'copied' ? 'Copied' : 'Copy token'}
+        </button>
       </div>
+      <p role="status" className="mt-1 min-h-4 text-xs text-ink-soft">
+        {status === 'copied' ? 'Copied to the clipboard.' : status === 'selected' ? 'Selected: press Ctrl+C (⌘C on a Mac) to copy.' : ''}
+      </p>
     </div>
   )
 }

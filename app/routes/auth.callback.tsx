@@ -3,7 +3,7 @@ import { writeAudit } from '~/.server/audit'
 import { getAuthenticator } from '~/.server/auth'
 import { getDb } from '~/.server/db'
 import { sessionStorage } from '~/.server/sessions'
-import { clearOAuthCookies, readReturnTo, returnToCookie } from '~/.server/sign-in'
+import { auditRefusedSignIn, clearOAuthCookies, readReturnTo, returnToCookie } from '~/.server/sign-in'
 import type { RouteAccess } from '~/domain/permissions'
 import type { Route } from './+types/auth.callback'
 
@@ -22,6 +22,7 @@ export async function loader({ request }: Route.LoaderArgs) {
     email = (await auth.authenticate('oidc', request)).email
   } catch (error) {
     console.warn('sign-in callback refused:', error instanceof Error ? error.message : error)
+    auditRefusedSignIn(getDb(), { reason: 'failed', email: null, userId: null })
     return data(
       { reason: 'failed' as const, email: null },
       { status: 400, headers },
@@ -33,6 +34,7 @@ export async function loader({ request }: Route.LoaderArgs) {
     | { id: number; active: number }
     | undefined
   if (!user || !user.active) {
+    auditRefusedSignIn(db, { reason: user ? 'inactive' : 'unknown', email, userId: user?.id ?? null })
     return data({ reason: user ? ('inactive' as const) : ('unknown' as const), email }, { status: 403, headers })
   }
   const session = await sessionStorage.getSession()

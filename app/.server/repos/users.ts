@@ -1,8 +1,9 @@
 import { and, asc, count, desc, eq, isNull, max, sql } from 'drizzle-orm'
+import type { CapacityUnit } from '~/domain/vocabulary'
 import type { Role } from '~/domain/permissions'
 import { writeAudit } from '../audit'
 import { writeTx, type Db } from '../db'
-import { apiTokens, auditLog, sessions, tableCounts, users } from '../schema'
+import { apiTokens, sessions, users } from '../schema'
 import { revokeSessionsOf } from '../sessions'
 
 export class Refusal extends Error {}
@@ -20,6 +21,9 @@ export function listUsers(db: Db) {
       name: users.name,
       role: users.role,
       active: users.active,
+      regions: users.regions,
+      dailyCapacity: users.dailyCapacity,
+      capacityUnit: users.capacityUnit,
       createdAt: users.createdAt,
       lastSeenAt: seen.lastSeenAt,
     })
@@ -87,33 +91,29 @@ export function setActive(db: Db, actorId: number, userId: number, active: boole
   })
 }
 
-// The page shows what was recorded as the JSON text it was written as.
-const asText = (value: unknown) => (value === null || value === undefined ? null : JSON.stringify(value))
+export interface Workload {
+  regions: string[]
+  dailyCapacity: number | null
+  capacityUnit: CapacityUnit
+}
 
-export function listAudit(db: Db, o: { entity?: string; offset: number; limit: number }) {
-  const where = o.entity ? eq(auditLog.entity, o.entity) : undefined
-  const rows = db
-    .select({
-      id: auditLog.id,
-      at: auditLog.at,
-      actor: users.email,
-      action: auditLog.action,
-      entity: auditLog.entity,
-      entityId: auditLog.entityId,
-      before: auditLog.before,
-      after: auditLog.after,
-    })
-    .from(auditLog)
-    .leftJoin(users, eq(users.id, auditLog.actorId))
-    .where(where)
-    .orderBy(desc(auditLog.id))
-    .limit(o.limit)
-    .offset(o.offset)
-    .all()
-    .map((r) => ({ ...r, before: asText(r.before), after: asText(r.after) }))
-  // Unfiltered, the kept row total saves counting the whole log.
-  const total = where
-    ? db.select({ n: count() }).from(auditLog).where(where).get()!.n
-    : (db.select({ n: tableCounts.rows }).from(tableCounts).where(eq(tableCounts.name, 'audit_log')).get()?.n ?? 0)
-  return { rows, total }
+/** A technician's regions and daily capacity; the audit entry keeps only the fields that changed. */
+export function setWorkload(db: Db, actorId: number, userId: number, w: Workload) {
+  return writeTx(db, () => {
+    const before = db
+      .select({ role: users.role, regions: users.regions, dailyCapacity: users.dailyCapacity, capacityUnit: users.capacityUnit })
+      .from(users)
+      .where(eq(users.id, userId))
+      .get()
+    if (!before) throw new Refusal('That user no longer exists.')
+    if (before.role !== 'technician') throw new Refusal('Regions and daily capacity are kept for technicians only.')
+    const next = { regions: w.regions.join(',') || null, dailyCapacity: w.dailyCapacity, capacityUnit: w.capacityUnit }
+    const was = { regions: before.regions, dailyCapacity: before.dailyCapacity, capacityUnit: before.capacityUnit }
+    const changed = (Object.keys(next) as Array<keyof typeof next>).filter((k) => next[k] !== was[k])
+    if (changed.length === 0) return false
+    db.update(users).set(next).where(eq(users.id, userId)).run()
+    const pick = (o: Record<string, unknown>) => Object.fromEntries(changed.map((k) => [k, o[k]]))
+    writeAudit(db, { actorId, action: 'user.update', entity: 'user', entityId: userId, before: pick(was), after: pick(next) })
+    return true
+  })
 }
