@@ -1,7 +1,7 @@
 import Busboy from 'busboy'
 import { fileTypeFromBuffer } from 'file-type'
 import { randomUUID } from 'node:crypto'
-import { createReadStream, createWriteStream, mkdirSync, readdirSync, renameSync, rmSync, statSync } from 'node:fs'
+import { chmodSync, createReadStream, createWriteStream, mkdirSync, readdirSync, renameSync, rmSync, statSync } from 'node:fs'
 import { dirname, join, resolve } from 'node:path'
 import { Readable } from 'node:stream'
 import { finished } from 'node:stream/promises'
@@ -190,7 +190,8 @@ function receive(request: Request, dir: string): Promise<{ fields: Record<string
       const received: Received = { tempPath, clientName: info.filename ?? '', size: 0, head: Buffer.alloc(0) }
       const heads: Buffer[] = []
       let headBytes = 0
-      const out = createWriteStream(tempPath)
+      // Site photos and records are the customer's: readable by the server's own account only.
+      const out = createWriteStream(tempPath, { mode: 0o600 })
       open.push(stream)
       outs.push(out)
       stream.on('data', (chunk: Buffer) => {
@@ -251,6 +252,7 @@ async function check(file: Received): Promise<IncomingFile> {
         .resize({ width: THUMB_PX, height: THUMB_PX, fit: 'inside', withoutEnlargement: true })
         .jpeg({ quality: 78, mozjpeg: true })
         .toFile(thumbTempPath)
+      chmodSync(thumbTempPath, 0o600)
     } catch {
       removeQuietly(thumbTempPath)
       thumbTempPath = null
@@ -355,7 +357,7 @@ export function uploadTarget(db: Db, visitId: number, user: CurrentUser): VisitR
  */
 export async function storeUpload(db: Db, request: Request, visit: VisitRef, user: CurrentUser): Promise<AttachmentView[]> {
   const dir = attachmentsDir()
-  mkdirSync(dir, { recursive: true })
+  mkdirSync(dir, { recursive: true, mode: 0o700 })
   sweepOnce(dir)
   const { fields, files } = await receive(request, dir)
   const temps = files.flatMap((f) => [f.tempPath, `${f.tempPath}.thumb`])

@@ -1,7 +1,7 @@
 import Database from 'better-sqlite3'
 import { drizzle, type BetterSQLite3Database } from 'drizzle-orm/better-sqlite3'
 import { migrate } from 'drizzle-orm/better-sqlite3/migrator'
-import { mkdirSync } from 'node:fs'
+import { chmodSync, closeSync, existsSync, mkdirSync, openSync } from 'node:fs'
 import { dirname, resolve } from 'node:path'
 import * as schema from './schema'
 
@@ -11,7 +11,7 @@ const migrationsFolder = resolve(process.env.MIGRATIONS_PATH ?? 'drizzle')
 
 /** Opens (creating if needed) the SQLite file, sets the pragmas the app relies on, and migrates. */
 export function createDb(path: string, { runMigrations = true } = {}): Db {
-  if (path !== ':memory:') mkdirSync(dirname(path), { recursive: true })
+  if (path !== ':memory:') ownerOnly(path)
   const sqlite = new Database(path)
   sqlite.pragma('journal_mode = WAL')
   sqlite.pragma('foreign_keys = ON')
@@ -21,6 +21,23 @@ export function createDb(path: string, { runMigrations = true } = {}): Db {
   const db = drizzle(sqlite, { schema }) as Db
   if (runMigrations) migrate(db, { migrationsFolder })
   return db
+}
+
+/**
+ * The records are the customers' and the people's: the database is created readable and writable by
+ * the server's own account only, and SQLite gives its WAL and shared-memory files the database file's
+ * mode. An existing file keeps an owner-only mode too (a copy may have arrived with a looser one).
+ */
+function ownerOnly(path: string) {
+  mkdirSync(dirname(path), { recursive: true, mode: 0o700 })
+  if (!existsSync(path)) closeSync(openSync(path, 'a', 0o600))
+  for (const file of [path, `${path}-wal`, `${path}-shm`]) {
+    try {
+      chmodSync(file, 0o600)
+    } catch {
+      // Not there yet, or not ours to change: SQLite reports a file it cannot open.
+    }
+  }
 }
 
 /**
