@@ -1,5 +1,7 @@
 import { Link } from 'react-router'
+import { TAP_AREA } from '~/components/ui/tap'
 import { formatDay } from '~/utils/format'
+import { siteDay, siteTime } from '~/utils/time-format'
 
 export interface TimelineEvent {
   id: number
@@ -36,14 +38,12 @@ const kindOf = (kind: string) => KINDS[kind] ?? { label: kind, glyph: '·', tint
 export function EventTimeline({ events, timeZone = 'UTC' }: { events: TimelineEvent[]; timeZone?: string }) {
   if (events.length === 0) return <p className="px-4 py-3 text-sm text-ink-soft">Nothing recorded yet.</p>
 
-  const dayOf = new Intl.DateTimeFormat('en-CA', { timeZone, year: 'numeric', month: '2-digit', day: '2-digit' })
-  const timeOf = new Intl.DateTimeFormat('en-GB', { timeZone, hour: '2-digit', minute: '2-digit', hourCycle: 'h23' })
   const days: Array<{ day: string; events: Array<TimelineEvent & { time: string }> }> = []
   for (const e of events) {
-    const at = new Date(e.occurredAt)
-    const day = dayOf.format(at)
+    const day = siteDay(e.occurredAt, timeZone)
     const last = days.at(-1)
-    const row = { ...e, time: timeOf.format(at) }
+    // Each time carries its zone's letters: a long history crosses daylight-saving changes.
+    const row = { ...e, time: siteTime(e.occurredAt, timeZone) }
     if (last?.day === day) last.events.push(row)
     else days.push({ day, events: [row] })
   }
@@ -63,9 +63,9 @@ export function EventTimeline({ events, timeZone = 'UTC' }: { events: TimelineEv
                 return (
                   <li
                     key={e.id}
-                    className="grid grid-cols-[3rem_1fr] gap-x-3 gap-y-0.5 px-4 py-2 sm:grid-cols-[3rem_8.5rem_1fr] sm:pl-0"
+                    className="grid grid-cols-[4.75rem_1fr] gap-x-3 gap-y-0.5 px-4 py-2 sm:grid-cols-[4.75rem_8.5rem_1fr] sm:pl-0"
                   >
-                    <time dateTime={e.occurredAt} className="font-mono text-xs leading-5 text-ink-soft tabular-nums">
+                    <time dateTime={e.occurredAt} className="font-mono text-xs leading-5 whitespace-nowrap text-ink-soft tabular-nums">
                       {e.time}
                     </time>
                     <span className="flex items-center gap-1.5 font-medium">
@@ -74,10 +74,10 @@ export function EventTimeline({ events, timeZone = 'UTC' }: { events: TimelineEv
                       </span>
                       {k.label}
                     </span>
-                    <span className="col-start-2 min-w-0 sm:col-start-3">
+                    <span className="col-start-2 min-w-0 break-words sm:col-start-3">
                       {e.detectorId != null && e.detectorTag && (
                         <>
-                          <Link to={`/devices/${e.detectorId}`} className="font-mono text-accent hover:underline">
+                          <Link to={`/devices/${e.detectorId}`} className={`${TAP_AREA} font-mono text-accent hover:underline`}>
                             {e.detectorTag}
                           </Link>
                           <span className="text-ink-faint"> · </span>

@@ -10,6 +10,7 @@ import type { RouteAccess } from '~/domain/permissions'
 import { formatCount, formatDay, percent } from '~/utils/format'
 import type { Route } from './+types/_app.customers.$customerId'
 import { Figure } from '~/components/ui/facts'
+import { TAP, TAP_AREA } from '~/components/ui/tap'
 
 export const handle = { access: { loader: 'view:fleet' } satisfies RouteAccess }
 
@@ -47,18 +48,18 @@ export default function Customer({ loaderData }: Route.ComponentProps) {
       <header>
         <p className="text-sm text-ink-faint">Customer · {KIND_LABELS[c.kind] ?? c.kind}</p>
         <div className="mt-1 flex flex-wrap items-baseline justify-between gap-x-4 gap-y-1">
-          <h1 className="text-2xl font-semibold">{c.name}</h1>
+          <h1 className="text-2xl font-semibold break-words">{c.name}</h1>
           <p className="text-sm text-ink-faint">Figures as of {formatDay(today)}</p>
         </div>
-        <p className="mt-1 flex flex-wrap gap-x-3 gap-y-0.5 text-sm text-ink-soft">
+        <p className="mt-1 flex flex-wrap items-center gap-x-3 gap-y-0.5 text-sm text-ink-soft">
           <span>{c.contactName ?? 'No contact on record'}</span>
           {c.contactPhone && (
-            <a href={`tel:${c.contactPhone}`} className="font-mono hover:underline">
+            <a href={`tel:${c.contactPhone}`} className={`${TAP} font-mono text-accent hover:underline`}>
               {c.contactPhone}
             </a>
           )}
           {c.contactEmail && (
-            <a href={`mailto:${c.contactEmail}`} className="hover:underline">
+            <a href={`mailto:${c.contactEmail}`} className={`${TAP} break-all hover:underline`}>
               {c.contactEmail}
             </a>
           )}
@@ -110,7 +111,7 @@ export default function Customer({ loaderData }: Route.ComponentProps) {
                 {dueWork.rows.map((d) => (
                   <tr key={d.id} className="border-t border-line/70 align-top sm:align-middle">
                     <td className="px-4 py-2">
-                      <Link to={`/devices/${d.id}`} className="font-mono font-medium text-accent hover:underline">
+                      <Link to={`/devices/${d.id}`} className={`${TAP_AREA} font-mono font-medium text-accent hover:underline`}>
                         {d.tag}
                       </Link>
                       <div className="text-xs text-ink-faint sm:hidden">
@@ -178,7 +179,7 @@ export default function Customer({ loaderData }: Route.ComponentProps) {
                 {sites.rows.map((s) => (
                   <tr key={s.id} className="border-t border-line/70 align-top">
                     <td className="px-4 py-2">
-                      <Link to={`/sites/${s.id}`} className="font-medium text-accent hover:underline">
+                      <Link to={`/sites/${s.id}`} className={`${TAP_AREA} font-medium text-accent hover:underline`}>
                         {s.name}
                       </Link>
                       <div className="text-xs text-ink-faint md:hidden">

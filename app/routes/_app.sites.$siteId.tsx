@@ -12,6 +12,8 @@ import type { RouteAccess } from '~/domain/permissions'
 import { formatCount, formatDay } from '~/utils/format'
 import type { Route } from './+types/_app.sites.$siteId'
 import { Fact } from '~/components/ui/facts'
+import { TAP, TAP_AREA } from '~/components/ui/tap'
+import { siteDateTime, siteDay, siteTime } from '~/utils/time-format'
 
 export const handle = { access: { loader: 'view:fleet' } satisfies RouteAccess }
 
@@ -34,25 +36,9 @@ const METHOD = { phone: 'By phone', email: 'By e-mail', portal: 'Through their o
 const METHOD_SHORT = { phone: 'Phone', email: 'E-mail', portal: 'Portal' } as const
 const delayWords = (s: number) => (s === 0 ? 'Report at once (no delay)' : `Report after a ${s / 60} min delay`)
 
-function when(iso: string, timeZone: string) {
-  return new Intl.DateTimeFormat('en-GB', {
-    timeZone,
-    day: 'numeric',
-    month: 'short',
-    year: 'numeric',
-    hour: '2-digit',
-    minute: '2-digit',
-    hourCycle: 'h23',
-  }).format(new Date(iso))
-}
-
-const sameDay = (a: string, b: string, timeZone: string) => {
-  const day = new Intl.DateTimeFormat('en-CA', { timeZone, year: 'numeric', month: '2-digit', day: '2-digit' })
-  return day.format(new Date(a)) === day.format(new Date(b))
-}
-
-const clock = (iso: string, timeZone: string) =>
-  new Intl.DateTimeFormat('en-GB', { timeZone, hour: '2-digit', minute: '2-digit', hourCycle: 'h23' }).format(new Date(iso))
+// A time on the same site day as the one before it needs no date again; the zone's letters stay.
+const clockAfter = (iso: string, ref: string, timeZone: string) =>
+  siteDay(iso, timeZone) === siteDay(ref, timeZone) ? siteTime(iso, timeZone) : siteDateTime(iso, timeZone)
 
 export default function Site({ loaderData }: Route.ComponentProps) {
   const { site: s, customer, monitoring: mc, units, detectors, upcomingVisits: visits, notifications, events, now } = loaderData
@@ -61,7 +47,7 @@ export default function Site({ loaderData }: Route.ComponentProps) {
     <div className="mx-auto max-w-6xl space-y-6">
       <header>
         <nav aria-label="Breadcrumb" className="text-sm text-ink-faint">
-          <Link to={`/customers/${customer.id}`} className="text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink">
+          <Link to={`/customers/${customer.id}`} className={`${TAP} text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink`}>
             {customer.name}
           </Link>{' '}
           · Site
@@ -73,10 +59,10 @@ export default function Site({ loaderData }: Route.ComponentProps) {
         </p>
         <div className="mt-3 flex flex-wrap items-center gap-x-4 gap-y-2">
           <BookVisit siteId={s.id} detectors={detectors.rows.map((d) => ({ id: d.id, tag: d.tag }))} what={s.name} />
-          <Link to={`/sites/${s.id}/record`} className="text-sm text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink">
+          <Link to={`/sites/${s.id}/record`} className={`${TAP} text-sm text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink`}>
             Inspection record
           </Link>
-          <Link to={`/sites/${s.id}/labels`} className="text-sm text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink">
+          <Link to={`/sites/${s.id}/labels`} className={`${TAP} text-sm text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink`}>
             Detector labels with QR codes
           </Link>
         </div>
@@ -110,7 +96,7 @@ export default function Site({ loaderData }: Route.ComponentProps) {
           <h2 id="site-h" className="font-semibold">
             Site
           </h2>
-          <dl className="mt-3 grid grid-cols-[auto_1fr] gap-x-4 gap-y-1.5 text-sm">
+          <dl className="mt-3 grid grid-cols-[auto_minmax(0,1fr)] gap-x-4 gap-y-1.5 text-sm [&_dd]:[overflow-wrap:anywhere]">
             <Fact label="Address">
               {s.street}, {s.city} {s.postalCode}
             </Fact>
@@ -122,7 +108,7 @@ export default function Site({ loaderData }: Route.ComponentProps) {
               {s.ahjContact && (
                 <span className="block text-ink-soft">
                   {s.ahjContact.includes('@') ? (
-                    <a href={`mailto:${s.ahjContact}`} className="hover:underline">
+                    <a href={`mailto:${s.ahjContact}`} className={`${TAP_AREA} hover:underline`}>
                       {s.ahjContact}
                     </a>
                   ) : (
@@ -141,16 +127,16 @@ export default function Site({ loaderData }: Route.ComponentProps) {
             Monitoring
           </h2>
           {mc ? (
-            <dl className="mt-3 grid grid-cols-[auto_1fr] gap-x-4 gap-y-1.5 text-sm">
+            <dl className="mt-3 grid grid-cols-[auto_minmax(0,1fr)] gap-x-4 gap-y-1.5 text-sm [&_dd]:[overflow-wrap:anywhere]">
               <Fact label="Company">{mc.name}</Fact>
               <Fact label="Phone">
-                <a href={`tel:${mc.phone}`} className="font-mono hover:underline">
+                <a href={`tel:${mc.phone}`} className={`${TAP} font-mono text-accent hover:underline`}>
                   {mc.phone}
                 </a>
               </Fact>
               <Fact label="E-mail">
                 {mc.email ? (
-                  <a href={`mailto:${mc.email}`} className="hover:underline">
+                  <a href={`mailto:${mc.email}`} className={`${TAP_AREA} hover:underline`}>
                     {mc.email}
                   </a>
                 ) : (
@@ -188,7 +174,7 @@ export default function Site({ loaderData }: Route.ComponentProps) {
               {units.rows.map((u) => (
                 <tr key={u.id} className="border-t border-line/70 align-top">
                   <td className="px-4 py-2">
-                    <Link to={`/units/${u.id}`} className="font-mono font-medium text-accent hover:underline">
+                    <Link to={`/units/${u.id}`} className={`${TAP_AREA} font-mono font-medium text-accent hover:underline`}>
                       {u.tag}
                     </Link>
                     {u.location && <div className="text-xs text-ink-faint">{u.location}</div>}
@@ -225,7 +211,7 @@ export default function Site({ loaderData }: Route.ComponentProps) {
               {detectors.rows.map((d) => (
                 <tr key={d.id} className="border-t border-line/70 align-top sm:align-middle">
                   <td className="px-4 py-2">
-                    <Link to={`/devices/${d.id}`} className="font-mono font-medium text-accent hover:underline">
+                    <Link to={`/devices/${d.id}`} className={`${TAP_AREA} font-mono font-medium text-accent hover:underline`}>
                       {d.tag}
                     </Link>
                     <div className="text-xs text-ink-faint sm:hidden">
@@ -278,7 +264,7 @@ export default function Site({ loaderData }: Route.ComponentProps) {
                   {visits.rows.map((v) => (
                     <tr key={v.id} className="border-t border-line/70 align-top sm:align-middle">
                       <td className="px-4 py-2 whitespace-nowrap">
-                        <Link to={`/visits/${v.id}`} className="font-mono text-xs text-accent hover:underline">
+                        <Link to={`/visits/${v.id}`} className={`${TAP_AREA} font-mono text-xs text-accent hover:underline`}>
                           {v.scheduledOn}
                         </Link>{' '}
                         <span className="text-xs text-ink-faint">{formatDay(v.scheduledOn).slice(0, 3)}</span>
@@ -311,7 +297,7 @@ export default function Site({ loaderData }: Route.ComponentProps) {
           <>
             <div
               aria-hidden="true"
-              className="hidden gap-x-4 px-4 py-2 text-xs font-medium text-ink-faint uppercase md:grid md:grid-cols-[11rem_1fr_1fr_10rem]"
+              className="hidden gap-x-4 px-4 py-2 text-xs font-medium text-ink-faint uppercase md:grid md:grid-cols-[12rem_1fr_1fr_11rem]"
             >
               <span>Notified</span>
               <span>Told</span>
@@ -320,9 +306,9 @@ export default function Site({ loaderData }: Route.ComponentProps) {
             </div>
             <ol className="divide-y divide-line/70 border-t border-line/70 text-sm md:border-t-0">
               {notifications.rows.map((n) => (
-                <li key={n.id} className="grid gap-x-4 gap-y-1 px-4 py-2.5 md:grid-cols-[11rem_1fr_1fr_10rem]">
+                <li key={n.id} className="grid gap-x-4 gap-y-1 px-4 py-2.5 break-words md:grid-cols-[12rem_1fr_1fr_11rem]">
                   <div>
-                    <span className="font-mono text-xs">{when(n.notifiedAt, tz)}</span>
+                    <span className="font-mono text-xs">{siteDateTime(n.notifiedAt, tz)}</span>
                     <div className="text-xs text-ink-faint">by {n.notifiedBy ?? 'someone not on record'}</div>
                   </div>
                   <div>
@@ -342,14 +328,13 @@ export default function Site({ loaderData }: Route.ComponentProps) {
                   <div>
                     <span className="md:hidden">In test </span>
                     <span className="font-mono text-xs">
-                      {sameDay(n.notifiedAt, n.inTestFrom, tz) ? clock(n.inTestFrom, tz) : when(n.inTestFrom, tz)}–
-                      {sameDay(n.inTestFrom, n.inTestUntil, tz) ? clock(n.inTestUntil, tz) : when(n.inTestUntil, tz)}
+                      {clockAfter(n.inTestFrom, n.notifiedAt, tz)}–{clockAfter(n.inTestUntil, n.inTestFrom, tz)}
                     </span>
                     <div className="text-xs text-ink-faint">Site told: {n.siteContactTold ?? 'not recorded'}</div>
                   </div>
                   <div>
                     {n.clearedAt ? (
-                      <StateBadge value="done" label={`Cleared ${clock(n.clearedAt, tz)}`} />
+                      <StateBadge value="done" label={`Cleared ${clockAfter(n.clearedAt, n.inTestFrom, tz)}`} />
                     ) : n.inTestUntil > now ? (
                       <StateBadge value="in-progress" label="In test now" />
                     ) : (
@@ -359,7 +344,7 @@ export default function Site({ loaderData }: Route.ComponentProps) {
                 </li>
               ))}
             </ol>
-            <p className="border-t border-line/70 px-4 py-2 text-xs text-ink-faint">Times in site time ({tz.replace(/_/g, ' ')}).</p>
+            <p className="border-t border-line/70 px-4 py-2 text-xs text-ink-faint">Times in site time ({tz.replace(/_/g, ' ')}), with the zone beside each.</p>
           </>
         )}
       </section>
@@ -390,7 +375,7 @@ function NoticeStep({ mc, account }: { mc: Monitoring; account: string | null })
     </>
   ) : null
   const phone = (
-    <a href={`tel:${mc.phone}`} className="font-mono font-semibold whitespace-nowrap text-accent hover:underline">
+    <a href={`tel:${mc.phone}`} className={`${TAP_AREA} font-mono font-semibold whitespace-nowrap text-accent hover:underline`}>
       {mc.phone}
     </a>
   )

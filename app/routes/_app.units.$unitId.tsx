@@ -11,6 +11,7 @@ import { CONTROL_VOLTS } from '~/domain/power'
 import { formatCount } from '~/utils/format'
 import type { Route } from './+types/_app.units.$unitId'
 import { Fact } from '~/components/ui/facts'
+import { TAP } from '~/components/ui/tap'
 
 export const handle = { access: { loader: 'view:fleet' } satisfies RouteAccess }
 
@@ -41,6 +42,7 @@ const STATUS_BADGE = {
 } as const
 const LOCATION_LABELS = { supply: 'Supply duct', return: 'Return duct', 'return-each-storey': 'Return, at each storey' } as const
 
+const crumb = `${TAP} text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink`
 const fpm = (n: number) => `${formatCount(Math.round(n))} ft/min`
 const va = (n: number) => `${Number(n.toFixed(1))} VA`
 const volts = (n: number) => `${n.toFixed(1)} V`
@@ -57,24 +59,25 @@ export default function Unit({ loaderData }: Route.ComponentProps) {
   return (
     <div className="mx-auto max-w-6xl space-y-6">
       <header>
-        <nav aria-label="Breadcrumb" className="text-sm text-ink-faint">
-          <Link to={`/customers/${customer.id}`} className="text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink">
+        <nav aria-label="Breadcrumb" className="flex flex-wrap items-center gap-x-1.5 text-sm text-ink-faint">
+          <Link to={`/customers/${customer.id}`} className={crumb}>
             {customer.name}
           </Link>
-          {' · '}
-          <Link to={`/sites/${site.id}`} className="text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink">
+          <span aria-hidden="true">·</span>
+          <Link to={`/sites/${site.id}`} className={crumb}>
             {site.name}
           </Link>
-          {' · '}Unit
+          <span aria-hidden="true">·</span>
+          <span>Unit</span>
         </nav>
         <div className="mt-1 flex flex-wrap items-baseline gap-x-3 gap-y-1">
-          <h1 className="font-mono text-2xl font-semibold">{u.tag}</h1>
+          <h1 className="font-mono text-2xl font-semibold break-all">{u.tag}</h1>
           <span className="text-sm text-ink-soft">{KIND_LABELS[u.kind] ?? u.kind.toUpperCase()}</span>
         </div>
         <p className="mt-1 text-sm text-ink-soft">
           {u.location ?? 'Location not recorded'} · {site.city} · {u.shutdownInput} shutdown input
         </p>
-        <div className="mt-3">
+        <div className="mt-3 [&>button]:min-h-11 sm:[&>button]:min-h-0">
           <BookVisit siteId={site.id} detectors={detectors.map((d) => ({ id: d.id, tag: d.tag }))} what={`unit ${u.tag}`} />
         </div>
       </header>
@@ -84,7 +87,7 @@ export default function Unit({ loaderData }: Route.ComponentProps) {
           <h2 id="air-h" className="font-semibold">
             Airflow and duct
           </h2>
-          <dl className="mt-3 grid grid-cols-[auto_1fr] gap-x-4 gap-y-1.5 text-sm">
+          <dl className="mt-3 grid grid-cols-[auto_minmax(0,1fr)] gap-x-4 gap-y-1.5 text-sm [&_dd]:break-words">
             <Fact label="Supply">
               <span className="font-mono">{formatCount(u.supplyCfm)} cfm</span>
               {velocity && <span className="text-ink-soft"> · {fpm(velocity.supplyFpm)}</span>}
@@ -118,7 +121,7 @@ export default function Unit({ loaderData }: Route.ComponentProps) {
               {detectors.map((d) => (
                 <li key={d.id} className="flex flex-wrap items-center justify-between gap-x-3 gap-y-1.5 px-4 py-2.5">
                   <div className="min-w-0">
-                    <Link to={`/devices/${d.id}`} className="font-mono font-medium text-accent hover:underline">
+                    <Link to={`/devices/${d.id}`} className={`${TAP} font-mono font-medium text-accent hover:underline`}>
                       {d.tag}
                     </Link>
                     <div className="text-xs text-ink-faint">
@@ -150,23 +153,24 @@ export default function Unit({ loaderData }: Route.ComponentProps) {
           <Caution />
         </div>
         {monitoring && (
-          <p className="mt-3 text-sm">
-            Monitoring for this site: <span className="font-medium">{monitoring.name}</span>,{' '}
-            <a href={`tel:${monitoring.phone}`} className="font-mono font-semibold text-accent hover:underline">
+          <div className="mt-3 flex flex-wrap items-center gap-x-3 gap-y-1 text-sm">
+            <span>
+              Monitoring for this site: <span className="font-medium">{monitoring.name}</span>
+            </span>
+            <a href={`tel:${monitoring.phone}`} className={`${TAP} font-mono font-semibold whitespace-nowrap text-accent hover:underline`}>
               {monitoring.phone}
             </a>
-            .{' '}
-            <Link to={`/sites/${site.id}`} className="text-accent underline">
+            <Link to={`/sites/${site.id}`} className={`${TAP} text-accent underline`}>
               How they want to be told
             </Link>
-          </p>
+          </div>
         )}
         <div className="mt-4 grid gap-6 md:grid-cols-[2fr_3fr]">
           <div>
             <h3 className="text-xs font-semibold text-ink-faint uppercase">Wiring (HVAC side only)</h3>
             <ul className="mt-2 space-y-1.5 text-sm">
               {interlock.wiring.map((w) => (
-                <li key={w.from} className="flex flex-wrap items-baseline gap-x-2">
+                <li key={w.from} className="flex flex-wrap items-baseline gap-x-2 break-words">
                   <span className="font-mono">{w.from}</span>
                   <span aria-hidden="true" className="text-ink-faint">
                     →
@@ -177,7 +181,7 @@ export default function Unit({ loaderData }: Route.ComponentProps) {
               ))}
             </ul>
             <h3 className="mt-4 text-xs font-semibold text-ink-faint uppercase">Expected at the input</h3>
-            <dl className="mt-2 grid grid-cols-[auto_1fr] gap-x-4 gap-y-1 text-sm">
+            <dl className="mt-2 grid grid-cols-[auto_minmax(0,1fr)] gap-x-4 gap-y-1 text-sm">
               <dt className="text-ink-faint">Detector normal</dt>
               <dd>
                 <span className="font-mono">about {interlock.expected.normal.volts} V</span>, unit runs
@@ -258,7 +262,7 @@ export default function Unit({ loaderData }: Route.ComponentProps) {
               </tr>
             </tbody>
           </table>
-          <dl className="mt-3 grid grid-cols-[auto_1fr] gap-x-4 gap-y-1 text-sm">
+          <dl className="mt-3 grid grid-cols-[auto_minmax(0,1fr)] gap-x-4 gap-y-1 text-sm [&_dd]:break-words">
             <Fact label="Transformer">{va(power.ratingVa)}</Fact>
             <Fact label="Headroom">
               <span className={power.headroomVa < 0 ? 'font-semibold text-late' : ''}>{va(power.headroomVa)}</span>
