@@ -140,12 +140,19 @@ export function bookingPlan(db: Db, ids: number[], kind: BookingKind, today: str
       return { ...o, tag: tags.get(o.detectorId) ?? '', tasks, sameWork: tasks.some((t) => wanted.has(t)) }
     })
 
+  // Sites share a handful of regions: each region's calendar is read once.
+  const calendars = new Map<string, { day: string; skipped: SitePlan['skipped']; holidays: SitePlan['holidays'] }>()
+  const calendarOf = (region: string) => {
+    let c = calendars.get(region)
+    if (!c) calendars.set(region, (c = { ...suggestedDay(region, today), holidays: holidaysAhead(region, today) }))
+    return c
+  }
   const bySite = new Map<number, SitePlan>()
   for (const r of rows) {
     let plan = bySite.get(r.siteId)
     if (!plan) {
-      const { day, skipped } = suggestedDay(r.region, today)
-      plan = { siteId: r.siteId, site: r.site, city: r.city, region: r.region, detectors: [], usual: usualTechnician(db, r.siteId), suggestedDay: day, skipped, holidays: holidaysAhead(r.region, today), openVisits: [] }
+      const { day, skipped, holidays } = calendarOf(r.region)
+      plan = { siteId: r.siteId, site: r.site, city: r.city, region: r.region, detectors: [], usual: usualTechnician(db, r.siteId), suggestedDay: day, skipped, holidays, openVisits: [] }
       bySite.set(r.siteId, plan)
     }
     plan.detectors.push({ id: r.id, tag: r.tag })
