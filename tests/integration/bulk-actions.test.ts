@@ -59,7 +59,7 @@ describe('bulk actions: each applies what its preview shows', () => {
       const ids = entity === 'visit' ? visitIds : detectorIds
       const preview = previewBulk(data.db, action, ids, input, lead())
       expect(preview.changeCount, JSON.stringify(preview.refused)).toBeGreaterThan(0)
-      const applied = applyBulk(data.db, action, input, new Map(preview.changes.map((c) => [c.id, c.version])), lead())
+      const applied = applyBulk(data.db, action, input, ids, new Map(preview.changes.map((c) => [c.id, c.version])), lead())
       expect(applied.applied).toBe(preview.changeCount)
       for (const c of preview.changes) {
         const now = fieldsNow(entity, c.id, Object.keys(c.to))
@@ -77,7 +77,7 @@ describe('bulk actions: each applies what its preview shows', () => {
     const action = bulkAction('set-state')!
     const ids = detectorIds.slice(0, 3)
     const preview = previewBulk(data.db, action, ids, { state: 'trouble' }, lead())
-    const applied = applyBulk(data.db, action, { state: 'trouble' }, new Map(preview.changes.map((c) => [c.id, c.version])), lead())
+    const applied = applyBulk(data.db, action, { state: 'trouble' }, ids, new Map(preview.changes.map((c) => [c.id, c.version])), lead())
     for (const input of derivationInputs(data.db, { ids }, TEST_TODAY)) {
       const facts = deriveInput(input, TEST_TODAY).stored
       expect(input.stored.riskScore).toBe(facts.riskScore)

@@ -36,7 +36,7 @@ describe('bulk reschedule', () => {
     expect(preview.changeCount).toBe(5)
     // Tuesday + 2 working days: Juneteenth is worked while the company does not observe it.
     expect(preview.changes.map((c) => c.to)).toEqual(ids.map(() => ({ scheduledOn: '2026-06-18' })))
-    const applied = applyBulk(data.db, reschedule, input, versions(preview), office())
+    const applied = applyBulk(data.db, reschedule, input, ids, versions(preview), office())
     expect(applied.applied).toBe(5)
     expect(dates(ids)).toEqual(preview.changes.map((c) => c.to.scheduledOn))
     const change = q().prepare('select action, record_count as n, undone_at as undone from bulk_changes where id = ?').get(applied.changeId) as Record<string, unknown>
@@ -56,7 +56,7 @@ describe('bulk reschedule', () => {
     const ids = makeVisits(data.db, { n: 3, siteId, date: '2026-06-16', technicianId: null })
     const input = { mode: 'date', date: '2026-06-23' }
     const preview = previewBulk(data.db, reschedule, ids, input, office())
-    const applied = applyBulk(data.db, reschedule, input, versions(preview), office())
+    const applied = applyBulk(data.db, reschedule, input, ids, versions(preview), office())
     q().prepare("update visits set notes = 'called ahead', version = version + 1 where id = ?").run(ids[1])
     expect(() => undoBulk(data.db, applied.changeId!, office().actor, TEST_TODAY)).toThrow(new RegExp(`1 of the records changed since \\(Visit ${ids[1]} `))
     expect(dates(ids)).toEqual(['2026-06-23', '2026-06-23', '2026-06-23'])
@@ -67,7 +67,7 @@ describe('bulk reschedule', () => {
     const input = { mode: 'shift', days: 1 }
     const preview = previewBulk(data.db, reschedule, ids, input, office())
     q().prepare("update visits set scheduled_on = '2026-06-30', version = version + 1 where id = ?").run(ids[0])
-    const applied = applyBulk(data.db, reschedule, input, versions(preview), office())
+    const applied = applyBulk(data.db, reschedule, input, ids, versions(preview), office())
     expect(applied.applied).toBe(2)
     expect(applied.refused).toEqual([{ id: ids[0], label: `Visit ${ids[0]} · ${preview.changes[0].label.split(' · ')[1]} · 2026-06-30`, reason: expect.stringMatching(/Changed since the preview \(version 1 then, 2 now\)/) }])
     expect(dates(ids)).toEqual(['2026-06-30', '2026-06-17', '2026-06-17'])
@@ -79,7 +79,7 @@ describe('bulk reschedule', () => {
     const input = { mode: 'shift', days: 3 }
     const preview = previewBulk(data.db, reschedule, ids, input, office())
     const changes = (q().prepare('select count(*) n from bulk_changes').get() as { n: number }).n
-    expect(() => applyBulk(data.db, reschedule, input, versions(preview), office())).toThrow(/injected failure/)
+    expect(() => applyBulk(data.db, reschedule, input, ids, versions(preview), office())).toThrow(/injected failure/)
     q().exec('drop trigger bulk_test_boom')
     expect(dates(ids)).toEqual(ids.map(() => '2026-06-16'))
     expect((q().prepare('select count(*) n from bulk_changes').get() as { n: number }).n).toBe(changes)
@@ -114,6 +114,11 @@ describe('bulk reschedule', () => {
       { technicianId: techId, technician: 'Jonah Keel', date: '2026-06-24', before: 3, after: 1, capacity: 4, unit: 'detectors' },
       { technicianId: techId, technician: 'Jonah Keel', date: '2026-06-25', before: 2, after: 4, capacity: 4, unit: 'detectors' },
     ])
+    // Applied over the same selection, the refused visit still holds its day: the same two move.
+    const applied = applyBulk(data.db, reschedule, { mode: 'shift', days: 1 }, ids, versions(preview), office())
+    expect(applied.applied).toBe(2)
+    expect(applied.refused.map((r) => r.reason)).toEqual(['Jonah Keel is full on 2026-06-25: 0 of 4 left, the visit needs 1'])
+    expect(dates(ids)).toEqual(['2026-06-25', '2026-06-25', '2026-06-24'])
     q().prepare(`delete from visit_detectors where visit_id in (${[...existing, ...ids].join(',')})`).run()
     q().prepare(`delete from visits where id in (${[...existing, ...ids].join(',')})`).run()
     q().prepare('update users set daily_capacity = null where id = ?').run(techId)

@@ -8,7 +8,7 @@ import { officeToday } from '../today'
 import { BulkError, type BulkContext } from './action'
 import { loadCompanyCalendar } from './calendar'
 import { bulkAction } from './registry'
-import { applyBulk, previewBulk, previewedVersions } from './runner'
+import { applyBulk, previewBulk, previewed } from './runner'
 import { resolveSelection, selectionSchema } from './selection'
 import { undoBulk } from './undo'
 
@@ -41,11 +41,13 @@ export async function bulkRequest(request: Request, name: string, user: CurrentU
   const ctx: BulkContext = { actor: user, today: officeToday(), calendar: loadCompanyCalendar(db), now: new Date().toISOString() }
   try {
     if (b.preview) return Response.json(previewBulk(db, action, resolveSelection(db, action.entity, b), parsed.data, ctx))
-    let versions: Map<number, number>
-    if (b.previewId) versions = previewedVersions(b.previewId, action, parsed.data, user.id)
-    else if (b.versions) versions = new Map(Object.entries(b.versions).map(([id, v]) => [Number(id), v]))
-    else throw new BulkError(400, 'Preview first, then apply with the previewId or the versions the preview gave')
-    return Response.json(applyBulk(db, action, parsed.data, versions, ctx))
+    if (b.previewId) {
+      const p = previewed(b.previewId, action, parsed.data, user.id)
+      return Response.json(applyBulk(db, action, parsed.data, p.ids, p.versions, ctx))
+    }
+    if (!b.versions) throw new BulkError(400, 'Preview first, then apply with the previewId, or with the selection and the versions the preview gave')
+    const versions = new Map(Object.entries(b.versions).map(([id, v]) => [Number(id), v]))
+    return Response.json(applyBulk(db, action, parsed.data, resolveSelection(db, action.entity, b), versions, ctx))
   } catch (error) {
     return errorResponse(error)
   }

@@ -55,6 +55,7 @@ interface Snapshot {
   actorId: number
   action: string
   input: string
+  ids: readonly number[]
   versions: Map<number, number>
   at: number
 }
@@ -75,7 +76,7 @@ function remember(s: Snapshot): string {
 export function previewBulk<I>(db: Db, action: BulkAction<I>, ids: readonly number[], input: I, ctx: BulkContext): PreviewAnswer {
   const plan = action.preview(db, ids, input, ctx)
   const versions = new Map(plan.changes.map((c) => [c.id, c.version]))
-  const previewId = remember({ actorId: ctx.actor.id, action: action.name, input: JSON.stringify(input), versions, at: Date.now() })
+  const previewId = remember({ actorId: ctx.actor.id, action: action.name, input: JSON.stringify(input), ids, versions, at: Date.now() })
   return {
     action: action.name,
     entity: action.entity,
@@ -91,24 +92,24 @@ export function previewBulk<I>(db: Db, action: BulkAction<I>, ids: readonly numb
   }
 }
 
-/** The versions a preview kept, checked against who asks and what for. */
-export function previewedVersions(previewId: string, action: BulkAction<unknown>, input: unknown, actorId: number): Map<number, number> {
+/** The selection and versions a preview kept, checked against who asks and what for. */
+export function previewed(previewId: string, action: BulkAction<unknown>, input: unknown, actorId: number): { ids: readonly number[]; versions: Map<number, number> } {
   const s = snapshots.get(previewId)
   if (!s || Date.now() - s.at > PREVIEW_TTL_MS || s.actorId !== actorId || s.action !== action.name) {
     throw new BulkError(409, 'That preview has expired or is not yours; preview again.')
   }
   if (s.input !== JSON.stringify(input)) throw new BulkError(409, 'The settings differ from the ones previewed; preview again.')
-  return s.versions
+  return { ids: s.ids, versions: s.versions }
 }
 
 /**
- * Applies an action to the records previewed (id → version previewed), in one IMMEDIATE
- * transaction: the preview is run again on the data as it now is, each record whose version is not
- * the previewed one is refused and left alone, the rest are written. A throw anywhere rolls all of
- * it back. Detectors changed are re-derived in the same transaction.
+ * Applies an action to the selection previewed, in one IMMEDIATE transaction: the preview is run
+ * again over the same selection on the data as it now is (so capacity and the like are judged as
+ * the preview judged them), each change to a record whose version is not the previewed one
+ * (`previewed`: id → version) is refused and left alone, the rest are written. A throw anywhere
+ * rolls all of it back. Detectors changed are re-derived in the same transaction.
  */
-export function applyBulk<I>(db: Db, action: BulkAction<I>, input: I, previewed: ReadonlyMap<number, number>, ctx: BulkContext): ApplyAnswer {
-  const ids = [...previewed.keys()].sort((a, b) => a - b)
+export function applyBulk<I>(db: Db, action: BulkAction<I>, input: I, ids: readonly number[], previewed: ReadonlyMap<number, number>, ctx: BulkContext): ApplyAnswer {
   const answer = writeTx(db, () => {
     const plan = action.preview(db, ids, input, ctx)
     const refused = [...plan.refused]
