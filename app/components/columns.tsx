@@ -1,5 +1,6 @@
 import type { ColumnDef } from '@tanstack/react-table'
 import { Link } from 'react-router'
+import { formatCount } from '~/utils/format'
 import { StateBadge } from './state-badge'
 
 // Small cell makers shared by the list pages, so every table reads the same way.
@@ -41,3 +42,6 @@ export function badgeCell<Row>(value: (r: Row) => string | null): ColumnDef<Row>
 export function monoCell<Row>(value: (r: Row) => React.ReactNode): ColumnDef<Row>['cell'] {
   return ({ row }) => <span className="font-mono text-xs">{value(row.original) ?? '—'}</span>
 }
+
+/** A count with its noun, for the phone cards: '1 unit', '2,410 detectors'. */
+export const countOf = (n: number, noun: string) => `${formatCount(n)} ${noun}${n === 1 ? '' : 's'}`

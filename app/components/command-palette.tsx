@@ -164,14 +164,17 @@ export function CommandPalette({ sections: offered }: { sections: Section[] }) {
           </CommandGroup>
         )}
         {SHORTCUTS.filter((s) => s.group !== 'Go to' && matches(s.label)).length > 0 && (
-          <CommandGroup heading="Keys">
-            {SHORTCUTS.filter((s) => s.group !== 'Go to' && matches(s.label)).map((s) => (
-              <CommandItem key={s.id} value={`key:${s.id}`} onSelect={() => run(() => window.dispatchEvent(new CustomEvent('dk:help')))}>
-                <span>{s.label}</span>
-                <Kbd>{s.keys.map((k) => showChord(k, mac)).join(' / ')}</Kbd>
-              </CommandItem>
-            ))}
-          </CommandGroup>
+          // Keys mean nothing on a touch screen with no keyboard.
+          <div className="touch:hidden">
+            <CommandGroup heading="Keys">
+              {SHORTCUTS.filter((s) => s.group !== 'Go to' && matches(s.label)).map((s) => (
+                <CommandItem key={s.id} value={`key:${s.id}`} onSelect={() => run(() => window.dispatchEvent(new CustomEvent('dk:help')))}>
+                  <span>{s.label}</span>
+                  <Kbd>{s.keys.map((k) => showChord(k, mac)).join(' / ')}</Kbd>
+                </CommandItem>
+              ))}
+            </CommandGroup>
+          </div>
         )}
       </CommandList>
     </CommandDialog>

@@ -1,7 +1,7 @@
 import { flexRender, getCoreRowModel, useReactTable, type ColumnDef, type RowSelectionState, type SortingState, type VisibilityState } from '@tanstack/react-table'
 import { elementScroll, observeElementOffset, useVirtualizer } from '@tanstack/react-virtual'
-import { useCallback, useEffect, useMemo, useRef, useState } from 'react'
-import { useNavigate, useSearchParams } from 'react-router'
+import { useCallback, useEffect, useMemo, useRef, useState, useSyncExternalStore } from 'react'
+import { Link, useLocation, useNavigate, useSearchParams } from 'react-router'
 import type { FetchError } from '~/utils/fetch-json'
 import { formatCount } from '~/utils/format'
 import { useShortcut } from './keyboard'
@@ -14,6 +14,15 @@ export interface Page<Row> {
   offset: number
   limit: number
   totalExact: boolean
+  /** Counting stopped at `total`: there are more matching rows than that. */
+  totalCapped?: boolean
+}
+
+/** How one row reads on a phone: a title, its states in words, and up to two short lines. */
+export interface PhoneCard {
+  title: React.ReactNode
+  badges?: React.ReactNode
+  lines: React.ReactNode[]
 }
 
 export interface DataTableProps<Row extends { id: number }> {
@@ -36,15 +45,36 @@ export interface DataTableProps<Row extends { id: number }> {
   sortable?: readonly string[]
   /** The route's order when the URL names none, so the header shows it. */
   defaultSort?: { key: string; dir: 'asc' | 'desc' }
+  /** The fields a person needs on a phone; with it, rows stack as cards there instead of columns. */
+  phone?: (row: Row) => PhoneCard
+  /** Rows grow to show cells (and card lines) that wrap, measured as they render, instead of one line each. */
+  wrapRows?: boolean
 }
 
 const PAGE = 100
 const ROW_PX = 36
+// A phone card: title line and two lines of detail, every one a single truncated line, so the
+// virtualizer can place rows without measuring them.
+const PHONE_ROW_PX = 84
+const PHONE_QUERY = '(max-width: 47.99rem)'
 // Browsers cap an element's height (about 33 million px in Chromium): 2 million rows at 36 px do not
 // fit. Past this height the scroll box is shrunk and offsets are scaled between it and the virtualizer.
 const MAX_SCROLL_PX = 8_000_000
 // How long the visible range must rest before windows are fetched: a fast fling requests nothing.
 const SETTLE_MS = 90
+
+/** Narrower than the rail's breakpoint (md). The server renders the desk table; the phone swaps in on hydration. */
+function useNarrow(): boolean {
+  return useSyncExternalStore(
+    (onChange) => {
+      const m = window.matchMedia(PHONE_QUERY)
+      m.addEventListener('change', onChange)
+      return () => m.removeEventListener('change', onChange)
+    },
+    () => window.matchMedia(PHONE_QUERY).matches,
+    () => false,
+  )
+}
 
 /** Loads one window of rows with SWR and reports it upward; renders nothing. */
 function WindowLoader<Row>(p: { url: string; onPage: (url: string, page: Page<Row> | undefined, error?: FetchError) => void; refreshMs?: number; retryToken: number }) {
@@ -86,10 +116,11 @@ function withAccessors<Row>(columns: ColumnDef<Row>[], sortable: readonly string
 export function DataTable<Row extends { id: number }>(p: DataTableProps<Row>) {
   const [params, setParams] = useSearchParams()
   const navigate = useNavigate()
+  const { pathname } = useLocation()
   const scrollRef = useRef<HTMLDivElement>(null)
   const pages = useRef(new Map<string, Page<Row>>())
   const [version, setVersion] = useState(0)
-  const [total, setTotal] = useState<{ n: number; exact: boolean } | null>(null)
+  const [total, setTotal] = useState<{ n: number; exact: boolean; capped: boolean } | null>(null)
   const [error, setError] = useState<FetchError | null>(null)
   const [retryToken, setRetryToken] = useState(0)
   const [cursor, setCursor] = useState(0)
@@ -100,6 +131,9 @@ export function DataTable<Row extends { id: number }>(p: DataTableProps<Row>) {
   const setSelection = p.onSelectionChange ?? setOwnSelection
   const lastQuery = useRef(p.query)
   const [shownQuery, setShownQuery] = useState(p.query)
+
+  const cards = useNarrow() && !!p.phone
+  const rowPx = cards ? PHONE_ROW_PX : ROW_PX
 
   const sort = params.get('sort') ?? p.defaultSort?.key ?? null
   const dir = params.get('dir') === 'desc' || (!params.get('dir') && !params.get('sort') && p.defaultSort?.dir === 'desc') ? 'desc' : 'asc'
@@ -132,7 +166,7 @@ export function DataTable<Row extends { id: number }>(p: DataTableProps<Row>) {
       if (!err) setError(null)
       pages.current.set(url, page)
       if (url.startsWith(`${endpoint}?${query ? `${query}&` : ''}offset=`)) {
-        setTotal({ n: page.total, exact: page.totalExact })
+        setTotal({ n: page.total, exact: page.totalExact, capped: page.totalCapped === true })
         setShownQuery(query)
         onRowsSeen?.(page.rows)
       }
@@ -142,21 +176,23 @@ export function DataTable<Row extends { id: number }>(p: DataTableProps<Row>) {
   )
 
   const count = total?.n ?? 0
-  const scale = Math.max(1, (count * ROW_PX) / MAX_SCROLL_PX)
+  const scale = Math.max(1, (count * rowPx) / MAX_SCROLL_PX)
   // Offsets map so that the real bottom lands on the virtual bottom: (virtual − view) / (real − view).
   const view = scrollRef.current?.clientHeight ?? 600
   const ratioRef = useRef(1)
-  ratioRef.current = scale === 1 ? 1 : (count * ROW_PX - view) / ((count * ROW_PX) / scale - view)
+  ratioRef.current = scale === 1 ? 1 : (count * rowPx - view) / ((count * rowPx) / scale - view)
   // TanStack Virtual hands back fresh functions each render; this component is not compiler-memoized.
   // eslint-disable-next-line react-hooks/incompatible-library
   const virtualizer = useVirtualizer({
     count,
     getScrollElement: () => scrollRef.current,
-    estimateSize: () => ROW_PX,
+    estimateSize: () => rowPx,
     overscan: 12,
     observeElementOffset: (instance, cb) => observeElementOffset(instance, (offset, isScrolling) => cb(offset * ratioRef.current, isScrolling)),
     scrollToFn: (offset, options, instance) => elementScroll(offset / ratioRef.current, options, instance),
   })
+  // Cards and table rows differ in height: place every row anew when the width crosses over.
+  useEffect(() => virtualizer.measure(), [rowPx, virtualizer])
   // Rows are placed in the shrunk box: virtual position, less the part of the offset that was scaled away.
   const shift = (virtualizer.scrollOffset ?? 0) * (1 - 1 / ratioRef.current)
   const items = virtualizer.getVirtualItems()
@@ -191,6 +227,17 @@ export function DataTable<Row extends { id: number }>(p: DataTableProps<Row>) {
   const sortableKey = (p.sortable ?? []).join()
   // eslint-disable-next-line react-hooks/exhaustive-deps
   const columns = useMemo(() => withAccessors(p.columns, p.sortable ?? []), [p.columns, sortableKey])
+  const sortBy = (next: { id: string; desc: boolean } | undefined) => {
+    const q = new URLSearchParams(params)
+    if (next) {
+      q.set('sort', next.id)
+      q.set('dir', next.desc ? 'desc' : 'asc')
+    } else {
+      q.delete('sort')
+      q.delete('dir')
+    }
+    setParams(q, { replace: true })
+  }
   const table = useReactTable({
     data: visibleRows,
     columns,
@@ -202,18 +249,7 @@ export function DataTable<Row extends { id: number }>(p: DataTableProps<Row>) {
     enableMultiSort: false,
     enableSortingRemoval: false,
     sortDescFirst: false,
-    onSortingChange: (u) => {
-      const next = (typeof u === 'function' ? u(sorting) : u)[0]
-      const q = new URLSearchParams(params)
-      if (next) {
-        q.set('sort', next.id)
-        q.set('dir', next.desc ? 'desc' : 'asc')
-      } else {
-        q.delete('sort')
-        q.delete('dir')
-      }
-      setParams(q, { replace: true })
-    },
+    onSortingChange: (u) => sortBy((typeof u === 'function' ? u(sorting) : u)[0]),
     enableRowSelection: true,
     state: { rowSelection: selection, columnVisibility: visibility, sorting },
     onRowSelectionChange: (u) => setSelection(typeof u === 'function' ? u(selection) : u),
@@ -273,10 +309,24 @@ export function DataTable<Row extends { id: number }>(p: DataTableProps<Row>) {
         <WindowLoader<Row> key={urlFor(w)} url={urlFor(w)} onPage={onPage} refreshMs={p.refreshMs} retryToken={retryToken} />
       ))}
       <div className="flex flex-wrap items-center justify-between gap-2 border-b border-line px-3 py-2 text-xs text-ink-soft">
-        <span role="status" aria-live="polite">
-          {total === null ? (error ? 'Not loaded' : 'Loading…') : `${formatCount(total.n)}${total.exact ? '' : ' (recent count)'} ${p.label}`}
-          {selected > 0 && ` · ${formatCount(selected)} selected (Esc clears)`}
+        {/* One line that never wraps: a selection count must not push the rows down. */}
+        <span role="status" aria-live="polite" className="min-w-0 flex-1 basis-0 truncate">
+          {total === null ? (error ? 'Not loaded' : 'Loading…') : `${total.capped ? 'More than ' : ''}${formatCount(total.n)}${total.exact ? '' : ' (recent count)'} ${p.label}`}
+          {selected > 0 && (
+            <>
+              {` · ${formatCount(selected)} selected`}
+              <span className="touch:hidden"> (Esc clears)</span>
+            </>
+          )}
         </span>
+        {cards ? (
+          <PhoneSort
+            options={leaves.filter((c) => c.getCanSort()).map((c) => ({ id: c.id, label: typeof c.columnDef.header === 'string' ? c.columnDef.header : c.id }))}
+            sort={sort}
+            desc={dir === 'desc'}
+            onChange={sortBy}
+          />
+        ) : (
         <details className="relative">
           <summary className="cursor-pointer rounded-sm px-2 py-0.5 hover:bg-sunken">Columns</summary>
           <div className="absolute right-0 z-10 mt-1 w-48 rounded-md border border-line bg-panel p-2 shadow-lg">
@@ -288,11 +338,13 @@ export function DataTable<Row extends { id: number }>(p: DataTableProps<Row>) {
             ))}
           </div>
         </details>
+        )}
       </div>
-      {error && <LoadError error={error} onRetry={retry} what={p.label} className="m-2" />}
+      {error && <LoadError error={error} onRetry={retry} what={p.label} className="m-2" resetTo={pathname} />}
       <div ref={scrollRef} className="relative h-[calc(100dvh-15rem)] min-h-80 overflow-auto" tabIndex={-1}>
-        <div role="table" aria-label={p.label} aria-rowcount={count + 1} style={{ minWidth }}>
-          <div role="rowgroup" className="sticky top-0 z-[1] border-b border-line bg-sunken">
+        <div role="table" aria-label={p.label} aria-rowcount={count + 1} style={cards ? undefined : { minWidth }}>
+          {/* On a phone the cards name their own fields, and the sort is chosen above. */}
+          <div role="rowgroup" className={cards ? 'sr-only' : 'sticky top-0 z-[1] border-b border-line bg-sunken'}>
             {table.getHeaderGroups().map((hg) => (
               <div role="row" key={hg.id} className="grid" style={{ gridTemplateColumns: grid }}>
                 {hg.headers.map((h) => {
@@ -332,6 +384,49 @@ export function DataTable<Row extends { id: number }>(p: DataTableProps<Row>) {
               const data = rowAt(v.index)
               const row = data ? table.getRowModel().rowsById[String(data.id)] : undefined
               const isCursor = v.index === cursor
+              const place = { height: rowPx, transform: `translateY(${v.start - shift}px)` }
+              if (cards && p.phone) {
+                const pick = row?.getVisibleCells().find((c) => c.column.id === 'select')
+                const card = data ? p.phone(data) : null
+                return (
+                  <div
+                    role="row"
+                    key={v.key}
+                    data-index={v.index}
+                    aria-rowindex={v.index + 2}
+                    aria-selected={row?.getIsSelected() ?? false}
+                    data-cursor={isCursor || undefined}
+                    ref={p.wrapRows ? virtualizer.measureElement : undefined}
+                    // No cursor ring here: on a touch screen it would read as a selection no one made.
+                    className={`absolute inset-x-0 top-0 flex items-stretch border-b border-line/60 ${row?.getIsSelected() ? 'bg-accent-soft' : ''} ${isCursor ? 'touch:outline-none outline-2 -outline-offset-2 outline-accent' : ''}`}
+                    style={p.wrapRows ? { ...place, height: undefined, minHeight: rowPx } : place}
+                  >
+                    {pick && (
+                      // The whole strip beside the card ticks the box: a finger-sized target.
+                      <label role="cell" className="flex w-11 shrink-0 cursor-pointer items-center justify-center">
+                        {flexRender(pick.column.columnDef.cell, pick.getContext())}
+                      </label>
+                    )}
+                    <div role="cell" className={`min-w-0 flex-1 ${pick ? '' : 'pl-3'}`}>
+                      {card && data ? (
+                        <Link to={p.rowHref?.(data) ?? '#'} onClick={() => setCursor(v.index)} className="block h-full py-2 pr-3 text-sm">
+                          <span className="flex items-center justify-between gap-2">
+                            <span className="min-w-0 truncate font-medium">{card.title}</span>
+                            {card.badges && <span className="flex shrink-0 items-center gap-1">{card.badges}</span>}
+                          </span>
+                          {card.lines.slice(0, 2).map((line, i) => (
+                            <span key={i} className={`block text-ink-soft ${p.wrapRows ? '' : 'truncate'}`}>
+                              {line}
+                            </span>
+                          ))}
+                        </Link>
+                      ) : (
+                        <span className="block py-2 text-sm text-ink-faint">Loading…</span>
+                      )}
+                    </div>
+                  </div>
+                )
+              }
               return (
                 <div
                   role="row"
@@ -345,7 +440,8 @@ export function DataTable<Row extends { id: number }>(p: DataTableProps<Row>) {
                   className={`absolute inset-x-0 top-0 grid items-center border-b border-line/60 text-sm ${
                     row?.getIsSelected() ? 'bg-accent-soft' : v.index % 2 ? 'bg-paper/40' : ''
                   } ${isCursor ? 'outline-2 -outline-offset-2 outline-accent' : ''}`}
-                  style={{ gridTemplateColumns: grid, height: ROW_PX, transform: `translateY(${v.start - shift}px)` }}
+                  ref={p.wrapRows ? virtualizer.measureElement : undefined}
+                  style={{ gridTemplateColumns: grid, ...place, ...(p.wrapRows && { height: undefined, minHeight: rowPx }) }}
                 >
                   {row
                     ? row.getVisibleCells().map((cell) => (
@@ -362,5 +458,33 @@ export function DataTable<Row extends { id: number }>(p: DataTableProps<Row>) {
         </div>
       </div>
     </div>
+  )
+}
+
+/** A phone's stand-in for the header clicks: the sortable columns in a list, and the direction. */
+function PhoneSort(p: { options: Array<{ id: string; label: string }>; sort: string | null; desc: boolean; onChange: (next: { id: string; desc: boolean }) => void }) {
+  if (p.options.length === 0) return null
+  const current = p.options.some((o) => o.id === p.sort) ? p.sort! : p.options[0].id
+  return (
+    <span className="flex items-center gap-1.5">
+      <label className="flex items-center gap-1.5">
+        Sort
+        <select value={current} onChange={(e) => p.onChange({ id: e.target.value, desc: false })} className="min-h-11 rounded-sm border border-line-strong bg-panel px-2 text-sm text-ink">
+          {p.options.map((o) => (
+            <option key={o.id} value={o.id}>
+              {o.label}
+            </option>
+          ))}
+        </select>
+      </label>
+      <button
+        type="button"
+        onClick={() => p.onChange({ id: current, desc: !p.desc })}
+        className="min-h-11 min-w-11 rounded-sm border border-line-strong px-2 text-sm text-ink"
+        aria-label={p.desc ? 'Descending; switch to ascending' : 'Ascending; switch to descending'}
+      >
+        <span aria-hidden="true">{p.desc ? '▼' : '▲'}</span>
+      </button>
+    </span>
   )
 }

@@ -3,6 +3,9 @@ import { useSearchParams } from 'react-router'
 import { useShortcut } from './keyboard'
 import { inputClass } from './ui/page-header'
 
+// Finger-sized on a phone, the desk's compact size from md up.
+const control = `${inputClass} min-h-11 md:min-h-0`
+
 export type FilterOption =
   | {
       kind?: 'select'
@@ -56,10 +59,13 @@ export function FilterBar({ placeholder, filters, children }: { placeholder: str
     setParams(next, { replace: true })
   }
   const active = filters.filter((f) => params.get(f.param)).length + (params.get('q') ? 1 : 0)
+  // On a phone the choices fold behind one button so the list starts on the first screen.
+  const [unfolded, setUnfolded] = useState(false)
+  const chosen = filters.filter((f) => params.get(f.param)).length
 
   return (
     <div role="search" className="mb-3 flex flex-wrap items-end gap-2">
-      <label className="flex flex-col gap-1 text-xs font-medium text-ink-soft">
+      <label className="flex w-full flex-col gap-1 text-xs font-medium text-ink-soft sm:w-auto">
         Filter <span className="sr-only">(press / to focus)</span>
         <input
           ref={input}
@@ -74,9 +80,23 @@ export function FilterBar({ placeholder, filters, children }: { placeholder: str
           }}
           placeholder={placeholder}
           aria-keyshortcuts="/"
-          className={`${inputClass} w-64`}
+          className={`${control} w-full sm:w-64`}
         />
       </label>
+      {filters.length > 0 && (
+        <button
+          type="button"
+          aria-expanded={unfolded}
+          aria-controls="list-filters"
+          onClick={() => setUnfolded(!unfolded)}
+          className="min-h-11 rounded-sm border border-line-strong bg-panel px-3 text-sm text-ink md:hidden"
+        >
+          {unfolded ? 'Hide filters' : 'Filters'}
+          {chosen > 0 && ` (${chosen} on)`}
+        </button>
+      )}
+      {/* `contents` keeps each choice a direct item of the bar at desk width, in the same tab order. */}
+      <div id="list-filters" className={`${unfolded ? 'flex w-full flex-wrap items-end gap-2' : 'hidden'} md:contents`}>
       {filters.map((f) =>
         f.kind === 'date' ? (
           <label key={f.param} className="flex flex-col gap-1 text-xs font-medium text-ink-soft">
@@ -91,7 +111,7 @@ export function FilterBar({ placeholder, filters, children }: { placeholder: str
                   e.currentTarget.blur()
                 }
               }}
-              className={inputClass}
+              className={control}
             />
           </label>
         ) : (
@@ -106,7 +126,7 @@ export function FilterBar({ placeholder, filters, children }: { placeholder: str
                 e.currentTarget.blur()
               }
             }}
-            className={inputClass}
+            className={control}
           >
             <option value="">{f.anyLabel ?? 'Any'}</option>
             {f.options.map((o) => (
@@ -118,6 +138,7 @@ export function FilterBar({ placeholder, filters, children }: { placeholder: str
         </label>
         ),
       )}
+      </div>
       {active > 0 && (
         <button
           type="button"
@@ -127,7 +148,7 @@ export function FilterBar({ placeholder, filters, children }: { placeholder: str
             for (const k of ['sort', 'dir']) if (params.get(k)) next.set(k, params.get(k)!)
             setParams(next, { replace: true })
           }}
-          className="mb-0.5 rounded-sm px-2 py-1.5 text-xs text-ink-soft underline hover:text-ink"
+          className="mb-0.5 min-h-11 rounded-sm px-2 py-1.5 text-xs text-ink-soft underline hover:text-ink md:min-h-0"
         >
           Clear {active} filter{active === 1 ? '' : 's'}
         </button>

@@ -33,7 +33,7 @@ export function HelpOverlay({ allowed }: { allowed: (s: Shortcut) => boolean }) 
             Keyboard shortcuts
           </h2>
           <button type="button" autoFocus onClick={() => setOpen(false)} className="text-sm text-ink-soft underline">
-            Close (Esc)
+            Close<span className="touch:hidden"> (Esc)</span>
           </button>
         </div>
         <p className="mt-1 text-sm text-ink-soft">Shortcuts never fire while you type in a field; Esc leaves the field.</p>

@@ -1,7 +1,11 @@
-import type { ColumnDef } from '@tanstack/react-table'
-import { useMemo } from 'react'
+import type { ColumnDef, RowSelectionState } from '@tanstack/react-table'
+import { useMemo, useState } from 'react'
 import { useSearchParams } from 'react-router'
-import { DataTable } from './data-table'
+import { useSWRConfig } from 'swr'
+import { BulkBar } from './bulk/bulk-bar'
+import type { Technician } from './bulk/action-fields'
+import { DataTable, type PhoneCard } from './data-table'
+import { ExportButton } from './export-button'
 import { FilterBar, listQuery, type FilterOption } from './filter-bar'
 import { SavedViews } from './saved-views'
 import { PageHeader } from './ui/page-header'
@@ -20,16 +24,32 @@ export function ListPage<Row extends { id: number }>(p: {
   /** The list route's sort keys and default order (from its spec, through the page's loader). */
   sortable: readonly string[]
   defaultSort?: { key: string; dir: 'asc' | 'desc' }
+  /** How a row reads on a phone (see DataTable). */
+  phone: (r: Row) => PhoneCard
+  /** Changes many rows at once: the selection bar and its palette entries. */
+  bulk?: { entity: 'visit' | 'detector'; technicians: Technician[] }
 }) {
   const [params] = useSearchParams()
   const query = useMemo(() => listQuery(params), [params])
+  const [selection, setSelection] = useState<RowSelectionState>({})
+  const { mutate } = useSWRConfig()
+  const bulkChanged = () => {
+    setSelection({})
+    void mutate((key) => typeof key === 'string' && key.startsWith(p.endpoint))
+  }
   return (
     <div className="mx-auto max-w-[100rem]">
-      <PageHeader title={p.title}>{p.note ?? 'j/k to move · x to select · Enter to open · ? for every key'}</PageHeader>
+      <PageHeader title={p.title}>{p.note ?? <KeyHint />}</PageHeader>
       <FilterBar placeholder={p.placeholder} filters={p.filters}>
         <SavedViews page={p.page} query={query} />
+        <ExportButton page={p.page} query={query} />
       </FilterBar>
+      {p.bulk && (
+        <BulkBar entity={p.bulk.entity} endpoint={p.endpoint} query={query} selected={Object.keys(selection).map(Number)} technicians={p.bulk.technicians} onChanged={bulkChanged} />
+      )}
       <DataTable<Row>
+        selection={selection}
+        onSelectionChange={setSelection}
         endpoint={p.endpoint}
         query={query}
         columns={p.columns}
@@ -38,9 +58,21 @@ export function ListPage<Row extends { id: number }>(p: {
         storageKey={p.page}
         sortable={p.sortable}
         defaultSort={p.defaultSort}
+        phone={p.phone}
       />
     </div>
   )
 }
 
-export const options = (values: readonly string[]) => values.map((v) => ({ value: v, label: v.replace(/-/g, ' ') }))
+/** A list's keys, shown only where there is a keyboard to press them. */
+export function KeyHint({ children = 'j/k to move · x to select · Enter to open · ? for every key' }: { children?: React.ReactNode }) {
+  return <span className="touch:hidden">{children}</span>
+}
+
+/** Filter choices from the trade's words, in sentence case like the state badges: 'out-of-service' → 'Out of service'. */
+export const options = (values: readonly string[]) => values.map((v) => ({ value: v, label: sentence(v) }))
+
+export const sentence = (v: string) => {
+  const words = v.replace(/-/g, ' ')
+  return words.charAt(0).toUpperCase() + words.slice(1)
+}

@@ -34,7 +34,8 @@ const LABELS: Record<string, { tone: Tone; label: string }> = {
 }
 
 export function StateBadge({ value, label }: { value: string; label?: string }) {
-  const known = LABELS[value] ?? { tone: 'idle' as Tone, label: value }
+  // A word this list does not know still reads in sentence case, like every other badge and filter.
+  const known = LABELS[value] ?? { tone: 'idle' as Tone, label: value.charAt(0).toUpperCase() + value.slice(1).replace(/-/g, ' ') }
   const tone = TONES[known.tone]
   return (
     <span

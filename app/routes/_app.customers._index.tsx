@@ -1,8 +1,10 @@
 import type { ColumnDef } from '@tanstack/react-table'
 import { requireUser } from '~/.server/auth'
 import { customerList, type CustomerListRow } from '~/.server/lists/customers'
-import { linkCell, monoCell, selectColumn } from '~/components/columns'
-import { ListPage, options } from '~/components/list-page'
+import { countOf, linkCell, monoCell, selectColumn } from '~/components/columns'
+import { ListPage, options, sentence } from '~/components/list-page'
+import { StateBadge } from '~/components/state-badge'
+import { formatCount } from '~/utils/format'
 import type { RouteAccess } from '~/domain/permissions'
 import type { Route } from './+types/_app.customers._index'
 
@@ -37,6 +39,16 @@ export default function Customers({ loaderData }: Route.ComponentProps) {
       filters={[{ param: 'kind', label: 'Kind', options: options(['restaurant', 'retail', 'office', 'school', 'healthcare']) }]}
       columns={columns}
       rowHref={(r) => `/customers/${r.id}`}
+      phone={(r) => ({
+        title: r.name,
+        badges: (
+          <>
+            {r.overdue > 0 && <StateBadge value="overdue" label={`${formatCount(r.overdue)} overdue`} />}
+            {r.inTrouble > 0 && <StateBadge value="trouble" label={`${formatCount(r.inTrouble)} in trouble`} />}
+          </>
+        ),
+        lines: [sentence(r.kind), `${countOf(r.sites, 'site')} · ${countOf(r.detectors, 'detector')}`],
+      })}
     />
   )
 }

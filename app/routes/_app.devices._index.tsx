@@ -1,12 +1,11 @@
 import type { ColumnDef } from '@tanstack/react-table'
-import { useMemo } from 'react'
-import { useSearchParams } from 'react-router'
 import { requireUser } from '~/.server/auth'
+import { getDb } from '~/.server/db'
+import { technicianOptions } from '~/.server/lists/visits'
 import { badgeCell, linkCell, monoCell, selectColumn } from '~/components/columns'
-import { DataTable } from '~/components/data-table'
-import { FilterBar, listQuery, type FilterOption } from '~/components/filter-bar'
-import { SavedViews } from '~/components/saved-views'
-import { PageHeader } from '~/components/ui/page-header'
+import type { FilterOption } from '~/components/filter-bar'
+import { ListPage, options } from '~/components/list-page'
+import { StateBadge } from '~/components/state-badge'
 import { deviceList, type DeviceListRow } from '~/.server/lists/devices'
 import type { RouteAccess } from '~/domain/permissions'
 import type { Route } from './+types/_app.devices._index'
@@ -17,13 +16,13 @@ export const meta: Route.MetaFunction = () => [{ title: 'Detectors · Ductkeeper
 
 export async function loader({ request }: Route.LoaderArgs) {
   await requireUser(request, 'view:fleet')
-  return { sortable: Object.keys(deviceList.sorts), defaultSort: deviceList.defaultSort }
+  return { sortable: Object.keys(deviceList.sorts), defaultSort: deviceList.defaultSort, technicians: technicianOptions(getDb()).filter((t) => t.active) }
 }
 
 const FILTERS: FilterOption[] = [
-  { param: 'state', label: 'State', options: ['normal', 'trouble', 'alarm', 'supervisory', 'out-of-service'].map((v) => ({ value: v, label: v.replace(/-/g, ' ') })) },
+  { param: 'state', label: 'State', options: options(['normal', 'trouble', 'alarm', 'supervisory', 'out-of-service']) },
   { param: 'due', label: 'Due', options: [{ value: 'overdue', label: 'Overdue' }, { value: 'due-soon', label: 'Due within 30 days' }, { value: 'ok', label: 'Up to date' }] },
-  { param: 'environment', label: 'Location', options: ['clean', 'dusty', 'kitchen', 'humid'].map((v) => ({ value: v, label: v })) },
+  { param: 'environment', label: 'Location', options: options(['clean', 'dusty', 'kitchen', 'humid']) },
   { param: 'housing', label: 'Housing', options: [{ value: 'standard', label: 'Standard' }, { value: 'nema4', label: 'NEMA 4' }, { value: 'nema4x', label: 'NEMA 4X' }] },
   { param: 'delay', label: 'Delay vs policy', options: [{ value: 'agree', label: 'Agrees' }, { value: 'disagree', label: 'Disagrees' }, { value: 'unknown', label: 'Not recorded' }] },
   { param: 'loop', label: 'Loop', options: [{ value: 'fail', label: 'Fault found' }, { value: 'incomplete', label: 'Incomplete' }, { value: 'pass', label: 'Pass' }] },
@@ -46,24 +45,29 @@ const columns: ColumnDef<DeviceListRow>[] = [
 ]
 
 export default function Devices({ loaderData }: Route.ComponentProps) {
-  const [params] = useSearchParams()
-  const query = useMemo(() => listQuery(params), [params])
   return (
-    <div className="mx-auto max-w-[100rem]">
-      <PageHeader title="Detectors">j/k to move · x to select · Enter to open · ? for every key</PageHeader>
-      <FilterBar placeholder="Tag, serial, site, street or town" filters={FILTERS}>
-        <SavedViews page="devices" query={query} />
-      </FilterBar>
-      <DataTable<DeviceListRow>
-        endpoint="/api/devices"
-        query={query}
-        columns={columns}
-        rowHref={(r) => `/devices/${r.id}`}
-        label="detectors"
-        storageKey="devices"
-        sortable={loaderData.sortable}
-        defaultSort={loaderData.defaultSort}
-      />
-    </div>
+    <ListPage<DeviceListRow>
+      bulk={{ entity: 'detector', technicians: loaderData.technicians }}
+      sortable={loaderData.sortable}
+      defaultSort={loaderData.defaultSort}
+      title="Detectors"
+      page="devices"
+      endpoint="/api/devices"
+      label="detectors"
+      placeholder="Tag, serial, site, street or town"
+      filters={FILTERS}
+      columns={columns}
+      rowHref={(r) => `/devices/${r.id}`}
+      phone={(r) => ({
+        title: <span className="font-mono">{r.tag}</span>,
+        badges: (
+          <>
+            <StateBadge value={r.state} />
+            {r.due && <StateBadge value={r.due} />}
+          </>
+        ),
+        lines: [`${r.site} · ${r.city}`, `Next due ${r.nextDueOn ?? 'not set'} · ${r.customer}`],
+      })}
+    />
   )
 }

@@ -3,7 +3,7 @@ import { Link } from 'react-router'
 import { requireUser } from '~/.server/auth'
 import { eventList, eventQuery, type EventListRow } from '~/.server/lists/events'
 import { linkCell, monoCell, selectColumn } from '~/components/columns'
-import { ListPage, options } from '~/components/list-page'
+import { KeyHint, ListPage, options, sentence } from '~/components/list-page'
 import type { RouteAccess } from '~/domain/permissions'
 import type { Route } from './+types/_app.events'
 
@@ -66,7 +66,23 @@ export default function Events({ loaderData }: Route.ComponentProps) {
       filters={[{ param: 'kind', label: 'Kind', options: options(KINDS) }]}
       columns={columns}
       rowHref={(r) => (r.detectorId ? `/devices/${r.detectorId}` : `/sites/${r.siteId}`)}
-      note="Newest first · j/k to move · Enter opens the detector"
+      note={
+        <>
+          Newest first<KeyHint> · j/k to move · Enter opens the detector</KeyHint>
+        </>
+      }
+      phone={(r) => ({
+        title: (
+          <>
+            <span aria-hidden="true" className="mr-1.5 font-mono text-ink-faint">
+              {GLYPH[r.kind] ?? '·'}
+            </span>
+            {sentence(r.kind)}
+          </>
+        ),
+        badges: <span className="font-mono text-xs text-ink-soft">{r.occurredAt.slice(0, 16).replace('T', ' ')} UTC</span>,
+        lines: [`${r.detectorTag ?? 'Whole site'} · ${r.site}`, r.detail ?? (r.by ? `By ${r.by}` : 'From the panel')],
+      })}
     />
   )
 }

@@ -1,9 +1,11 @@
 import type { ColumnDef } from '@tanstack/react-table'
 import { requireUser } from '~/.server/auth'
 import { siteList, type SiteListRow } from '~/.server/lists/sites'
-import { linkCell, monoCell, selectColumn } from '~/components/columns'
+import { countOf, linkCell, monoCell, selectColumn } from '~/components/columns'
 import { ListPage } from '~/components/list-page'
+import { StateBadge } from '~/components/state-badge'
 import type { RouteAccess } from '~/domain/permissions'
+import { formatCount } from '~/utils/format'
 import type { Route } from './+types/_app.sites._index'
 
 export const handle = { access: { loader: 'view:fleet' } satisfies RouteAccess }
@@ -43,6 +45,11 @@ export default function Sites({ loaderData }: Route.ComponentProps) {
       filters={[{ param: 'codeBasis', label: 'Code basis', options: [{ value: 'imc', label: 'IMC' }, { value: 'nfpa90a', label: 'NFPA 90A' }] }]}
       columns={columns}
       rowHref={(r) => `/sites/${r.id}`}
+      phone={(r) => ({
+        title: r.name,
+        badges: r.overdue > 0 && <StateBadge value="overdue" label={`${formatCount(r.overdue)} overdue`} />,
+        lines: [`${r.customer} · ${r.city}`, `${countOf(r.units, 'unit')} · ${countOf(r.detectors, 'detector')} · next visit ${r.nextVisitOn ?? 'not booked'}`],
+      })}
     />
   )
 }

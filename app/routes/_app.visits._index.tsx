@@ -4,8 +4,8 @@ import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
 import { technicianOptions, visitList, type VisitListRow } from '~/.server/lists/visits'
 import { officeToday } from '~/.server/today'
-import { badgeCell, linkCell, monoCell, selectColumn } from '~/components/columns'
-import { ListPage, options } from '~/components/list-page'
+import { badgeCell, countOf, linkCell, monoCell, selectColumn } from '~/components/columns'
+import { ListPage, options, sentence } from '~/components/list-page'
 import { StateBadge } from '~/components/state-badge'
 import type { RouteAccess } from '~/domain/permissions'
 import type { Route } from './+types/_app.visits._index'
@@ -63,6 +63,20 @@ export default function Visits({ loaderData }: Route.ComponentProps) {
       ]}
       columns={columns}
       rowHref={(r) => `/visits/${r.id}`}
+      phone={(r) => ({
+        title: (
+          <>
+            <span className="font-mono">{r.scheduledOn}</span> · {sentence(r.kind)}
+          </>
+        ),
+        badges: <StateBadge value={r.status} />,
+        lines: [
+          `${r.site} · ${r.city}`,
+          <>
+            {r.technician ?? <span className="text-late">Not assigned</span>} · {countOf(r.detectors, 'detector')} · {r.notified ? 'monitoring told' : 'not yet told'}
+          </>,
+        ],
+      })}
     />
   )
 }
