@@ -1,4 +1,5 @@
 import { Link } from 'react-router'
+import { EditLink } from '~/components/forms/edit-link'
 import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
 import { customerRecord } from '~/.server/repos/customer'
@@ -64,6 +65,9 @@ export default function Customer({ loaderData }: Route.ComponentProps) {
             </a>
           )}
         </p>
+        <div className="mt-3">
+          <EditLink to={`/customers/${c.id}/edit`} what="customer" />
+        </div>
       </header>
 
       <section aria-label="Totals" className="grid grid-cols-2 gap-3 sm:grid-cols-4">

@@ -1,4 +1,5 @@
 import { Link } from 'react-router'
+import { EditLink } from '~/components/forms/edit-link'
 import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
 import { deviceReport } from '~/.server/device-report'
@@ -88,6 +89,9 @@ export default function Device({ loaderData }: Route.ComponentProps) {
           {d.position === 'supply' ? 'Supply' : 'Return'} duct of {d.unitKind.toUpperCase()} {d.unitTag}
           {d.unitLocation && ` (${d.unitLocation})`} · {d.street}, {d.city} · {d.modelName}
         </p>
+        <div className="mt-3">
+          <EditLink to={`/devices/${d.id}/edit`} what="detector" />
+        </div>
       </header>
 
       {/* What is needed at the unit comes first on a phone, in this order; on a wide desk the notice and the

@@ -1,4 +1,5 @@
 import { Link } from 'react-router'
+import { EditLink } from '~/components/forms/edit-link'
 import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
 import { pageNotFound, pageRecordId } from '~/.server/repos/record-id'
@@ -65,6 +66,7 @@ export default function Site({ loaderData }: Route.ComponentProps) {
           <Link to={`/sites/${s.id}/labels`} className={`${TAP} text-sm text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink`}>
             Detector labels with QR codes
           </Link>
+          <EditLink to={`/sites/${s.id}/edit`} what="site" />
         </div>
       </header>
 

@@ -1,4 +1,5 @@
 import { Link } from 'react-router'
+import { EditLink } from '~/components/forms/edit-link'
 import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
 import { pageNotFound, pageRecordId } from '~/.server/repos/record-id'
@@ -77,8 +78,9 @@ export default function Unit({ loaderData }: Route.ComponentProps) {
         <p className="mt-1 text-sm text-ink-soft">
           {u.location ?? 'Location not recorded'} · {site.city} · {u.shutdownInput} shutdown input
         </p>
-        <div className="mt-3 [&>button]:min-h-11 sm:[&>button]:min-h-0">
+        <div className="mt-3 flex flex-wrap items-center gap-3 [&>button]:min-h-11 sm:[&>button]:min-h-0">
           <BookVisit siteId={site.id} detectors={detectors.map((d) => ({ id: d.id, tag: d.tag }))} what={`unit ${u.tag}`} />
+          <EditLink to={`/units/${u.id}/edit`} what="unit" />
         </div>
       </header>
 
