@@ -6,6 +6,7 @@ import { TEST_TODAY } from '#tests/setup/temp-db'
 import type { customerRecord } from '~/.server/repos/customer'
 import type { siteRecord } from '~/.server/repos/site'
 import type { unitRecord } from '~/.server/repos/unit'
+import { siteTime } from '~/utils/time-format'
 
 type CustomerPage = NonNullable<ReturnType<typeof customerRecord>>
 type SitePage = NonNullable<ReturnType<typeof siteRecord>> & { now: string }
@@ -15,6 +16,9 @@ type UnitPage = NonNullable<ReturnType<typeof unitRecord>>
 const html = (s: string) => s.replaceAll('&', '&amp;').replaceAll('<', '&lt;').replaceAll('>', '&gt;').replaceAll("'", '&#x27;').replaceAll('"', '&quot;')
 // React puts a comment between adjacent text parts of one element; read the page as its text.
 const text = (body: string) => body.replaceAll('<!-- -->', '')
+// Each event's <time dateTime="…Z"> and the clock it shows, as served.
+const eventTimes = (body: string) =>
+  [...text(body).matchAll(/<time datetime="(\d{4}-\d\d-\d\dT[^"]+Z)"[^>]*>([^<]*)<\/time>/gi)].map((m) => ({ at: m[1], shown: m[2] }))
 
 describe('customer, site and unit pages', () => {
   const running = useSeededServer('small')
@@ -239,5 +243,47 @@ describe('customer, site and unit pages', () => {
     for (const path of ['/customers/abc', '/sites/1x', '/units/-3', '/units/1.5', '/sites/0x1', '/customers/1e0', '/units/01']) {
       expect((await get(path)).status, path).toBe(404)
     }
+  })
+
+  it("shows event and notice times on the site's own clock, with its zone's letters", async () => {
+    // A site away from the office's zone, so a time in the wrong zone cannot pass for the right one.
+    const site = one<{ id: number; tz: string }>(
+      `select s.id, s.time_zone as tz from sites s where s.time_zone in ('America/Los_Angeles', 'America/Denver', 'America/Phoenix')
+         and exists (select 1 from events e where e.site_id = s.id) and exists (select 1 from notifications n where n.site_id = s.id)
+       order by s.id limit 1`,
+    )
+    const letters = { 'America/Los_Angeles': /^\d\d:\d\d P[DS]T$/, 'America/Denver': /^\d\d:\d\d M[DS]T$/, 'America/Phoenix': /^\d\d:\d\d MST$/ }[site.tz]!
+    const siteBody = (await get(`/sites/${site.id}`)).body
+    const onSite = eventTimes(siteBody)
+    expect(onSite.length).toBe(Math.min(50, n('select count(*) as n from events where site_id = ?', site.id)))
+    for (const e of onSite) {
+      expect(e.shown).toMatch(letters)
+      expect(e.shown).toBe(siteTime(e.at, site.tz))
+    }
+    // 2026-06-15T21:05Z is 14:05 PDT, 15:05 MDT or 14:05 MST: the helper the pages use reads the zone, not UTC.
+    expect(siteTime('2026-06-15T21:05:00Z', site.tz)).not.toBe('21:05 UTC')
+    // The latest notice: its time with the zone, in the notification history.
+    const notice = one<{ at: string }>('select notified_at as at from notifications where site_id = ? order by notified_at desc, id desc limit 1', site.id)
+    expect(text(siteBody)).toContain(siteTime(notice.at, site.tz))
+
+    const detector = one<{ id: number }>('select detector_id as id from events where site_id = ? and detector_id is not null order by occurred_at desc limit 1', site.id)
+    const onDevice = eventTimes((await get(`/devices/${detector.id}`)).body)
+    expect(onDevice.length).toBeGreaterThan(0)
+    for (const e of onDevice) expect(e.shown).toBe(siteTime(e.at, site.tz))
+  })
+
+  it('logs a refused request in one line, not a stack trace', async () => {
+    const from = running.server.output().length
+    const missing = await fetch(`${running.server.url}/no-such-page`, { headers: { Cookie: cookie } })
+    expect(missing.status).toBe(404)
+    await missing.body?.cancel()
+    const wrongMethod = await fetch(`${running.server.url}/healthz`, { method: 'DELETE', headers: { Origin: running.server.url } })
+    expect(wrongMethod.status).toBe(405)
+    await wrongMethod.body?.cancel()
+    await new Promise((r) => setTimeout(r, 300))
+    const log = running.server.output().slice(from)
+    expect(log.split('\n').filter((l) => l.includes('No route matches URL "/no-such-page"'))).toEqual(['GET /no-such-page 404: No route matches URL "/no-such-page"'])
+    expect(log.split('\n').filter((l) => /^DELETE \/healthz 405: /.test(l))).toHaveLength(1)
+    expect(log).not.toMatch(/^\s+at /m)
   })
 })
