@@ -1,19 +1,21 @@
 import type { ColumnDef, RowSelectionState } from '@tanstack/react-table'
 import { useMemo, useState } from 'react'
-import { useSearchParams } from 'react-router'
+import { Link, useSearchParams } from 'react-router'
 import { useSWRConfig } from 'swr'
 import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
 import { deviceList } from '~/.server/lists/devices'
 import { triageQuery, type TriageRow } from '~/.server/lists/triage'
-import { officeToday } from '~/.server/today'
-import { Caution } from '~/components/caution'
 import { badgeCell, linkCell, monoCell, selectColumn } from '~/components/columns'
 import { usePaletteActions } from '~/components/command-palette'
 import { DataTable } from '~/components/data-table'
+import { ExportButton } from '~/components/export-button'
 import { FilterBar, listQuery } from '~/components/filter-bar'
 import { LoadError } from '~/components/load-error'
 import { SavedViews } from '~/components/saved-views'
+import { StateBadge } from '~/components/state-badge'
+import { BookDialog, type Booked } from '~/components/triage/book-dialog'
+import { Reasons } from '~/components/triage/reasons'
 import { useJson } from '~/components/use-json'
 import { buttonClass, inputClass, Notice, PageHeader, quietButtonClass } from '~/components/ui/page-header'
 import { can, type RouteAccess } from '~/domain/permissions'
@@ -30,7 +32,6 @@ export async function loader({ request }: Route.LoaderArgs) {
   const technicians = getDb().$client.prepare("select id, name from users where role = 'technician' and active = 1 order by name").all() as Array<{ id: number; name: string }>
   return {
     technicians,
-    today: officeToday(),
     canTriage: can(user.role, 'triage:fleet'),
     canSchedule: can(user.role, 'schedule:visits'),
     // The queue is the detectors list narrowed: it sorts as that list does, worst risk first.
@@ -63,15 +64,10 @@ const columns: ColumnDef<TriageRow>[] = [
   {
     id: 'reasons',
     header: 'Why',
-    size: 3,
-    minSize: 260,
+    size: 5,
+    minSize: 280,
     enableSorting: false,
-    cell: ({ row }) => (
-      <span title={[...row.original.reasons.map((r) => `${r.text} (+${r.points})`), row.original.followUp ? `Technician: ${row.original.followUp}` : ''].filter(Boolean).join('\n')}>
-        {row.original.reasons.map((r) => REASON_LABELS[r.code] ?? r.text).join(' · ')}
-        {row.original.followUp && <span className="text-ink-soft"> · “{row.original.followUp}”</span>}
-      </span>
-    ),
+    cell: ({ row }) => <Reasons reasons={row.original.reasons} followUp={row.original.followUp} />,
   },
   { id: 'site', header: 'Site', size: 2, minSize: 180, cell: linkCell((r) => `/sites/${r.siteId}`, (r) => r.site) },
   { id: 'state', header: 'State', size: 132, cell: badgeCell((r) => r.state) },
@@ -84,13 +80,13 @@ interface Answer {
 }
 
 export default function Triage({ loaderData }: Route.ComponentProps) {
-  const { technicians, today, canTriage, canSchedule, sortable, defaultSort } = loaderData
+  const { technicians, canTriage, canSchedule, sortable, defaultSort } = loaderData
   const [params, setParams] = useSearchParams()
   const query = useMemo(() => listQuery(params), [params])
   const [selection, setSelection] = useState<RowSelectionState>({})
   const [technician, setTechnician] = useState<string>(String(technicians[0]?.id ?? ''))
-  const [date, setDate] = useState(today)
-  const [notice, setNotice] = useState<{ tone: 'ok' | 'error'; text: string } | null>(null)
+  const [booking, setBooking] = useState(false)
+  const [notice, setNotice] = useState<{ tone: 'ok' | 'error'; text: string; visitId?: number } | null>(null)
   const [busy, setBusy] = useState(false)
   const { mutate } = useSWRConfig()
   // The counts ride along with any window of the queue; this one asks for the smallest.
@@ -115,7 +111,16 @@ export default function Triage({ loaderData }: Route.ComponentProps) {
   }
   const acknowledgeSel = () => act({ intent: 'acknowledge' })
   const assignSel = () => act({ intent: 'assign', technicianId: Number(technician) })
-  const scheduleSel = () => act({ intent: 'schedule', date, kind: 'test', technicianId: technician ? Number(technician) : null })
+  const bookSel = () => {
+    if (ids.length === 0) return setNotice({ tone: 'error', text: 'Select detectors first: x on a row, Shift+j/k to extend.' })
+    setBooking(true)
+  }
+  const booked = async (b: Booked) => {
+    setBooking(false)
+    setSelection({})
+    setNotice({ tone: 'ok', text: b.message, visitId: b.visits.length === 1 ? b.visits[0].visitId : undefined })
+    await mutate((key) => typeof key === 'string' && key.startsWith('/api/triage'))
+  }
 
   usePaletteActions(
     ids.length === 0
@@ -123,7 +128,7 @@ export default function Triage({ loaderData }: Route.ComponentProps) {
       : [
           ...(canTriage ? [{ id: 'ack', label: `Acknowledge ${ids.length} selected`, run: acknowledgeSel }] : []),
           ...(canTriage && technician ? [{ id: 'assign', label: `Assign ${ids.length} selected to ${technicians.find((t) => String(t.id) === technician)?.name}`, run: assignSel }] : []),
-          ...(canSchedule ? [{ id: 'schedule', label: `Book a visit on ${date} for ${ids.length} selected`, run: scheduleSel }] : []),
+          ...(canSchedule ? [{ id: 'schedule', label: `Book a visit for ${ids.length} selected…`, run: bookSel }] : []),
           { id: 'clear', label: 'Clear the selection', run: () => setSelection({}) },
         ],
   )
@@ -143,7 +148,7 @@ export default function Triage({ loaderData }: Route.ComponentProps) {
       <PageHeader title="Triage">{summary ? `${formatCount(summary.counts.open)} open · ranked by risk, worst first` : summaryError ? 'Counts not loaded' : 'Loading…'}</PageHeader>
       {summaryError && <LoadError error={summaryError} onRetry={() => void retrySummary()} what="the counts" className="mb-3" />}
 
-      <section aria-label="Reasons" className="mb-3 flex flex-wrap gap-1.5">
+      <section aria-label="Reasons" className="-mx-4 mb-3 flex gap-1.5 overflow-x-auto px-4 pb-1 sm:mx-0 sm:flex-wrap sm:overflow-visible sm:px-0 sm:pb-0">
         {Object.entries(REASON_LABELS).map(([code, label]) => {
           const on = activeReasons.has(code)
           return (
@@ -152,7 +157,7 @@ export default function Triage({ loaderData }: Route.ComponentProps) {
               type="button"
               aria-pressed={on}
               onClick={() => toggleReason(code)}
-              className={`rounded-sm border px-2.5 py-1 text-xs ${on ? 'border-accent bg-accent text-accent-ink' : 'border-line-strong bg-panel text-ink hover:bg-sunken'}`}
+              className={`shrink-0 rounded-sm border px-2.5 py-1 text-xs whitespace-nowrap ${on ? 'border-accent bg-accent text-accent-ink' : 'border-line-strong bg-panel text-ink hover:bg-sunken'}`}
             >
               {label} <span className="font-mono">{summary ? formatCount(summary.counts[code] ?? 0) : '…'}</span>
             </button>
@@ -165,50 +170,40 @@ export default function Triage({ loaderData }: Route.ComponentProps) {
         filters={[{ param: 'acknowledged', label: 'Acknowledged', anyLabel: 'Open only', options: [{ value: 'only', label: 'Only acknowledged' }, { value: 'all', label: 'Open and acknowledged' }] }]}
       >
         <SavedViews page="triage" query={query} />
+        <ExportButton page="triage" query={query} />
       </FilterBar>
 
       {(canTriage || canSchedule) && (
+        // One line of fixed parts whatever the selection: choosing rows never moves the table.
         <section aria-label="Act on the selection" className="mb-3 flex flex-wrap items-end gap-2 rounded-md border border-line bg-panel px-3 py-2">
-          <span className="mb-1.5 text-sm font-medium">{ids.length === 0 ? 'Select rows to act on them' : `${ids.length} selected`}</span>
+          <span className="mb-1.5 min-w-[9rem] text-sm font-medium">{ids.length === 0 ? 'Select rows to act' : `${formatCount(ids.length)} selected`}</span>
           {canTriage && (
-            <button type="button" className={quietButtonClass} disabled={busy || ids.length === 0} onClick={acknowledgeSel}>
-              Acknowledge
-            </button>
-          )}
-          <label className="flex flex-col gap-1 text-xs font-medium text-ink-soft">
-            Technician
-            <select className={inputClass} value={technician} onChange={(e) => setTechnician(e.target.value)}>
-              {technicians.map((t) => (
-                <option key={t.id} value={t.id}>
-                  {t.name}
-                </option>
-              ))}
-            </select>
-          </label>
-          {canTriage && (
-            <button type="button" className={quietButtonClass} disabled={busy || ids.length === 0} onClick={assignSel}>
-              Assign
-            </button>
-          )}
-          {canSchedule && (
             <>
+              <button type="button" className={`${quietButtonClass} touch:min-h-11`} disabled={busy || ids.length === 0} onClick={acknowledgeSel}>
+                Acknowledge
+              </button>
               <label className="flex flex-col gap-1 text-xs font-medium text-ink-soft">
-                Visit date
-                <input type="date" className={inputClass} min={today} value={date} onChange={(e) => setDate(e.target.value)} />
+                Technician
+                <select className={inputClass} value={technician} onChange={(e) => setTechnician(e.target.value)}>
+                  {technicians.map((t) => (
+                    <option key={t.id} value={t.id}>
+                      {t.name}
+                    </option>
+                  ))}
+                </select>
               </label>
-              <button type="button" className={buttonClass} disabled={busy || ids.length === 0} onClick={scheduleSel}>
-                Book visit
+              <button type="button" className={`${quietButtonClass} touch:min-h-11`} disabled={busy || ids.length === 0} onClick={assignSel}>
+                Assign
               </button>
             </>
           )}
-          <span className="mb-1.5 text-xs text-ink-faint">Also in the palette (Ctrl K) once rows are selected.</span>
+          {canSchedule && (
+            <button type="button" className={`${buttonClass} touch:min-h-11`} disabled={busy || ids.length === 0} onClick={bookSel}>
+              Book visit…
+            </button>
+          )}
+          <span className="mb-1.5 text-xs text-ink-faint touch:hidden">x selects a row; Ctrl K lists what the selection can do.</span>
         </section>
-      )}
-      {notice && <Notice tone={notice.tone}>{notice.text}</Notice>}
-      {canSchedule && ids.length > 0 && (
-        <div className="mb-3">
-          <Caution compact />
-        </div>
       )}
 
       <DataTable<TriageRow>
@@ -223,7 +218,43 @@ export default function Triage({ loaderData }: Route.ComponentProps) {
         refreshMs={REFRESH_MS}
         sortable={sortable}
         defaultSort={defaultSort}
+        wrapRows
+        phone={(r) => ({
+          title: (
+            <>
+              <span className="font-mono">{r.tag}</span> <span className="font-mono text-xs text-ink-faint">risk {r.risk}</span>
+            </>
+          ),
+          badges: (
+            <>
+              <StateBadge value={r.state} />
+              {r.due && <StateBadge value={r.due} />}
+            </>
+          ),
+          lines: [<Reasons key="why" reasons={r.reasons} followUp={r.followUp} />, `${r.site} · ${r.city}${r.assignee ? ` · ${r.assignee}` : ''}`],
+        })}
       />
+
+      {booking && <BookDialog ids={ids} onClose={() => setBooking(false)} onBooked={(b) => void booked(b)} />}
+      {notice && (
+        // Results float over the page's foot, so they never push the queue down either.
+        <div className="fixed inset-x-3 bottom-3 z-30 mx-auto flex max-w-xl items-start gap-2 rounded-md bg-panel shadow-lg [&>p]:mb-0 [&>p]:flex-1">
+          <Notice tone={notice.tone}>
+            {notice.text}
+            {notice.visitId && (
+              <>
+                {' '}
+                <Link to={`/visits/${notice.visitId}`} className="underline">
+                  Open visit {notice.visitId}
+                </Link>
+              </>
+            )}
+          </Notice>
+          <button type="button" onClick={() => setNotice(null)} className="px-2 py-2 text-sm text-ink-soft" aria-label="Dismiss the message">
+            ×
+          </button>
+        </div>
+      )}
     </div>
   )
 }
