@@ -20,6 +20,7 @@ export const SECTIONS: Section[] = [
   { to: '/customers', label: 'Customers', key: 'c', capability: 'view:fleet' },
   { to: '/visits', label: 'Visits', key: 'v', capability: 'view:fleet' },
   { to: '/events', label: 'Events', key: 'e', capability: 'view:fleet' },
+  { to: '/import', label: 'Import', key: 'i', capability: 'edit:records' },
   { to: '/admin/users', label: 'Users', key: 'u', capability: 'manage:users', group: 'admin' },
   { to: '/admin/tokens', label: 'API tokens', key: 'k', capability: 'manage:tokens', group: 'admin' },
   { to: '/admin/audit', label: 'Audit log', key: 'a', capability: 'view:audit', group: 'admin' },
