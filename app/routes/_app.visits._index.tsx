@@ -43,6 +43,7 @@ export default function Visits({ loaderData }: Route.ComponentProps) {
   const { technicians } = loaderData
   return (
     <ListPage<VisitListRow>
+      bulk={{ entity: 'visit', technicians: technicians.filter((t) => t.active) }}
       sortable={loaderData.sortable}
       defaultSort={loaderData.defaultSort}
       title="Visits"
