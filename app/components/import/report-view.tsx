@@ -20,7 +20,7 @@ const COUNT_LABELS: Record<string, string> = {
 function ProblemTable({ caption, rows, total }: { caption: string; rows: Problem[]; total: number }) {
   return (
     <div className="mt-4 overflow-x-auto rounded-md border border-line bg-panel">
-      <table className="w-full min-w-[34rem] text-left text-sm">
+      <table className="w-full text-left text-sm [overflow-wrap:anywhere]">
         <caption className="px-3 py-2 text-left font-semibold">
           {caption} {total > rows.length && <span className="font-normal text-ink-soft">(the first {rows.length.toLocaleString()} of {total.toLocaleString()})</span>}
         </caption>
@@ -37,7 +37,7 @@ function ProblemTable({ caption, rows, total }: { caption: string; rows: Problem
             <tr key={`${p.row}-${p.column}-${i}`}>
               <td className="px-3 py-1.5 font-mono">{p.row}</td>
               <td className="px-3 py-1.5">{p.column ?? '—'}</td>
-              <td className="max-w-[12rem] truncate px-3 py-1.5 font-mono" title={p.value}>
+              <td className="max-w-[8rem] truncate px-3 py-1.5 font-mono sm:max-w-[14rem]" title={p.value}>
                 {p.value === '' ? <span className="text-ink-faint">blank</span> : p.value}
               </td>
               <td className="px-3 py-1.5">{p.problem}</td>
