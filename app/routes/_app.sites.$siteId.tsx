@@ -58,7 +58,7 @@ export default function Site({ loaderData }: Route.ComponentProps) {
           {s.street}, {s.city} {s.postalCode} · {formatCount(units.total)} {units.total === 1 ? 'unit' : 'units'},{' '}
           {formatCount(detectors.total)} {detectors.total === 1 ? 'detector' : 'detectors'}
         </p>
-        <div className="mt-3 flex flex-wrap items-center gap-x-4 gap-y-2">
+        <div className="mt-3 flex flex-wrap items-center gap-x-4 gap-y-2 [&>button]:min-h-11 sm:[&>button]:min-h-0">
           <BookVisit siteId={s.id} detectors={detectors.rows.map((d) => ({ id: d.id, tag: d.tag }))} what={s.name} />
           <Link to={`/sites/${s.id}/record`} className={`${TAP} text-sm text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink`}>
             Inspection record
@@ -102,7 +102,9 @@ export default function Site({ loaderData }: Route.ComponentProps) {
             <Fact label="Address">
               {s.street}, {s.city} {s.postalCode}
             </Fact>
-            <Fact label="Time zone">{tz.replace(/_/g, ' ')}</Fact>
+            <Fact label="Time zone">
+              {tz.replace(/_/g, ' ')} <span className="text-ink-soft">· {siteTime(now, tz)} there now</span>
+            </Fact>
             <Fact label="Region">{s.region}</Fact>
             <Fact label="Jurisdiction">{s.jurisdiction}</Fact>
             <Fact label="AHJ">

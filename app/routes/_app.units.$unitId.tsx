@@ -12,7 +12,7 @@ import { CONTROL_VOLTS } from '~/domain/power'
 import { formatCount } from '~/utils/format'
 import type { Route } from './+types/_app.units.$unitId'
 import { Fact } from '~/components/ui/facts'
-import { TAP } from '~/components/ui/tap'
+import { TAP, TAP_AREA } from '~/components/ui/tap'
 
 export const handle = { access: { loader: 'view:fleet' } satisfies RouteAccess }
 
@@ -123,7 +123,7 @@ export default function Unit({ loaderData }: Route.ComponentProps) {
               {detectors.map((d) => (
                 <li key={d.id} className="flex flex-wrap items-center justify-between gap-x-3 gap-y-1.5 px-4 py-2.5">
                   <div className="min-w-0">
-                    <Link to={`/devices/${d.id}`} className={`${TAP} font-mono font-medium text-accent hover:underline`}>
+                    <Link to={`/devices/${d.id}`} className={`${TAP_AREA} font-mono font-medium text-accent hover:underline`}>
                       {d.tag}
                     </Link>
                     <div className="text-xs text-ink-faint">
