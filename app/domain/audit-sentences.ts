@@ -467,8 +467,9 @@ export function describe(rows: AuditRow[], names: Named, o: SentenceOptions): Au
   const after = asRecord(head.after) ?? {}
   const ids = isBulk(head) ? [] : rows.map((r) => numeric(r.entityId)).filter((x): x is number => x !== null)
   const bulk = isBulk(head) ? names.bulk[numeric(head.entityId) ?? 0] : undefined
-  // A bulk entry's own before/after is bookkeeping; what changed is told record by record below.
-  const changes = isBulk(head) ? [] : changedFields(head.before, head.after, names, o.timeZone)
+  // A bulk entry's own before/after is bookkeeping (what changed is told record by record below); a
+  // sign-in's is what the sentence already says.
+  const changes = isBulk(head) || head.action.startsWith('session.') ? [] : changedFields(head.before, head.after, names, o.timeZone)
   const actor = head.actorId ? n.person(head.actorId) : 'Ductkeeper'
   const ctx: Ctx = { rows, head, ids, actor, before, after, n, changes }
   const parts = (SENTENCES[head.action] ?? generic)(ctx)

@@ -57,7 +57,8 @@ export default function Tokens({ loaderData, actionData }: Route.ComponentProps)
           Create a token
         </h2>
         <p className="mt-1 text-sm text-ink-soft">A token acts with its owner&apos;s role. Only its fingerprint is stored.</p>
-        <Form method="post" className="mt-3 grid gap-3 sm:flex sm:flex-wrap sm:items-start">
+        {/* A new key after each created token empties the form for the next one. */}
+        <Form key={actionData?.token ?? 'form'} method="post" className="mt-3 grid gap-3 sm:flex sm:flex-wrap sm:items-start">
           <input type="hidden" name="intent" value="create" />
           <Field label="Name" error={errors.name}>
             <input name="name" required className={`${inputClass} w-full sm:w-56`} placeholder="e.g. Nightly export" />
@@ -165,7 +166,7 @@ function NewToken({ token }: { token: string }) {
           {status === 'copied' ? 'Copied' : 'Copy token'}
         </button>
       </div>
-      <p role="status" className="mt-1 min-h-4 text-xs text-ink-soft">
+      <p role="status" className={`text-xs text-ink-soft ${status === 'idle' ? '' : 'mt-1'}`}>
         {status === 'copied' ? 'Copied to the clipboard.' : status === 'selected' ? 'Selected: press Ctrl+C (⌘C on a Mac) to copy.' : ''}
       </p>
     </div>

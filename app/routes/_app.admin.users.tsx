@@ -130,7 +130,7 @@ function UserItem({ u, me, busy, errors, onDeactivate }: { u: UserRow; me: boole
   const coverageErrors = Boolean(errors.regions || errors.dailyCapacity || errors.capacityUnit)
   return (
     <li id={`user-${u.id}`} className="scroll-mt-20 px-4 py-3 target:bg-accent-soft/40">
-      <div className="grid gap-3 md:grid-cols-[minmax(0,1fr)_auto_9rem_auto] md:items-center">
+      <div className="grid gap-3 md:grid-cols-[minmax(0,1fr)_auto_11rem_auto] md:items-center">
         <div className="min-w-0">
           <div className="font-medium">
             {u.name}
@@ -154,11 +154,11 @@ function UserItem({ u, me, busy, errors, onDeactivate }: { u: UserRow; me: boole
         </Form>
         <div className="flex flex-wrap items-center gap-x-3 gap-y-1 md:flex-col md:items-start md:gap-0.5">
           <StateBadge value={u.active ? 'ok' : 'out-of-service'} label={u.active ? 'Active' : 'Deactivated'} />
-          <span className="font-mono text-xs text-ink-faint">seen {u.lastSeenAt ? u.lastSeenAt.slice(0, 16).replace('T', ' ') : 'never'}</span>
+          <span className="font-mono text-xs whitespace-nowrap text-ink-faint">seen {u.lastSeenAt ? u.lastSeenAt.slice(0, 16).replace('T', ' ') : 'never'}</span>
         </div>
         <div className="md:text-right">
           {u.active ? (
-            <button type="button" className={quietButtonClass} disabled={busy || me} onClick={onDeactivate} title={me ? 'You cannot deactivate yourself here' : undefined}>
+            <button type="button" className={`${quietButtonClass} disabled:cursor-not-allowed disabled:opacity-50`} disabled={busy || me} onClick={onDeactivate} title={me ? 'You cannot deactivate yourself here' : undefined}>
               Deactivate
             </button>
           ) : (
