@@ -16,6 +16,7 @@ import {
   LABELLINGS,
   LOOP_VERDICTS,
   NOTIFY_METHODS,
+  OUTBOX_STATUSES,
   OUTCOMES,
   POSITIONS,
   READING_KINDS,
@@ -485,20 +486,56 @@ export const emailOutbox = sqliteTable(
   'email_outbox',
   {
     id: id(),
+    // What the message is: 'digest', 'notice' (work is about to start) or 'all-clear'.
+    kind: text('kind').notNull().default('notice'),
+    // Recorded before sending and passed to the provider as its idempotency key: one digest per
+    // recipient per ISO week, one notice per visit and kind, however many processes try.
+    idempotencyKey: text('idempotency_key'),
+    recipientUserId: integer('recipient_user_id').references(() => users.id),
+    visitId: integer('visit_id').references(() => visits.id),
     toAddress: text('to_address').notNull(),
     subject: text('subject').notNull(),
     html: text('html').notNull(),
     text: text('text').notNull(),
-    status: text('status', { enum: ['queued', 'sent', 'failed'] })
+    status: text('status', { enum: OUTBOX_STATUSES })
       .notNull()
       .default('queued'),
     attempts: integer('attempts').notNull().default(0),
+    // When a queued or failed-for-now message may be tried again (after a 429 or 5xx, or a crash).
+    nextAttemptAt: text('next_attempt_at'),
     providerId: text('provider_id'),
     error: text('error'),
     createdAt: createdAt(),
     sentAt: text('sent_at'),
   },
-  (t) => [index('email_outbox_status_idx').on(t.status, t.createdAt)],
+  (t) => [
+    index('email_outbox_status_idx').on(t.status, t.createdAt),
+    uniqueIndex('email_outbox_key_idx').on(t.idempotencyKey).where(sql`idempotency_key is not null`),
+  ],
+)
+
+// Each person's digest: on or off, the weekday (1 = Monday … 7 = Sunday) and hour in the office's time.
+export const digestSettings = sqliteTable('digest_settings', {
+  userId: integer('user_id')
+    .primaryKey()
+    .references(() => users.id),
+  enabled: integer('enabled', { mode: 'boolean' }).notNull().default(true),
+  weekday: integer('weekday').notNull().default(1),
+  hour: integer('hour').notNull().default(7),
+})
+
+// Customers a person follows; none means the whole fleet.
+export const digestCustomers = sqliteTable(
+  'digest_customers',
+  {
+    userId: integer('user_id')
+      .notNull()
+      .references(() => users.id),
+    customerId: integer('customer_id')
+      .notNull()
+      .references(() => customers.id),
+  },
+  (t) => [primaryKey({ columns: [t.userId, t.customerId] })],
 )
 
 // Row totals kept in step by triggers, so a page never recounts millions of rows.

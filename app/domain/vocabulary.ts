@@ -49,6 +49,10 @@ export type VisitTask = (typeof VISIT_TASKS)[number]
 export const OUTCOMES = ['pass', 'fail'] as const
 export type Outcome = (typeof OUTCOMES)[number]
 
+/** An outgoing message's state: 'sending' is claimed by one process; 'failed' is final. */
+export const OUTBOX_STATUSES = ['queued', 'sending', 'sent', 'failed'] as const
+export type OutboxStatus = (typeof OUTBOX_STATUSES)[number]
+
 /** What a technician's daily capacity counts. */
 export const CAPACITY_UNITS = ['detectors', 'visits'] as const
 export type CapacityUnit = (typeof CAPACITY_UNITS)[number]
