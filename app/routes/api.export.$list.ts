@@ -6,7 +6,7 @@ import type { RouteAccess } from '~/domain/permissions'
 import type { Route } from './+types/api.export.$list'
 
 // Readable by whoever may read the list itself.
-export const handle = { access: { loader: 'view:fleet' } satisfies RouteAccess }
+export const handle = { access: { loader: 'view:fleet' } satisfies RouteAccess, sampleParams: { list: 'customers' } }
 
 /** Every row of a list under its current filter and sort, as a CSV download. */
 export async function loader({ request, params }: Route.LoaderArgs) {

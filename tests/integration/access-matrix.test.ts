@@ -13,7 +13,7 @@ interface BuiltRoute {
   parentId?: string
   path?: string
   index?: boolean
-  module: { default?: unknown; loader?: unknown; action?: unknown; handle?: { access?: RouteAccess; sampleQuery?: string; redirects?: boolean } }
+  module: { default?: unknown; loader?: unknown; action?: unknown; handle?: { access?: RouteAccess; sampleQuery?: string; sampleParams?: Record<string, string>; redirects?: boolean } }
 }
 
 // Every route comes from the production build, which is made from app/routes.ts: a new route
@@ -28,9 +28,9 @@ function fullPath(route: BuiltRoute): string {
   for (let r: BuiltRoute | undefined = route; r; r = r.parentId ? build.routes[r.parentId] : undefined) {
     if (r.path) parts.unshift(r.path)
   }
-  // Any :param gets the id of the first seeded row.
+  // Any :param gets the id of the first seeded row, unless the route names a value (a list's name).
   const query = [route.index ? 'index' : '', route.module.handle?.sampleQuery ?? ''].filter(Boolean).join('&')
-  return `/${parts.join('/')}`.replace(/:[A-Za-z]+/g, '1').replace(/\/+/g, '/') + (query ? `?${query}` : '')
+  return `/${parts.join('/')}`.replace(/:([A-Za-z]+)/g, (_, name: string) => route.module.handle?.sampleParams?.[name] ?? '1').replace(/\/+/g, '/') + (query ? `?${query}` : '')
 }
 
 describe('route × role matrix', () => {
