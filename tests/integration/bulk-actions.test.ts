@@ -4,6 +4,7 @@ import { bulkAction } from '~/.server/bulk/registry'
 import { applyBulk, previewBulk } from '~/.server/bulk/runner'
 import { resolveSelection } from '~/.server/bulk/selection'
 import { undoBulk } from '~/.server/bulk/undo'
+import { BULK_ACTIONS } from '~/components/bulk/catalog'
 import { contextFor, makeVisits } from '#tests/setup/bulk'
 import { seededDb, TEST_TODAY } from '#tests/setup/temp-db'
 
@@ -85,6 +86,14 @@ describe('bulk actions: each applies what its preview shows', () => {
     }
     undoBulk(data.db, applied.changeId!, lead().actor, TEST_TODAY)
     expect((q().prepare(`select state from detectors where id = ${ids[0]}`).get() as { state: string }).state).toBe('out-of-service')
+  })
+
+  it('offers in the console exactly the actions the server runs, for the same roles', () => {
+    for (const info of BULK_ACTIONS) {
+      const action = bulkAction(info.name)
+      expect(action, info.name).not.toBeNull()
+      expect({ entity: action!.entity, capability: action!.capability }).toEqual({ entity: info.entity, capability: info.capability })
+    }
   })
 
   it('selects all detectors a list filter matches, resolved on the server', () => {
