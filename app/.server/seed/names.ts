@@ -69,20 +69,9 @@ export const NAMED_CUSTOMERS = [
   { name: 'Westbrook Outlet Centres', kind: 'retail', sitePrefix: 'Westbrook' },
 ] as const
 
-// Public holidays the company closes for, named as date-holidays names them for the United States; a
-// substitute day (the Friday before a Saturday holiday, the Monday after a Sunday one) is kept with its
-// holiday. The region's other public holidays are worked.
-export const OBSERVED_HOLIDAYS = [
-  "New Year's Day",
-  "New Year's Day (substitute day)",
-  'Memorial Day',
-  'Independence Day',
-  'Independence Day (substitute day)',
-  'Labor Day',
-  'Thanksgiving Day',
-  'Christmas Day',
-  'Christmas Day (substitute day)',
-] as const
+// Public holidays the company closes for, named as date-holidays names them for the United States (a
+// substitute day goes with its holiday). The region's other public holidays are worked.
+export const OBSERVED_HOLIDAYS = ["New Year's Day", 'Memorial Day', 'Independence Day', 'Labor Day', 'Thanksgiving Day', 'Christmas Day'] as const
 
 // Days the whole company is closed, this many days after the seed's day (moved on to a working day).
 export const CLOSED_DAYS = [
