@@ -13,7 +13,7 @@ const RECENT_VISITS = 10
 // Public holidays are sent for this many days ahead, so the form can warn before the server refuses.
 const HOLIDAY_HORIZON_DAYS = 120
 
-export interface UsualTechnician {
+interface UsualTechnician {
   id: number
   name: string
   /** Of the site's latest finished visits (`of`), how many this technician did. */
@@ -21,7 +21,7 @@ export interface UsualTechnician {
   of: number
 }
 
-export interface OpenVisit {
+interface OpenVisit {
   visitId: number
   detectorId: number
   tag: string
@@ -85,7 +85,7 @@ const statements = perDb((db) => {
 })
 
 /** The technician who did most of the site's latest finished visits, while still an active technician. */
-export function usualTechnician(db: Db, siteId: number): UsualTechnician | null {
+function usualTechnician(db: Db, siteId: number): UsualTechnician | null {
   const row = statements(db).usual.get({ siteId })
   return row && row.eligible ? { id: row.id, name: row.name, visits: row.visits, of: row.of } : null
 }
