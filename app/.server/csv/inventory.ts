@@ -1,4 +1,4 @@
-import { and, eq, sql } from 'drizzle-orm'
+import { and, eq, getTableName, sql } from 'drizzle-orm'
 import type { SQLiteColumn, SQLiteTable } from 'drizzle-orm/sqlite-core'
 import { NEEDED_FOR_NEW, type InventoryRow } from '~/domain/import-schemas'
 import type { Db } from '../db'
@@ -239,14 +239,27 @@ function keyOf(node: Node): string {
 
 /** Writes the plan (inside the caller's transaction) and re-derives every detector added or changed. */
 export function applyInventory(db: Db, plan: InventoryPlan, today: string): number[] {
+  // Tens of thousands of rows: each insert is prepared once per table and set of columns given (a
+  // row built anew each time cost more than the insert itself). Flags are bound as 0 or 1.
+  const inserts = new Map<string, { get: (values: Values) => unknown }>()
+  const insert = (table: SQLiteTable & { id: SQLiteColumn }, values: Values): number => {
+    const keys = Object.keys(values).sort()
+    const shape = `${getTableName(table)}:${keys.join(',')}`
+    let statement = inserts.get(shape)
+    if (!statement) {
+      statement = db
+        .insert(table)
+        .values(Object.fromEntries(keys.map((k) => [k, sql.placeholder(k)])) as never)
+        .returning({ id: table.id })
+        .prepare() as unknown as { get: (values: Values) => unknown }
+      inserts.set(shape, statement)
+    }
+    const bound = Object.fromEntries(keys.map((k) => [k, typeof values[k] === 'boolean' ? (values[k] ? 1 : 0) : values[k]]))
+    return (statement.get(bound) as { id: number }).id
+  }
   const insertOrUpdate = (table: SQLiteTable & { id: SQLiteColumn; version: SQLiteColumn }, node: Node, base: Values, stamp: Values = {}) => {
     if (node.id === null) {
-      const inserted = db
-        .insert(table)
-        .values({ ...base, ...node.changes } as never)
-        .returning({ id: table.id })
-        .get() as { id: number }
-      node.id = inserted.id
+      node.id = insert(table, { ...base, ...node.changes })
     } else if (Object.keys(node.changes).length) {
       db.update(table)
         .set({ ...node.changes, ...stamp, version: sql`${table.version} + 1` } as never)
