@@ -2,6 +2,7 @@ import type { z } from 'zod'
 import type { Capability, Role } from '~/domain/permissions'
 import type { Db } from '../db'
 import type { CompanyCalendar } from './calendar'
+import type { VisitCreate } from './creates'
 
 /**
  * A bulk action is declared once, as a `BulkAction`, and listed in `registry.ts`; the runner does
@@ -41,6 +42,8 @@ export interface BulkChange {
   to: Fields
   /** The record's version as read; apply refuses the record if it is not still this. */
   version: number
+  /** A visit to book instead of a record to change (see creates.ts): `id` and `version` then name and fingerprint it. */
+  create?: VisitCreate
 }
 
 export interface BulkRefusal {

@@ -1,10 +1,11 @@
 import type { BulkAction } from './action'
+import { delayAudit } from './actions/delay-audit'
 import { acknowledge, assign, setState, unacknowledge } from './actions/detectors'
 import { note } from './actions/note'
 import { reschedule } from './actions/reschedule'
 
 // Every bulk action, by its URL name. A new action is one module under actions/ and one line here.
-const ACTIONS: ReadonlyArray<BulkAction<unknown>> = [reschedule, setState, assign, acknowledge, unacknowledge, note]
+const ACTIONS: ReadonlyArray<BulkAction<unknown>> = [reschedule, setState, assign, acknowledge, unacknowledge, note, delayAudit]
 
 /** The action of that name, or null. */
 export function bulkAction(name: string): BulkAction<unknown> | null {

@@ -5,6 +5,7 @@ import { rederive } from '../derivation'
 import { listsChanged } from '../list-query'
 import { bulkChanges } from '../schema'
 import { BulkError, type BulkAction, type BulkChange, type BulkContext, type BulkEntity, type BulkRefusal, type Fields } from './action'
+import { insertVisit } from './creates'
 import { writeFields } from './write'
 
 /** Rows of a preview or result sent back; the whole selection is still applied. */
@@ -49,6 +50,8 @@ export interface ChangedRecord {
   after: Fields
   /** The version the change left; undo refuses the record if it has moved on. */
   version: number
+  /** A visit the change booked: undo removes it instead of putting fields back. */
+  created?: true
 }
 
 interface Snapshot {
@@ -119,6 +122,7 @@ export function applyBulk<I>(db: Db, action: BulkAction<I>, input: I, ids: reado
       const stale = (now: number | string) => refused.push({ id: c.id, label: c.label, reason: `Changed since the preview (version ${seen} then, ${now} now); left as it is` })
       if (seen === undefined) refused.push({ id: c.id, label: c.label, reason: 'Not in the preview; left as it is' })
       else if (c.version !== seen) stale(c.version)
+      else if (c.create) done.push(insertVisit(db, { ...c, create: c.create }, ctx.actor.id))
       else if (!writeFields(db, c.entity, c.id, c.to, seen)) stale('another')
       else done.push({ entity: c.entity, id: c.id, label: c.label, before: c.from, after: c.to, version: seen + 1 })
     }

@@ -5,6 +5,7 @@ import { writeTx, type Db } from '../db'
 import { listsChanged } from '../list-query'
 import { bulkChanges } from '../schema'
 import { BulkError, type BulkEntity } from './action'
+import { removeVisit, workStarted } from './creates'
 import { rederiveDetectors, type ChangedRecord } from './runner'
 import { currentVersions, writeFields } from './write'
 
@@ -41,13 +42,14 @@ export function undoBulk(db: Db, changeId: number, actor: { id: number; role: Ro
       const versions = currentVersions(db, entity, mine.map((r) => r.id))
       for (const r of mine) if (versions.get(r.id) !== r.version) moved.push(r)
     }
+    for (const r of workStarted(db, records)) if (!moved.includes(r)) moved.push(r)
     if (moved.length > 0) {
       const names = moved.slice(0, NAMED).map((r) => r.label).join('; ')
       const more = moved.length > NAMED ? ` and ${moved.length - NAMED} more` : ''
       throw new BulkError(409, `Not undone: ${moved.length} of the records changed since (${names}${more}). Nothing was put back.`)
     }
     for (const r of records) {
-      if (!writeFields(db, r.entity, r.id, r.before, r.version)) throw new Error(`Record ${r.entity} ${r.id} moved during the undo`)
+      if (!(r.created ? removeVisit(db, r) : writeFields(db, r.entity, r.id, r.before, r.version))) throw new Error(`Record ${r.entity} ${r.id} moved during the undo`)
     }
     rederiveDetectors(db, records, today)
     const undoneAt = now.toISOString()

@@ -1,0 +1,223 @@
+import { z } from 'zod'
+import { addDays } from '~/domain/dates'
+import { auditDelay } from '~/domain/delay-audit'
+import { TROUBLE_REPORTING_SECONDS } from '~/domain/record-forms'
+import { OPEN_VISIT_STATUSES } from '~/domain/vocabulary'
+import type { Db } from '../../db'
+import { idParam, isoDate } from '../../list-query'
+import { bookingPlan } from '../../repos/triage-booking'
+import { BulkError, defineAction, type BulkChange, type BulkContext, type BulkRefusal } from '../action'
+import { createChange } from '../creates'
+import { technicians } from './rows'
+
+const input = z.object({
+  do: z.enum(['verify', 'correction-visits'], { error: "Say do: 'verify' or 'correction-visits'" }),
+  date: isoDate.optional(),
+  technicianId: idParam.optional(),
+})
+
+export interface AuditCounts {
+  agree: number
+  disagree: number
+  unknown: number
+  /** Sites of the selection whose agreed delay is past what NFPA 72 allows for reporting a trouble. */
+  policiesBeyond: number
+  /** Detectors of the selection set past that limit. */
+  settingsBeyond: number
+}
+
+const CHUNK = 5_000
+const plural = (n: number, word: string) => `${n} ${word}${n === 1 ? '' : 's'}`
+
+function chunks<T>(ids: readonly number[], read: (chunk: readonly number[], marks: string) => T[]): T[] {
+  const out: T[] = []
+  for (let i = 0; i < ids.length; i += CHUNK) {
+    const chunk = ids.slice(i, i + CHUNK)
+    out.push(...read(chunk, chunk.map(() => '?').join(',')))
+  }
+  return out
+}
+
+/** Counts per outcome over the selection, added up in SQL chunk by chunk: the fleet never comes into memory. */
+export function countSelection(db: Db, ids: readonly number[]): AuditCounts {
+  const counts: AuditCounts = { agree: 0, disagree: 0, unknown: 0, policiesBeyond: 0, settingsBeyond: 0 }
+  const sites = new Set<number>()
+  chunks(ids, (chunk, marks) => {
+    // Raw SQL: count(*) per stored outcome and the settings past the limit, on the detectors' own rows.
+    const rows = db.$client
+      .prepare(
+        `select d.delay_agreement as outcome, count(*) as n, sum(d.delay_seconds > ${TROUBLE_REPORTING_SECONDS}) as beyond
+           from detectors d where d.id in (${marks}) group by d.delay_agreement`,
+      )
+      .all(...chunk) as Array<{ outcome: 'agree' | 'disagree' | 'unknown'; n: number; beyond: number | null }>
+    for (const r of rows) {
+      counts[r.outcome] += r.n
+      counts.settingsBeyond += r.beyond ?? 0
+    }
+    const far = db.$client
+      .prepare(`select distinct s.id from detectors d join sites s on s.id = d.site_id where d.id in (${marks}) and s.delay_policy_seconds > ${TROUBLE_REPORTING_SECONDS}`)
+      .all(...chunk) as Array<{ id: number }>
+    for (const s of far) sites.add(s.id)
+    return []
+  })
+  counts.policiesBeyond = sites.size
+  return counts
+}
+
+interface AuditRow {
+  id: number
+  tag: string
+  siteId: number
+  site: string
+  region: string
+  delaySeconds: number | null
+  delayObservedOn: string | null
+  policySeconds: number
+  version: number
+}
+
+function auditRows(db: Db, ids: readonly number[], outcome: 'agree' | 'disagree'): AuditRow[] {
+  return chunks(ids, (chunk, marks) =>
+    db.$client
+      .prepare(
+        `select d.id, d.tag, d.site_id as siteId, s.name as site, s.region, d.delay_seconds as delaySeconds,
+                d.delay_observed_on as delayObservedOn, s.delay_policy_seconds as policySeconds, d.version
+           from detectors d join sites s on s.id = d.site_id
+          where d.id in (${marks}) and d.delay_agreement = ? order by d.id`,
+      )
+      .all(...chunk, outcome) as AuditRow[],
+  )
+}
+
+const setting = (s: number) => (s === 0 ? 'at once' : s % 60 === 0 ? `${s / 60} min` : `${s} s`)
+
+/** What a technician is sent to do about one site's disagreeing detectors, in the visit's notes. */
+function correctionNotes(rows: readonly AuditRow[]): string {
+  const lines = rows.slice(0, 40).map((r) => `${r.tag}: set ${setting(r.delaySeconds ?? 0)}, agreed ${setting(r.policySeconds)}`)
+  if (rows.length > 40) lines.push(`and ${rows.length - 40} more`)
+  return [
+    'Delay setting correction. Notify the monitoring company and site management first.',
+    "Check each module's delay setting per the device's instructions and coordinate any change with the monitoring company; re-test and record the setting as found and as left.",
+    'HVAC staff never alter the fire alarm panel.',
+    ...(rows.some((r) => r.policySeconds > TROUBLE_REPORTING_SECONDS || (r.delaySeconds ?? 0) > TROUBLE_REPORTING_SECONDS)
+      ? [`A delay past ${TROUBLE_REPORTING_SECONDS} s is beyond what NFPA 72 allows for reporting a trouble: verify with the AHJ.`]
+      : []),
+    ...lines,
+  ].join('\n')
+}
+
+function verify(db: Db, ids: readonly number[], ctx: BulkContext, counts: AuditCounts) {
+  const changes: BulkChange[] = []
+  const refused: BulkRefusal[] = []
+  for (const r of auditRows(db, ids, 'agree')) {
+    const label = `${r.tag} · ${r.site}`
+    if (r.delaySeconds === null) continue
+    if (r.delayObservedOn === ctx.today) refused.push({ id: r.id, label, reason: `Already verified on ${ctx.today}` })
+    else changes.push({ entity: 'detector', id: r.id, label, from: { delayObservedOn: r.delayObservedOn }, to: { delayObservedOn: ctx.today }, version: r.version })
+  }
+  const left = counts.disagree + counts.unknown
+  const summary = `Mark ${plural(changes.length, 'agreeing delay setting')} verified on ${ctx.today}${left ? `; ${left} that disagree or were never recorded are left out` : ''}`
+  return { changes, refused, summary }
+}
+
+/** Each site's usual technician, read by the triage booking's own plan from one detector per site. */
+function usualBySite(db: Db, oneDetectorPerSite: readonly number[], today: string): Map<number, { id: number; name: string } | null> {
+  const out = new Map<number, { id: number; name: string } | null>()
+  for (let i = 0; i < oneDetectorPerSite.length; i += 500) {
+    for (const s of bookingPlan(db, oneDetectorPerSite.slice(i, i + 500), 'repair', today).sites) out.set(s.siteId, s.usual && { id: s.usual.id, name: s.usual.name })
+  }
+  return out
+}
+
+function correctionVisits(db: Db, ids: readonly number[], i: z.infer<typeof input>, ctx: BulkContext) {
+  if (i.date !== undefined && i.date < ctx.today) throw new BulkError(400, `Pick today (${ctx.today}) or a later date`)
+  let chosen: { id: number; name: string } | null = null
+  if (i.technicianId !== undefined) {
+    const t = technicians(db, [i.technicianId]).get(i.technicianId)
+    if (!t || t.role !== 'technician' || !t.active) throw new BulkError(400, 'Choose an active technician, or leave it to each site’s usual one')
+    chosen = t
+  }
+  const rows = auditRows(db, ids, 'disagree')
+  const bySite = new Map<number, AuditRow[]>()
+  for (const r of rows) bySite.set(r.siteId, [...(bySite.get(r.siteId) ?? []), r])
+
+  // A detector already on an open visit for a functional test is left there: add the check to that visit.
+  const open = new Map<number, { visitId: number; on: string }>()
+  chunks(
+    rows.map((r) => r.id),
+    (chunk, marks) =>
+      db.$client
+        .prepare(
+          `select vd.detector_id as detectorId, v.id as visitId, v.scheduled_on as "on" from visit_detectors vd join visits v on v.id = vd.visit_id
+            where vd.detector_id in (${marks}) and v.status in (${OPEN_VISIT_STATUSES.map(() => '?').join(',')}) and (',' || vd.tasks || ',') like '%,functional,%'`,
+        )
+        .all(...chunk, ...OPEN_VISIT_STATUSES) as Array<{ detectorId: number; visitId: number; on: string }>,
+  ).forEach((o) => open.set(o.detectorId, o))
+
+  const usual = usualBySite(db, [...bySite.values()].map((rs) => rs[0].id), ctx.today)
+  const changes: BulkChange[] = []
+  const refused: BulkRefusal[] = []
+  for (const [siteId, all] of bySite) {
+    const { site, region } = all[0]
+    const booked = all.filter((r) => open.has(r.id))
+    for (const r of booked) refused.push({ id: r.id, label: `${r.tag} · ${site}`, reason: `Already on open visit ${open.get(r.id)!.visitId} (${open.get(r.id)!.on}) for a functional test; add the delay check there` })
+    const todo = all.filter((r) => !open.has(r.id))
+    if (todo.length === 0) continue
+    let date: string
+    try {
+      const cal = ctx.calendar.forRegion(region)
+      date = i.date ?? cal.nextWorkingDay(addDays(ctx.today, 1))
+      const off = i.date ? ctx.calendar.dayOff(region, i.date) : null
+      if (off) {
+        for (const r of todo) refused.push({ id: r.id, label: `${r.tag} · ${site}`, reason: `${i.date} is not a working day at ${site} (${off}); the next one is ${cal.nextWorkingDay(i.date!)}` })
+        continue
+      }
+    } catch {
+      for (const r of todo) refused.push({ id: r.id, label: `${r.tag} · ${site}`, reason: `Unknown holiday region '${region}' for ${site}` })
+      continue
+    }
+    const tech = chosen ?? usual.get(siteId) ?? null
+    const create = {
+      siteId,
+      kind: 'repair' as const,
+      scheduledOn: date,
+      technicianId: tech?.id ?? null,
+      notes: correctionNotes(todo),
+      detectors: todo.map((r) => ({ detectorId: r.id, tasks: ['functional' as const] })),
+    }
+    const who = tech ? tech.name : 'no technician yet'
+    changes.push(createChange(`${site} · ${date} · ${who}`, create, { site, kind: 'repair', scheduledOn: date, technician: who, detectors: todo.length }))
+  }
+  changes.sort((a, b) => a.label.localeCompare(b.label))
+  refused.sort((a, b) => a.label.localeCompare(b.label))
+  const detectorCount = changes.reduce((n, c) => n + (c.create?.detectors.length ?? 0), 0)
+  const summary = `Book ${plural(changes.length, 'correction visit')} for ${plural(detectorCount, 'disagreeing detector')}, one per site`
+  return { changes, refused, summary }
+}
+
+/**
+ * The delay-setting audit over a selection (or the fleet through a list filter): counts per outcome
+ * from the stored agreement, then either marks agreeing settings verified today, or books one
+ * 'repair' visit per site for the detectors whose setting disagrees with the site's policy.
+ */
+export const delayAudit = defineAction({
+  name: 'delay-audit',
+  title: 'Delay-setting audit',
+  entity: 'detector',
+  capability: 'schedule:visits',
+  input,
+  preview(db, ids, i, ctx) {
+    const counts = countSelection(db, ids)
+    const plan = i.do === 'verify' ? verify(db, ids, ctx, counts) : correctionVisits(db, ids, i, ctx)
+    const cautions: string[] = []
+    if (counts.policiesBeyond > 0 || counts.settingsBeyond > 0) {
+      cautions.push(
+        `${plural(counts.policiesBeyond, 'site')} agreed, and ${plural(counts.settingsBeyond, 'detector')} set to, a delay past the ${TROUBLE_REPORTING_SECONDS} s NFPA 72 allows for reporting a trouble: verify with the AHJ.`,
+      )
+    }
+    return { ...plan, extra: { audit: counts, limitSeconds: TROUBLE_REPORTING_SECONDS, cautions } }
+  },
+})
+
+/** The engine's advice for one detector, for the page and the file. */
+export const adviceFor = (delaySeconds: number | null, policySeconds: number) => auditDelay({ delaySeconds, policySeconds }).action
