@@ -74,8 +74,8 @@ const ENVIRONMENTS = opts([
   ['humid', 'Humid or wet'],
 ])
 const PLACEMENTS = opts([
-  ['through-supervisory', 'In series through the supervisory contact'],
-  ['across-pair', 'Across the pair, not through the supervisory contact'],
+  ['through-supervisory', 'Through the supervisory contact'],
+  ['across-pair', 'Across the pair'],
 ])
 const TERMINALS = opts([
   ['NO', 'NO'],
@@ -138,7 +138,7 @@ export default function EditDetector({ loaderData, actionData }: Route.Component
           note="Record what is there. The panel and the alarm wiring belong to the fire alarm contractor: HVAC staff do not alter them."
         >
           <NumberField name="eolOhms" label={LABELS.eolOhms} unit="Ω" hint="As marked on the resistor, such as 15000." />
-          <SelectField name="eolPlacement" label={LABELS.eolPlacement} options={PLACEMENTS} />
+          <SelectField name="eolPlacement" label={LABELS.eolPlacement} options={PLACEMENTS} hint="In series through the supervisory contact, or straight across the pair." />
           <SelectField name="alarmTerminal" label={LABELS.alarmTerminal} options={TERMINALS} hint="Labelled as on the module." />
           <SelectField name="supervisoryTerminal" label={LABELS.supervisoryTerminal} options={TERMINALS} hint="Labelled as on the module." />
           <SelectField name="conductorAwg" label={LABELS.conductorAwg} options={AWG_SIZES.map((a) => ({ value: a, label: `${a} AWG` }))} />

@@ -26,7 +26,7 @@ const inputBase =
   'min-h-11 w-full min-w-0 rounded-sm border bg-panel px-2.5 py-2 text-base text-ink placeholder:text-ink-faint focus:border-accent sm:min-h-9 sm:py-1.5 sm:text-sm'
 const inputTone = (invalid: boolean) => (invalid ? 'border-late ring-1 ring-late/40' : 'border-line-strong')
 
-function useField(name: string) {
+function useField(name: string, hint?: string) {
   const { values, errors, cautions } = useContext(FieldContext)
   const id = useId()
   const error = errors[name]
@@ -38,24 +38,24 @@ function useField(name: string) {
     caution,
     defaultValue: value === null || value === undefined ? '' : String(value),
     raw: value,
-    described: [error && `${id}-error`, caution && `${id}-caution`, `${id}-hint`].filter(Boolean).join(' '),
+    described: [error && `${id}-error`, caution && `${id}-caution`, hint && `${id}-hint`].filter(Boolean).join(' ') || undefined,
   }
 }
 
 function Messages({ id, error, caution, hint }: { id: string; error?: string; caution?: string; hint?: string }) {
   return (
     <>
-      {hint && (
-        <span id={`${id}-hint`} className="text-xs font-normal text-ink-faint">
-          {hint}
-        </span>
-      )}
       {error && (
         <span id={`${id}-error`} className="flex gap-1 text-sm font-medium text-late">
           <span aria-hidden="true" className="font-mono">
             !
           </span>
           {error}
+        </span>
+      )}
+      {hint && (
+        <span id={`${id}-hint`} className="text-xs font-normal text-ink-faint">
+          {hint}
         </span>
       )}
       {caution && (
@@ -96,7 +96,7 @@ export function TextField({
   mono,
   list,
 }: FieldProps & { mode?: 'numeric' | 'decimal' | 'email' | 'tel' | 'date' | 'text'; autoComplete?: string; mono?: boolean; list?: string }) {
-  const f = useField(name)
+  const f = useField(name, hint)
   const type = mode === 'email' || mode === 'tel' || mode === 'date' ? mode : 'text'
   return (
     <div className={cell(wide)}>
@@ -132,7 +132,7 @@ export function TextField({
 export const NumberField = (p: FieldProps & { decimals?: boolean }) => <TextField {...p} mode={p.decimals ? 'decimal' : 'numeric'} />
 
 export function TextAreaField({ name, label, hint, wide = true }: FieldProps) {
-  const f = useField(name)
+  const f = useField(name, hint)
   return (
     <div className={cell(wide)}>
       <label htmlFor={f.id} className={labelClass}>
@@ -161,7 +161,7 @@ export function SelectField({
   blank,
   onValue,
 }: FieldProps & { options: ReadonlyArray<{ value: string | number; label: string }>; blank?: string; onValue?: (value: string) => void }) {
-  const f = useField(name)
+  const f = useField(name, hint)
   return (
     <div className={cell(wide)}>
       <label htmlFor={f.id} className={labelClass}>
@@ -189,7 +189,7 @@ export function SelectField({
 }
 
 export function CheckField({ name, label, hint, wide }: FieldProps) {
-  const f = useField(name)
+  const f = useField(name, hint)
   return (
     <div className={cell(wide)}>
       {/* An unticked box posts nothing: the hidden "false" before it stands in, and a ticked box's later value wins. */}
