@@ -395,3 +395,121 @@ describe('shiftVisits: without rolling on', () => {
     expect(r.unplaced).toEqual([{ id: 2, reason: 'Technician 5 is full on 2026-03-11: 2 of 6 left, the visit needs 4' }])
   })
 })
+
+// ---------------------------------------------------------------------------------------------
+// Regions, capacity in visits, work already booked, most overdue first.
+
+describe('planCycle: regions, visits as capacity, booked work and urgency', () => {
+  it('gives each site only to a technician covering its region, and says when none does', () => {
+    const detectors = [...site(1, 2, 'US-TX'), ...site(2, 2, 'US-OR'), ...site(3, 2, 'US-NY')]
+    const plan = planCycle({
+      detectors,
+      from: '2026-03-09',
+      to: '2026-03-13',
+      technicians: [{ id: 1, dailyCapacity: 10, regions: ['US-TX'] }, { id: 2, dailyCapacity: 10, regions: ['us-or', 'US-WA'] }],
+    })
+    expect(plan.visits.map((v) => [v.siteId, v.technicianId])).toEqual([[1, 1], [2, 2]])
+    expect(plan.unplaced.map((u) => [u.siteId, u.reason])).toEqual([[3, 'No chosen technician covers region US-NY'], [3, 'No chosen technician covers region US-NY']])
+  })
+
+  it('places the most overdue site first when the days are short', () => {
+    const detectors = [...site(1, 4).map((d) => ({ ...d, dueOn: '2026-04-01' })), ...site(2, 4).map((d) => ({ ...d, dueOn: '2026-01-05' })), ...site(3, 4)]
+    const plan = planCycle({ detectors, from: '2026-03-09', to: '2026-03-10', technicians: [{ id: 1, dailyCapacity: 4 }] })
+    expect(plan.visits.map((v) => [v.siteId, v.date])).toEqual([[1, '2026-03-10'], [2, '2026-03-09']])
+    expect(new Set(plan.unplaced.map((u) => u.siteId))).toEqual(new Set([3]))
+  })
+
+  it('counts visits for a technician whose capacity is in visits, after the work already booked', () => {
+    const detectors = [...site(1, 9), ...site(2, 9), ...site(3, 9)]
+    const plan = planCycle({
+      detectors,
+      from: '2026-03-09',
+      to: '2026-03-10',
+      technicians: [{ id: 1, dailyCapacity: 2, capacityUnit: 'visits' }],
+      booked: [{ technicianId: 1, date: '2026-03-09', amount: 1 }],
+    })
+    expect(plan.visits.map((v) => [v.siteId, v.date, v.detectorIds.length])).toEqual([[1, '2026-03-09', 9], [2, '2026-03-10', 9], [3, '2026-03-10', 9]])
+  })
+})
+
+const arbRegionCycle = fc.record({
+  sites: fc.array(fc.record({ count: fc.integer({ min: 1, max: 12 }), region: fc.constantFrom(...REGIONS), due: fc.option(fc.integer({ min: 0, max: 400 }), { nil: undefined }) }), { maxLength: 25 }),
+  technicians: fc.uniqueArray(
+    fc.record({
+      id: fc.integer({ min: 1, max: 6 }),
+      dailyCapacity: fc.integer({ min: 0, max: 14 }),
+      capacityUnit: fc.constantFrom<'detectors' | 'visits'>('detectors', 'visits'),
+      regions: fc.option(fc.subarray(REGIONS, { minLength: 1 }), { nil: undefined }),
+    }),
+    { selector: (t) => t.id, maxLength: 4 },
+  ),
+  booked: fc.array(fc.record({ tech: fc.integer({ min: 1, max: 6 }), day: fc.integer({ min: 0, max: 60 }), amount: fc.integer({ min: 1, max: 6 }) }), { maxLength: 8 }),
+  range: arbRange,
+})
+
+describe('planCycle: region and capacity properties', () => {
+  it('never sends a technician outside their regions or over their day (in their own unit, with booked work), never on a closed day, and loses no detector', () => {
+    const closed = ['2026-11-18', '2026-12-02']
+    const calendars = (region: string) => calendarFor(region, { extraClosedDays: closed })
+    fc.assert(
+      fc.property(arbRegionCycle, ({ sites, technicians, booked, range }) => {
+        let id = 1
+        const detectors = sites.flatMap((s, i) => Array.from({ length: s.count }, () => ({ id: id++, siteId: i + 1, region: s.region, dueOn: s.due === undefined ? undefined : addDays('2025-06-01', s.due) })))
+        const bookedLoad = booked.map((b) => ({ technicianId: b.tech, date: addDays(START, b.day), amount: b.amount }))
+        const plan = planCycle({ detectors, technicians, booked: bookedLoad, calendars, ...range })
+        const byId = new Map(detectors.map((d) => [d.id, d]))
+        const load = new Map<string, number>()
+        for (const b of bookedLoad) load.set(`${b.technicianId}|${b.date}`, (load.get(`${b.technicianId}|${b.date}`) ?? 0) + b.amount)
+        for (const v of plan.visits) {
+          const tech = technicians.find((t) => t.id === v.technicianId)!
+          const region = byId.get(v.detectorIds[0])!.region
+          if (tech.regions) expect(tech.regions).toContain(region)
+          expect(calendars(region).isWorkingDay(v.date)).toBe(true)
+          expect(closed).not.toContain(v.date)
+          const k = `${v.technicianId}|${v.date}`
+          load.set(k, (load.get(k) ?? 0) + (tech.capacityUnit === 'visits' ? 1 : v.detectorIds.length))
+        }
+        for (const v of plan.visits) {
+          const tech = technicians.find((t) => t.id === v.technicianId)!
+          const k = `${v.technicianId}|${v.date}`
+          const already = bookedLoad.filter((b) => `${b.technicianId}|${b.date}` === k).reduce((n, b) => n + b.amount, 0)
+          // Booked work may already fill a day; the plan adds nothing to a day past its capacity.
+          expect(load.get(k)! - already === 0 || load.get(k)! <= tech.dailyCapacity).toBe(true)
+        }
+        const seen = [...plan.visits.flatMap((v) => v.detectorIds), ...plan.unplaced.map((u) => u.detectorId)]
+        expect(seen.length).toBe(detectors.length)
+        expect(new Set(seen).size).toBe(detectors.length)
+      }),
+      { numRuns: 200 },
+    )
+  })
+
+  it('books sites of one size and region no later than any less overdue site', () => {
+    fc.assert(
+      fc.property(
+        fc.array(fc.integer({ min: 0, max: 300 }), { minLength: 1, maxLength: 30 }),
+        fc.integer({ min: 1, max: 6 }),
+        fc.integer({ min: 1, max: 3 }),
+        arbRange,
+        (dues, size, techCount, range) => {
+          let id = 1
+          const detectors = dues.flatMap((due, i) => Array.from({ length: size }, () => ({ id: id++, siteId: i + 1, region: 'US-OR', dueOn: addDays('2025-06-01', due) })))
+          const technicians = Array.from({ length: techCount }, (_, i) => ({ id: i + 1, dailyCapacity: 8 }))
+          const plan = planCycle({ detectors, technicians, ...range })
+          const dateOf = new Map(plan.visits.map((v) => [v.siteId, v.date]))
+          dues.forEach((a, i) =>
+            dues.forEach((b, j) => {
+              if (a >= b) return
+              // Site i is more overdue than site j: j may not be booked earlier, nor booked while i is left out.
+              if (dateOf.has(j + 1)) {
+                expect(dateOf.has(i + 1)).toBe(true)
+                expect(dateOf.get(i + 1)! <= dateOf.get(j + 1)!).toBe(true)
+              }
+            }),
+          )
+        },
+      ),
+      { numRuns: 200 },
+    )
+  })
+})

@@ -9,12 +9,25 @@ export interface CycleDetector {
   region: string
   /** Carried for the caller's time estimates; capacity here counts detectors, not minutes. */
   minutes?: number
+  /** When its cleaning falls due: the site whose earliest due day is oldest (most overdue) is placed first. */
+  dueOn?: IsoDate
 }
 
 export interface Technician {
   id: number
-  /** Detectors one technician can clean in a working day. */
+  /** Detectors one technician can clean in a working day (visits, with capacityUnit 'visits'). */
   dailyCapacity: number
+  /** What dailyCapacity counts; detectors unless said. */
+  capacityUnit?: 'detectors' | 'visits'
+  /** The site regions the technician covers (ISO 3166-2); left out, every region. */
+  regions?: string[]
+}
+
+/** Work a technician already has on a day, in the technician's own capacity unit. */
+export interface CycleBooked {
+  technicianId: number
+  date: IsoDate
+  amount: number
 }
 
 export interface PlannedVisit {
@@ -42,6 +55,8 @@ export interface CycleInput {
   to: IsoDate
   technicians: Technician[]
   calendars?: CalendarLookup
+  /** Work already booked, counted against each technician's day. */
+  booked?: CycleBooked[]
 }
 
 /** Detectors (or any count) booked per technician per day. */
@@ -75,8 +90,8 @@ function calendarLookup(lookup: CalendarLookup = (r) => calendarFor(r)) {
 const plural = (n: number, word: string) => `${n} ${word}${n === 1 ? '' : 's'}`
 
 /**
- * Spreads a cleaning cycle over the working days of `from`..`to`. Sites are taken in siteId order;
- * each goes on the earliest working day (of its own region) where one technician has room for all
+ * Spreads a cleaning cycle over the working days of `from`..`to`. Sites are taken most overdue first
+ * (earliest `dueOn`), then in siteId order; each goes, among the technicians covering its region, on the earliest working day (of its own region) where one technician has room for all
  * of its detectors, to the technician with the most room left that day, so the load spreads. A site
  * bigger than any technician's day is split over consecutive working days for one technician. What
  * cannot be placed is listed with the reason; no detector is dropped.
@@ -104,24 +119,32 @@ export function planCycle(input: CycleInput): CyclePlan {
     else groups.set(key, [d])
   }
 
-  const techs = uniqueById(input.technicians)
-    .map((t) => ({ id: t.id, cap: Math.floor(Math.max(0, t.dailyCapacity)) }))
+  const allTechs = uniqueById(input.technicians)
+    .map((t): Tech => ({ id: t.id, cap: Math.floor(Math.max(0, t.dailyCapacity)), perVisit: t.capacityUnit === 'visits', regions: t.regions?.map((r) => r.trim().toUpperCase()) }))
     .filter((t) => t.cap > 0)
-  const maxCap = Math.max(0, ...techs.map((t) => t.cap))
   const rangeOk = isIsoDate(input.from) && isIsoDate(input.to) && input.from <= input.to
   const calendar = calendarLookup(input.calendars)
   const daysByRegion = new Map<string, IsoDate[]>()
   const load = new Load()
+  for (const b of input.booked ?? []) load.add(b.technicianId, b.date, b.amount)
   const total = new Map<number, number>() // detectors given to each technician so far, for balance
+  const perVisit = new Set(allTechs.filter((t) => t.perVisit).map((t) => t.id))
 
   const book = (siteId: number, date: IsoDate, techId: number, ds: CycleDetector[]) => {
     visits.push({ siteId, date, technicianId: techId, detectorIds: ds.map((d) => d.id) })
-    load.add(techId, date, ds.length)
+    load.add(techId, date, perVisit.has(techId) ? 1 : ds.length)
     total.set(techId, (total.get(techId) ?? 0) + ds.length)
   }
 
-  for (const group of groups.values()) {
+  // Most overdue first: the site whose earliest due day is oldest; sites with no due day last, in siteId order.
+  const earliest = (g: CycleDetector[]) => g.reduce<string | undefined>((m, d) => (d.dueOn !== undefined && (m === undefined || d.dueOn < m) ? d.dueOn : m), undefined)
+  const ordered = [...groups.values()].map((g) => ({ g, due: earliest(g) }))
+  ordered.sort((a, b) => (a.due === b.due ? 0 : a.due === undefined ? 1 : b.due === undefined ? -1 : a.due < b.due ? -1 : 1) || a.g[0].siteId - b.g[0].siteId)
+
+  for (const { g: group } of ordered) {
     const { siteId, region } = group[0]
+    const techs = allTechs.filter((t) => !t.regions || t.regions.includes(region.toUpperCase()))
+    const maxCap = Math.max(0, ...techs.map((t) => (t.perVisit ? Infinity : t.cap)))
     if (!rangeOk) {
       reject(group, 'The date range is not valid: give two dates with the start on or before the end')
       continue
@@ -137,8 +160,12 @@ export function planCycle(input: CycleInput): CyclePlan {
       reject(group, `No working day in the range for region ${region}`)
       continue
     }
-    if (techs.length === 0) {
+    if (allTechs.length === 0) {
       reject(group, 'No technician with daily capacity')
+      continue
+    }
+    if (techs.length === 0) {
+      reject(group, `No chosen technician covers region ${region}`)
       continue
     }
 
@@ -149,7 +176,7 @@ export function planCycle(input: CycleInput): CyclePlan {
       continue
     }
 
-    const run = splitRun(days, techs, load, total, group.length)
+    const run = splitRun(days, techs.filter((t) => !t.perVisit), load, total, group.length)
     if (!run) {
       reject(group, 'No working day left in the range with capacity')
       continue
@@ -177,7 +204,7 @@ export function planCycle(input: CycleInput): CyclePlan {
   }
 }
 
-type Tech = { id: number; cap: number }
+type Tech = { id: number; cap: number; perVisit?: boolean; regions?: string[] }
 
 function uniqueById<T extends { id: number }>(list: T[]): T[] {
   const byId = new Map<number, T>()
@@ -190,7 +217,8 @@ function wholeSiteSlot(days: IsoDate[], techs: Tech[], load: Load, total: Map<nu
   for (const date of days) {
     let best: { techId: number; room: number; given: number } | null = null
     for (const t of techs) {
-      const room = t.cap - load.get(t.id, date)
+      // A technician counting visits has room for any site while one visit is left; room is then weighed in detectors.
+      const room = t.perVisit ? (t.cap - load.get(t.id, date) >= 1 ? (t.cap - load.get(t.id, date)) * n : -1) : t.cap - load.get(t.id, date)
       if (room < n) continue
       const given = total.get(t.id) ?? 0
       if (!best || room > best.room || (room === best.room && given < best.given)) best = { techId: t.id, room, given }
