@@ -116,15 +116,15 @@ export function seed(sqlite: Database.Database, scale: Scale, today: IsoDate): S
   const officeId = DEMO_USERS.findIndex((u) => u.role === 'office') + 1
 
   // The company's own closed days lie ahead of `today`, each on what would otherwise be a working day.
-  const closedDays = CLOSED_DAYS.map((d) => ({ on: calendarFor('US').nextWorkingDay(addDays(today, d.after)), label: d.label }))
+  const closedDays = CLOSED_DAYS.map((d) => ({ day: calendarFor('US').nextWorkingDay(addDays(today, d.after)), label: d.label }))
   // Past visits kept off weekends and the national public holidays (one calendar: reading a region's
-  // holidays for every past year costs more than the rest of a small seed); bookings ahead also keep
+  // holidays for every past year costs more than the rest of a small seed); planned visits also keep
   // off the site region's own holidays and the company's closed days.
   const pastCalendar = calendarFor('US')
   const calendars = new Map<string, WorkCalendar>()
   const calendarOf = (region: string) => {
     let cal = calendars.get(region)
-    if (!cal) calendars.set(region, (cal = calendarFor(region, { extraClosedDays: closedDays.map((d) => d.on) })))
+    if (!cal) calendars.set(region, (cal = calendarFor(region, { extraClosedDays: closedDays.map((d) => d.day) })))
     return cal
   }
 
@@ -139,7 +139,7 @@ export function seed(sqlite: Database.Database, scale: Scale, today: IsoDate): S
     DETECTOR_MODELS.forEach((m, i) =>
       insModel.run(i + 1, m.name, m.labelled, m.aux, m.standby, m.alarm, m.vmin, m.vmax, m.pmin, m.pmax, m.slow, m.shigh),
     )
-    for (const d of closedDays) insClosed.run(d.on, d.label)
+    for (const d of closedDays) insClosed.run(d.day, d.label)
   })()
 
   // Customers: the named ones first, then generated chains up to the scale's count.
