@@ -171,6 +171,8 @@ export function exportCsv(db: Db, name: ExportListName, request: Request): Reada
   const csv = stringify({ header: true, columns, cast: CAST, bom: false })
   const source = Readable.from(records(), { highWaterMark: 256 })
   source.on('error', (e) => csv.destroy(e))
+  // A client that stops reading ends the walk too, closing the read connection.
+  csv.on('close', () => source.destroy())
   source.pipe(csv)
   return Readable.toWeb(csv) as unknown as WebStream<Uint8Array> as unknown as ReadableStream<Uint8Array>
 }
