@@ -86,10 +86,14 @@ group('audit sentences', () => {
     [{ action: 'customer.update', entity: 'customer', entityId: '7', before: { contactPhone: '555-0100', version: 2 }, after: { contactPhone: '555-0199', version: 3 } }, 'Priya Castellano changed the contact phone of customer Copper Kettle Kitchens'],
     [{ action: 'site.update', entity: 'site', entityId: '5', before: { ahjName: 'A', name: 'X' }, after: { ahjName: 'B', name: 'Harbor Lantern Eastlake' } }, 'Priya Castellano changed the ahj name and name of site Harbor Lantern Eastlake'],
     [{ action: 'detector.update', entity: 'detector', entityId: '10', before: { delaySeconds: 10 }, after: { delaySeconds: 20 } }, 'Priya Castellano changed the delay seconds of detector SD-101 at Harbor Lantern Eastlake'],
-    [{ action: 'import.inventory', entity: 'import', after: { fileName: 'fleet.csv', sites: 2, detectors: 14 } }, 'Priya Castellano imported inventory from “fleet.csv”: 2 sites, 14 detectors'],
-    [{ action: 'import.events', entity: 'import', after: { fileName: 'panel.csv', count: 1204 } }, 'Priya Castellano imported 1,204 events from “panel.csv”'],
+    [{ action: 'import.inventory', entity: 'import', entityId: 'a1b2', after: { source: 'old-system', file: 'fleet.csv', rows: 16, sitesAdded: 2, sitesUpdated: 0, detectorsAdded: 14 } }, 'Priya Castellano imported inventory from “fleet.csv”: 2 sites added, 14 detectors added'],
+    [{ action: 'import.events', entity: 'import', entityId: 'c3d4', after: { source: 'panel', file: 'panel.csv', rows: 1300, eventsAdded: 1204, alreadyPresent: 90 } }, 'Priya Castellano imported 1,204 events from “panel.csv” (90 events already there)'],
+    [{ action: 'calendar.close', entity: 'closed_day', entityId: '2026-12-24', after: { label: 'Company holiday' } }, `Priya Castellano closed ${formatDay('2026-12-24')} on the company calendar: “Company holiday”`],
+    [{ action: 'calendar.reopen', entity: 'closed_day', entityId: '2026-12-24' }, `Priya Castellano reopened ${formatDay('2026-12-24')} on the company calendar`],
+    [{ action: 'bulk.set-state', entity: 'detector', entityId: '79', after: { summary: 'Out of service: 2 detectors', count: 2, records: [10, 11] } }, 'Priya Castellano changed the state of 2 detectors in one change: “Out of service: 2 detectors”'],
     [{ action: 'widget.frobnicate', entity: 'detector', entityId: '10' }, 'Priya Castellano frobnicated detector SD-101 at Harbor Lantern Eastlake'],
-    [{ action: 'bulk.assign', entity: 'detector', entityId: '78', after: { summary: 'Give 3 detectors to Tomas Reyna', count: 3, records: [10, 11, 12] } }, 'Priya Castellano assigned 3 detectors: “Give 3 detectors to Tomas Reyna”'],
+    [{ action: 'bulk.assign', entity: 'detector', entityId: '78', after: { summary: 'Give 3 detectors to Tomas Reyna', count: 3, records: [10, 11, 12] } }, 'Priya Castellano assigned 3 detectors in one change: “Give 3 detectors to Tomas Reyna”'],
+    [{ action: 'bulk.renumber', entity: 'detector', entityId: '80', after: { summary: 'Renumber 3 detectors', count: 3, records: [10, 11, 12] } }, 'Priya Castellano renumbered 3 detectors: “Renumber 3 detectors”'],
   ] as Array<[Partial<AuditRow> & Pick<AuditRow, 'action' | 'entity'>, string]>)('%o reads as a sentence', (entry, sentence) => {
     expect(say([row(entry)])).toBe(sentence)
   })

@@ -40,6 +40,7 @@ export const AUDIT_KINDS = [
   { key: 'records', label: 'Records', prefixes: ['customer.', 'site.', 'unit.', 'detector.'] },
   { key: 'bulk', label: 'Bulk changes', prefixes: ['bulk.'] },
   { key: 'imports', label: 'Imports', prefixes: ['import.'] },
+  { key: 'calendar', label: 'Company calendar', prefixes: ['calendar.'] },
   { key: 'views', label: 'Saved views', prefixes: ['view.'] },
   { key: 'sign-ins', label: 'Sign-ins', prefixes: ['session.'] },
 ] as const
@@ -344,7 +345,7 @@ function bulkNoun(row: AuditRow, n: number): string {
 
 const countsOf = (value: Record<string, unknown>, skip: string[] = []) =>
   Object.entries(value)
-    .filter(([k, v]) => typeof v === 'number' && !skip.includes(k) && !k.endsWith('Id'))
+    .filter(([k, v]) => typeof v === 'number' && v !== 0 && !skip.includes(k) && !k.endsWith('Id'))
     .map(([k, v]) => `${(v as number).toLocaleString('en-US')} ${fieldLabel(k).toLowerCase()}`)
 
 const VISIT_RESULT_WORDS: Record<string, string> = { pass: 'passed', fail: 'failed', skipped: 'not tested', pending: 'pending' }
@@ -424,12 +425,35 @@ const SENTENCES: Record<string, Sentence> = {
   },
   'import.inventory': (c) => {
     const counts = countsOf(c.after, ['rows', 'errors'])
-    return [c.actor, ' imported inventory', ...(text(c.after.fileName) ? [` from ${quoted(String(c.after.fileName))}`] : []), ...(counts.length ? [`: ${counts.join(', ')}`] : [])]
+    const file = text(c.after.file) ?? text(c.after.fileName)
+    return [c.actor, ' imported inventory', ...(file ? [` from ${quoted(file)}`] : []), ...(counts.length ? [`: ${counts.join(', ')}`] : [])]
   },
   'import.events': (c) => {
-    const n = bulkCount(c.head) ?? (typeof c.after.events === 'number' ? c.after.events : typeof c.after.imported === 'number' ? c.after.imported : null)
-    return [c.actor, ' imported ', n === null ? 'events' : plural(n, 'event'), ...(text(c.after.fileName) ? [` from ${quoted(String(c.after.fileName))}`] : [])]
+    const n = typeof c.after.eventsAdded === 'number' ? c.after.eventsAdded : bulkCount(c.head)
+    const file = text(c.after.file) ?? text(c.after.fileName)
+    const known = typeof c.after.alreadyPresent === 'number' && c.after.alreadyPresent > 0 ? ` (${plural(c.after.alreadyPresent, 'event')} already there)` : ''
+    return [c.actor, ' imported ', n === null ? 'events' : plural(n, 'event'), ...(file ? [` from ${quoted(file)}`] : []), known]
   },
+  'calendar.close': (c) => [c.actor, ' closed ', dayOf(c.head.entityId) ?? 'a day', ' on the company calendar', ...(text(c.after.label) ? [`: ${quoted(String(c.after.label))}`] : [])],
+  'calendar.reopen': (c) => [c.actor, ' reopened ', dayOf(c.head.entityId) ?? 'a day', ' on the company calendar'],
+}
+
+// Bulk changes name what they did in their summary; the verb says it for the count of records.
+const BULK_VERBS: Record<string, string> = {
+  acknowledge: 'acknowledged',
+  unacknowledge: 'took back the acknowledgement of',
+  assign: 'assigned',
+  'set-state': 'changed the state of',
+  note: 'added a note to',
+  'cleaning-cycle': 'planned cleaning for',
+  'delay-audit': 'booked delay-setting corrections for',
+}
+for (const [name, verb] of Object.entries(BULK_VERBS)) {
+  SENTENCES[`bulk.${name}`] = (c) => {
+    const n = bulkCount(c.head)
+    const summary = text(c.after.summary)
+    return [c.actor, ` ${verb} `, n === null ? 'records' : plural(n, bulkNoun(c.head, 1), bulkNoun(c.head, 2)), ' in one change', ...(summary ? [`: ${quoted(summary)}`] : [])]
+  }
 }
 
 const EDITS = ['customer', 'site', 'unit', 'detector']
