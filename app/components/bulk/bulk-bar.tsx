@@ -20,14 +20,15 @@ export function BulkBar(p: { entity: 'visit' | 'detector'; endpoint: string; que
   const [allFor, setAllFor] = useState<string | null>(null)
   const all = allFor === p.query
   const setAll = (on: boolean) => setAllFor(on ? p.query : null)
-  const [open, setOpen] = useState<BulkActionInfo | null>(null)
+  // The panel keeps the scope it was opened on: applying clears the list's selection beneath it.
+  const [open, setOpen] = useState<{ action: BulkActionInfo; scope: BulkScope; label: string } | null>(null)
   const { data } = useJson<{ total: number }>(actions.length ? `${p.endpoint}?${p.query ? `${p.query}&` : ''}limit=1` : null, { revalidateOnFocus: false })
   const total = data?.total ?? null
   const noun = p.entity === 'visit' ? 'visits' : 'detectors'
   const scope: BulkScope | null = all ? { filter: p.query } : p.selected.length ? { ids: p.selected } : null
   const scopeLabel = all ? `all ${total === null ? '' : `${formatCount(total)} `}${noun} matching this filter` : `${formatCount(p.selected.length)} selected ${noun}`
 
-  usePaletteActions(scope ? actions.map((a) => ({ id: `bulk:${a.name}`, label: `${a.title}: ${scopeLabel}…`, run: () => setOpen(a) })) : [])
+  usePaletteActions(scope ? actions.map((a) => ({ id: `bulk:${a.name}`, label: `${a.title}: ${scopeLabel}…`, run: () => setOpen({ action: a, scope, label: scopeLabel }) })) : [])
 
   if (actions.length === 0) return null
   return (
@@ -38,13 +39,11 @@ export function BulkBar(p: { entity: 'visit' | 'detector'; endpoint: string; que
       </button>
       <span className="mx-1 h-5 w-px bg-line" aria-hidden="true" />
       {actions.map((a) => (
-        <button key={a.name} type="button" className={quietButtonClass} disabled={!scope} onClick={() => setOpen(a)}>
+        <button key={a.name} type="button" className={quietButtonClass} disabled={!scope} onClick={() => scope && setOpen({ action: a, scope, label: scopeLabel })}>
           {a.title}…
         </button>
       ))}
-      {open && scope && (
-        <BulkPanel action={open} scope={scope} scopeLabel={scopeLabel} technicians={p.technicians} onClose={() => setOpen(null)} onChanged={p.onChanged} />
-      )}
+      {open && <BulkPanel action={open.action} scope={open.scope} scopeLabel={open.label} technicians={p.technicians} onClose={() => setOpen(null)} onChanged={p.onChanged} />}
     </section>
   )
 }
