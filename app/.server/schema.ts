@@ -144,6 +144,7 @@ export const detectorModels = sqliteTable('detector_models', {
   // The sensitivity range on the listing, in %/ft obscuration; null until the office enters it.
   sensitivityLowPctFt: real('sensitivity_low_pct_ft'),
   sensitivityHighPctFt: real('sensitivity_high_pct_ft'),
+  version: integer('version').notNull().default(1),
 })
 
 export const detectors = sqliteTable(

@@ -120,17 +120,6 @@ const modelColumns = {
 
 const bump = (column: SQLiteColumn) => sql<number>`${column} + 1`
 
-// detector_models has no version column: its version is the count of its audited edits plus one,
-// which only this module writes, inside the same transaction as the edit.
-function modelVersion(db: Db, id: number): number {
-  const row = db
-    .select({ n: count() })
-    .from(auditLog)
-    .where(and(eq(auditLog.entity, 'model'), eq(auditLog.entityId, String(id))))
-    .get()
-  return (row?.n ?? 0) + 1
-}
-
 const detectorIdsWhere = (db: Db, where: SQL) =>
   db.select({ id: detectors.id }).from(detectors).where(where).all().map((r) => r.id)
 
@@ -200,12 +189,13 @@ const SPECS: Record<EditKind, Spec> = {
   model: {
     schema: modelForm,
     cautions: () => [],
-    read: (db, id) => {
-      const row = db.select(modelColumns).from(detectorModels).where(eq(detectorModels.id, id)).get()
-      return row && { ...row, version: modelVersion(db, id) }
-    },
+    read: (db, id) => db.select({ ...modelColumns, version: detectorModels.version }).from(detectorModels).where(eq(detectorModels.id, id)).get(),
     write: (db, id, changed, version) =>
-      modelVersion(db, id) === version && db.update(detectorModels).set(changed).where(eq(detectorModels.id, id)).run().changes === 1,
+      db
+        .update(detectorModels)
+        .set({ ...changed, version: bump(detectorModels.version) })
+        .where(and(eq(detectorModels.id, id), eq(detectorModels.version, version)))
+        .run().changes === 1,
     // The derivation reads a model's contact labelling only; the listed ranges are read where readings are judged.
     affected: () => [],
   },

@@ -1,0 +1,1 @@
+ALTER TABLE `detector_models` ADD `version` integer DEFAULT 1 NOT NULL;
