@@ -22,6 +22,7 @@ export const SECTIONS: Section[] = [
   { to: '/events', label: 'Events', key: 'e', capability: 'view:fleet' },
   { to: '/import', label: 'Import', key: 'i', capability: 'edit:records' },
   { to: '/delay-audit', label: 'Delay audit', key: 'r', capability: 'schedule:visits' },
+  { to: '/cycles', label: 'Cleaning cycles', key: 'y', capability: 'schedule:visits' },
   { to: '/admin/users', label: 'Users', key: 'u', capability: 'manage:users', group: 'admin' },
   { to: '/admin/tokens', label: 'API tokens', key: 'k', capability: 'manage:tokens', group: 'admin' },
   { to: '/admin/audit', label: 'Audit log', key: 'a', capability: 'view:audit', group: 'admin' },

@@ -1,4 +1,4 @@
-import { useState } from 'react'
+import { useEffect, useRef, useState } from 'react'
 import { buttonClass, quietButtonClass } from '~/components/ui/page-header'
 import { FetchError, fetchJson } from '~/utils/fetch-json'
 import { formatCount } from '~/utils/format'
@@ -37,6 +37,10 @@ export function RunPanel(p: {
   onChanged?: () => void
   onPreview?: (preview: RunPreview | null) => void
   disabled?: boolean
+  /** Preview again by itself whenever the settings change after a first preview (hand changes to a plan). */
+  autoPreview?: boolean
+  /** Leave out the list of changes (the page draws the plan itself). */
+  hideChanges?: boolean
 }) {
   const [phase, setPhase] = useState<Phase>('idle')
   const [preview, setPreview] = useState<RunPreview | null>(null)
@@ -45,7 +49,7 @@ export function RunPanel(p: {
   const [bodyKey, setBodyKey] = useState('')
   const key = JSON.stringify(p.body)
   // Other settings than the ones previewed: the preview no longer stands.
-  const stale = preview !== null && bodyKey !== key && phase === 'previewed'
+  const stale = preview !== null && bodyKey !== key && phase === 'previewed' && !p.autoPreview
 
   const post = <T,>(json: unknown, url = `/api/bulk/${p.action}`) => fetchJson<T>(url, { method: 'POST', json })
   const fail = (e: unknown, back: Phase) => {
@@ -89,6 +93,14 @@ export function RunPanel(p: {
       fail(e, 'done')
     }
   }
+
+  const again = useRef(runPreview)
+  useEffect(() => {
+    again.current = runPreview
+  })
+  useEffect(() => {
+    if (p.autoPreview && bodyKey && bodyKey !== key) void again.current()
+  }, [p.autoPreview, key, bodyKey])
 
   const busy = phase === 'previewing' || phase === 'applying' || phase === 'undoing'
   return (
@@ -136,7 +148,7 @@ export function RunPanel(p: {
               {c}
             </p>
           ))}
-          {preview.changes.length > 0 && (
+          {preview.changes.length > 0 && !p.hideChanges && (
             <div className="max-h-96 overflow-auto rounded-sm border border-line">
               <table className="w-full text-left text-xs">
                 <caption className="sr-only">What would change</caption>
