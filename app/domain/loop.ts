@@ -1,8 +1,9 @@
 // The fire alarm initiating loop as the panel sees it through a duct detector: expected ohms across
-// the panel pair per detector state, and a diagnosis of measured readings that names the likely
-// miswire. Read-only for HVAC staff: the fire alarm contractor owns the panel and its wiring.
+// the panel pair per detector state for a correctly wired supervised loop, and a diagnosis of
+// measured readings that names the one or two wiring faults explaining them. Read-only for HVAC
+// staff: the fire alarm contractor owns the panel and its wiring.
 import { loopOhms, type Awg } from './conductors'
-import { closedInNormal, contactState, DETECTOR_STATES, defaultContactModel, type DetectorState, type Labelling, type Terminal } from './contacts'
+import { closedInNormal, contactState, DETECTOR_STATES, defaultContactModel, STATE_LABELS, type DetectorState, type Labelling, type Terminal } from './contacts'
 
 export interface Arrangement {
   /** Resistor value the panel expects (set by the panel maker). */
@@ -14,9 +15,9 @@ export interface Arrangement {
   supervisoryTerminal: Terminal
   supervisoryLabelledIn?: Labelling
   conductor: { awg: Awg; stranded: boolean; oneWayFeet: number }
-  /** At the device the wire adds nothing; at the panel it adds both conductors. */
+  /** At the device the run adds nothing to the reading; the panel's line limit still applies to it. */
   measuredAt: 'panel' | 'device'
-  /** Fraction of the EOL value a normal reading may stray (default 0.1). */
+  /** The resistor's own tolerance as a fraction (default 0.05). */
   tolerance?: number
   /** Highest wire resistance the panel accepts (default 100 Ω: common practice, panel-specific). */
   maxLineOhms?: number
@@ -27,240 +28,384 @@ export type Readings = Partial<Record<DetectorState, Reading>>
 export type Expected = { ohms: number; min: number; max: number } | { open: true }
 
 export type FindingCode =
+  | 'open-conductor'
+  | 'shorted-pair'
   | 'eol-missing'
   | 'eol-wrong-value'
   | 'alarm-on-nc'
+  | 'alarm-in-series'
+  | 'no-alarm-short'
   | 'supervisory-wrong-terminal'
+  | 'trouble-reports-as-alarm'
+  | 'contacts-swapped'
   | 'not-supervised'
   | 'line-resistance-high'
+  | 'leakage'
+  | 'record-differs'
   | 'unexplained'
 
 export interface Finding {
   code: FindingCode
   state: DetectorState | null
   message: string
+  /** An advisory does not fail the loop (the readings prove it; only the record is off). */
+  advisory?: true
 }
 
 export interface Diagnosis {
+  /** A correctly wired, supervised loop of this resistor, conductor and run, where the meter was held. */
   expected: Record<DetectorState, Expected>
+  /** The wiring as recorded, present only when the record differs from a correct loop. */
+  expectedAsRecorded?: Record<DetectorState, Expected>
+  /** Both conductors of the run (NEC Chapter 9 Table 8), wherever the meter was held. */
   lineOhms: number
   verdict: 'pass' | 'fail' | 'incomplete'
   findings: Finding[]
 }
 
-export const DEFAULT_TOLERANCE = 0.1
+// 5 % parts from the E24 series are the common EOL resistor (common practice).
+export const DEFAULT_TOLERANCE = 0.05
+// A handheld meter's resistance accuracy, about ±1 % of the reading (from memory; the meter's own
+// specification rules).
+export const METER_ACCURACY = 0.01
 // ~100 Ω per conventional loop is a common figure (common practice; the panel's instructions rule).
 export const DEFAULT_MAX_LINE_OHMS = 100
-// Contact, lead and meter resistance on a closed contact: common practice, a few ohms.
+// Contact, lead and meter-lead resistance on a closed contact: common practice, a few ohms.
 export const SHORT_ALLOWANCE_OHMS = 10
-// A meter over-range or anything above 1 MΩ reads as open: common practice.
-export const OPEN_OHMS = 1_000_000
+// A meter's over-range shows as 999,999 or more on many; anything there reads as open (common practice).
+export const OPEN_OHMS = 999_999
+// A reading this many times the resistor is no resistor at all: the panel sees an open (common practice).
+const OPEN_FACTOR = 10
 
 const round = (n: number, places = 2) => Math.round(n * 10 ** places) / 10 ** places
 
+/** Both conductors of the recorded run. */
 export function lineOhmsOf(a: Arrangement): number {
-  return a.measuredAt === 'device' ? 0 : round(loopOhms(a.conductor.awg, a.conductor.stranded, a.conductor.oneWayFeet), 3)
+  return round(loopOhms(a.conductor.awg, a.conductor.stranded, a.conductor.oneWayFeet), 3)
 }
 
-/** How the loop is actually wired, which may differ from what was recorded. */
-interface Wiring {
-  eolOhms: number | null
-  eolPlacement: Arrangement['eolPlacement']
-  alarmTerminal: Terminal
-  supervisoryTerminal: Terminal
-  extraSeriesOhms: number
+/** The wire the meter sees: all of it at the panel, none at the device's own terminals. */
+const seenLine = (a: Arrangement) => (a.measuredAt === 'device' ? 0 : lineOhmsOf(a))
+
+// ---------------------------------------------------------------------------------------------
+// Wiring faults. Each is one way the real loop differs from a correct one; a diagnosis tries every
+// fault and every pair of faults and keeps those that fit every reading taken.
+
+type Fault =
+  | 'open'
+  | 'short'
+  | 'series'
+  | 'leak'
+  | 'eol-missing'
+  | 'eol-value'
+  | 'eol-across'
+  | 'alarm-nc'
+  | 'alarm-series-no'
+  | 'alarm-series-nc'
+  | 'alarm-none'
+  | 'sup-wrong'
+  | 'sup-across'
+  | 'swapped'
+
+const CODE: Record<Fault, FindingCode> = {
+  open: 'open-conductor',
+  short: 'shorted-pair',
+  series: 'line-resistance-high',
+  leak: 'leakage',
+  'eol-missing': 'eol-missing',
+  'eol-value': 'eol-wrong-value',
+  'eol-across': 'not-supervised',
+  'alarm-nc': 'alarm-on-nc',
+  'alarm-series-no': 'alarm-in-series',
+  'alarm-series-nc': 'alarm-in-series',
+  'alarm-none': 'no-alarm-short',
+  'sup-wrong': 'supervisory-wrong-terminal',
+  'sup-across': 'trouble-reports-as-alarm',
+  swapped: 'contacts-swapped',
 }
 
-function wiringOf(a: Arrangement): Wiring {
-  return { eolOhms: a.eolOhms, eolPlacement: a.eolPlacement, alarmTerminal: a.alarmTerminal, supervisoryTerminal: a.supervisoryTerminal, extraSeriesOhms: 0 }
+/** Faults that act on the same part of the loop cannot both be present. */
+const SLOT: Record<Fault, string[]> = {
+  open: ['line'],
+  short: ['line'],
+  series: ['series'],
+  leak: ['leak'],
+  'eol-missing': ['eol'],
+  'eol-value': ['eol'],
+  'eol-across': ['eol', 'sup'],
+  'alarm-nc': ['alarm'],
+  'alarm-series-no': ['alarm'],
+  'alarm-series-nc': ['alarm'],
+  'alarm-none': ['alarm'],
+  'sup-wrong': ['sup'],
+  'sup-across': ['sup', 'eol'],
+  swapped: ['alarm', 'sup'],
 }
 
-/** Ohms across the panel pair for one wiring in one state (null = open). */
-function resistance(w: Wiring, labelling: Labelling, line: number, state: DetectorState): number | null {
-  const model = defaultContactModel(labelling)
-  const closed = (contact: 'alarm' | 'supervisory', terminal: Terminal) =>
-    contactState(model, contact, state)[terminal === 'NO' ? 'C-NO' : 'C-NC'] === 'closed'
-  const series = line + w.extraSeriesOhms
-  if (closed('alarm', w.alarmTerminal)) return series
-  const eolPath = w.eolOhms !== null && (w.eolPlacement === 'across-pair' || closed('supervisory', w.supervisoryTerminal))
-  return eolPath ? series + (w.eolOhms as number) : null
+const FAULTS = Object.keys(CODE) as Fault[]
+/** A cut or a short in the cable is out of the meter's sight at the device's own terminals. */
+const LINE_ONLY: Fault[] = ['open', 'series']
+
+function faultSets(measuredAt: Arrangement['measuredAt']): Fault[][] {
+  const usable = FAULTS.filter((f) => measuredAt === 'panel' || !LINE_ONLY.includes(f))
+  const sets: Fault[][] = usable.map((f) => [f])
+  for (let i = 0; i < usable.length; i++)
+    for (let j = i + 1; j < usable.length; j++) {
+      if (SLOT[usable[i]].some((s) => SLOT[usable[j]].includes(s))) continue
+      sets.push([usable[i], usable[j]])
+    }
+  return sets
 }
 
-export function expectedReadings(a: Arrangement): Record<DetectorState, Expected> {
-  const line = lineOhmsOf(a)
+/** Values a fault carries, fitted from the readings. */
+interface Params {
+  series: number
+  /** Ω of wire between the meter and a short in the cable (one place, so the same in every state). */
+  short: number
+  eol: number
+  leak: number
+}
+
+type Span = [number, number] // ohms, low to high; Infinity = open
+
+const OPEN: Span = [Infinity, Infinity]
+const parallel = (a: Span, b: Span): Span => [par(a[0], b[0]), par(a[1], b[1])]
+const par = (x: number, y: number) => (x === 0 || y === 0 ? 0 : x === Infinity ? y : y === Infinity ? x : (x * y) / (x + y))
+const series = (a: Span, b: Span): Span => [a[0] + b[0], a[1] + b[1]]
+const contact = (closed: boolean): Span => (closed ? [0, 0] : OPEN)
+
+/** Ohms across the pair, where the meter is held, for the loop with these faults in one state. */
+function predict(a: Arrangement, faults: Fault[], p: Params, state: DetectorState, correctTerms = correctTerminals(a.supervisoryLabelledIn)): Span {
+  const has = (f: Fault) => faults.includes(f)
+  const model = defaultContactModel(a.supervisoryLabelledIn ?? 'de-energized')
+  const closed = (c: 'alarm' | 'supervisory', t: Terminal) => contactState(model, c, state)[t === 'NO' ? 'C-NO' : 'C-NC'] === 'closed'
+  const other = (t: Terminal): Terminal => (t === 'NO' ? 'NC' : 'NO')
+  const alarmT = has('alarm-nc') ? other(correctTerms.alarmTerminal) : correctTerms.alarmTerminal
+  const supT = has('sup-wrong') ? other(correctTerms.supervisoryTerminal) : correctTerms.supervisoryTerminal
+  const line = seenLine(a)
+  if (has('open')) return OPEN
   const tol = a.tolerance ?? DEFAULT_TOLERANCE
-  const labelling = a.supervisoryLabelledIn ?? 'de-energized'
-  const out = {} as Record<DetectorState, Expected>
-  for (const state of DETECTOR_STATES) {
-    const r = resistance(wiringOf(a), labelling, line, state)
-    if (r === null) out[state] = { open: true }
-    else if (r <= line) out[state] = { ohms: round(line), min: 0, max: round(line + SHORT_ALLOWANCE_OHMS) }
-    else out[state] = { ohms: round(r), min: round(r - tol * a.eolOhms), max: round(r + tol * a.eolOhms) }
+  const nominal = has('eol-value') ? p.eol : a.eolOhms
+  const resistor: Span = has('eol-value') ? [p.eol, p.eol] : [nominal * (1 - tol), nominal * (1 + tol)]
+
+  let device: Span = OPEN
+  // Alarm contact across the pair (or, swapped, the supervisory contact in its place).
+  const alarmAcross = has('alarm-series-no') || has('alarm-series-nc') || has('alarm-none') ? null : has('swapped') ? closed('supervisory', alarmT) : closed('alarm', alarmT)
+  if (alarmAcross !== null) device = parallel(device, contact(alarmAcross))
+  if (!has('eol-missing')) {
+    let eolLeg: Span = resistor
+    if (has('swapped')) eolLeg = series(eolLeg, contact(closed('alarm', supT)))
+    else if (!has('eol-across') && !has('sup-across')) eolLeg = series(eolLeg, contact(closed('supervisory', supT)))
+    if (has('alarm-series-no')) eolLeg = series(eolLeg, contact(closed('alarm', 'NO')))
+    if (has('alarm-series-nc')) eolLeg = series(eolLeg, contact(closed('alarm', 'NC')))
+    device = parallel(device, eolLeg)
+  }
+  // A supervisory contact wired like an alarm contact: its trouble-closing terminal across the pair.
+  if (has('sup-across')) device = parallel(device, contact(closed('supervisory', other(supT))))
+  if (has('leak')) device = parallel(device, [p.leak, p.leak])
+  const wire: Span = [line + (has('series') ? p.series : 0), line + (has('series') ? p.series : 0)]
+  // From the panel a short hides the detector; from the device's terminals (panel end lifted) it
+  // hangs across them through the wire back to where the conductors touch.
+  if (has('short')) return a.measuredAt === 'panel' ? [p.short, p.short] : parallel(device, [p.short, p.short])
+  return series(wire, device)
+}
+
+/** Wire a working loop may still carry before the panel's limit; at the device the run is out of the reading. */
+const workingRoom = (a: Arrangement) => (a.measuredAt === 'device' ? 0 : Math.max(0, (a.maxLineOhms ?? DEFAULT_MAX_LINE_OHMS) - lineOhmsOf(a)))
+
+/** Whether a reading agrees with a predicted span, allowing the meter and the contacts. */
+function agrees(r: Reading, span: Span, workingSeries: number): boolean {
+  const value = r === 'open' || r >= OPEN_OHMS ? Infinity : r
+  if (span[0] === Infinity) return value === Infinity
+  if (value === Infinity) return false
+  // A loop still working carries wire up to the panel's limit: the panel sees alarm up to there.
+  const lo = span[0] * (1 - METER_ACCURACY) - SHORT_ALLOWANCE_OHMS
+  const hi = span[1] * (1 + METER_ACCURACY) + SHORT_ALLOWANCE_OHMS + workingSeries
+  return value >= lo && value <= hi
+}
+
+const finite = (r: Reading | undefined): r is number => typeof r === 'number' && r < OPEN_OHMS
+
+function hypotheses(a: Arrangement, readings: Readings, faults: Fault[]): Params[] {
+  const line = seenLine(a)
+  const values = DETECTOR_STATES.map((s) => readings[s]).filter(finite)
+  const seriesH = faults.includes('series') ? values.map((v) => v - line).filter((v) => v > SHORT_ALLOWANCE_OHMS) : [0]
+  const out: Params[] = []
+  for (const s of seriesH) {
+    const bare = values.map((v) => v - line - s).filter((v) => v > 0)
+    // A leak alone reads as itself; beside the resistor it reads as the two in parallel.
+    const leakH = faults.includes('leak') ? [...bare, ...bare.filter((v) => v < a.eolOhms).map((v) => 1 / (1 / v - 1 / a.eolOhms))] : [Infinity]
+    for (const leak of leakH) {
+      const eolH = faults.includes('eol-value')
+        ? [...bare, ...bare.map((v) => (leak === Infinity ? v : 1 / (1 / v - 1 / leak))).filter((v) => v > 0)].filter(
+            (v) => v >= a.eolOhms / OPEN_FACTOR && v <= a.eolOhms * OPEN_FACTOR,
+          )
+        : [a.eolOhms]
+      // Seen from the device, the short's wire sits beside the detector: solve it out of the parallel pair.
+      const beside = a.measuredAt === 'device' ? values.filter((v) => v > 0 && v < a.eolOhms).map((v) => 1 / (1 / v - 1 / a.eolOhms)) : []
+      const shortH = faults.includes('short') ? [...values, ...beside].filter((v) => v <= lineOhmsOf(a) + s + SHORT_ALLOWANCE_OHMS) : [0]
+      for (const eol of eolH) for (const short of shortH) out.push({ series: s, eol, leak, short })
+    }
   }
   return out
 }
 
-type Klass = 'open' | 'short' | 'eol' | 'low' | 'high'
-
-function classify(r: Reading, a: Arrangement, line: number): Klass {
-  if (r === 'open' || r >= OPEN_OHMS) return 'open'
-  if (r <= line + SHORT_ALLOWANCE_OHMS) return 'short'
-  const tol = (a.tolerance ?? DEFAULT_TOLERANCE) * a.eolOhms
-  const eol = a.eolOhms + line
-  if (Math.abs(r - eol) <= tol) return 'eol'
-  return r < eol ? 'low' : 'high'
+interface Fit {
+  faults: Fault[]
+  params: Params
 }
 
-function klassOfValue(r: number | null, a: Arrangement, line: number): Klass {
-  return classify(r === null ? 'open' : r, a, line)
-}
-
-const format = (r: Reading) => (r === 'open' ? 'open' : `${r.toLocaleString('en-US')} Ω`)
-const kohms = (n: number) => `${round(n / 1000, 1)} kΩ`
-
-const DEFER = 'Report it to the fire alarm contractor; HVAC staff do not alter the panel or cut alarm wiring.'
-
-const other = (t: Terminal): Terminal => (t === 'NO' ? 'NC' : 'NO')
-
-interface Candidate {
-  /** null: the readings show a correct loop (the record may still be wrong, flagged separately). */
-  code: Exclude<FindingCode, 'unexplained'> | null
-  /** Classes a reading may take in a state if this is how the loop is really wired. */
-  signature: (state: DetectorState, a: Arrangement, line: number) => Klass[]
-  message: (a: Arrangement, readings: Readings, line: number) => string
-}
-
-/** The loop as it should be: resistor through the supervisory contact, alarm on NO. */
-function correctWiring(a: Arrangement): Wiring {
-  return { ...wiringOf(a), eolPlacement: 'through-supervisory', ...correctTerminals(a.supervisoryLabelledIn) }
-}
-
-function predicted(w: Wiring, state: DetectorState, a: Arrangement, line: number): Klass {
-  return klassOfValue(resistance(w, a.supervisoryLabelledIn ?? 'de-energized', line, state), a, line)
-}
-
-function fault(mutate: (w: Wiring) => Wiring) {
-  return (state: DetectorState, a: Arrangement, line: number): Klass[] => [predicted(mutate(correctWiring(a)), state, a, line)]
-}
-
-/** Where a correct loop shows the resistor, a value fault shows something else; elsewhere the same. */
-function valueFault(whereEol: Klass[], whereShort: Klass[]) {
-  return (state: DetectorState, a: Arrangement, line: number): Klass[] => {
-    const base = predicted(correctWiring(a), state, a, line)
-    return base === 'eol' ? whereEol : base === 'short' ? whereShort : [base]
+function fitsReadings(a: Arrangement, readings: Readings, faults: Fault[], taken: DetectorState[]): Fit | null {
+  const room = workingRoom(a)
+  for (const params of hypotheses(a, readings, faults)) {
+    // Added series resistance is a fault only where it takes the loop past the panel's limit.
+    if (faults.includes('series') && params.series <= room) continue
+    const working = faults.includes('series') ? 0 : room
+    if (taken.every((s) => agrees(readings[s] as Reading, predict(a, faults, params, s), working))) return { faults, params }
   }
+  return null
 }
 
-// Each candidate is one way the real wiring can differ from a correct loop. The diagnosis keeps
-// those whose predicted readings match every reading taken.
-const CANDIDATES: Candidate[] = [
-  { code: null, signature: fault((w) => w), message: () => '' },
-  {
-    code: 'eol-missing',
-    signature: fault((w) => ({ ...w, eolOhms: null })),
-    message: () => `Normal reads open: the panel would see no end-of-line resistor and show a trouble. The resistor may be missing, broken or on the wrong terminal. ${DEFER}`,
-  },
-  {
-    code: 'eol-wrong-value',
-    signature: valueFault(['low', 'high'], ['short']),
-    message: (a, r, line) => {
-      const seen = typeof r.normal === 'number' ? ` (about ${kohms(r.normal - line)} after the wire)` : ''
-      return `Normal reads ${r.normal === undefined ? 'off' : format(r.normal)}${seen}, not the ${kohms(a.eolOhms)} the panel expects: the end-of-line resistor looks like the wrong value. ${DEFER}`
-    },
-  },
-  {
-    code: 'alarm-on-nc',
-    signature: fault((w) => ({ ...w, alarmTerminal: other(w.alarmTerminal) })),
-    message: () => `The loop reads shorted in normal and shows the resistor in alarm: the alarm contact looks wired to NC instead of NO. The panel would show alarm at rest and miss a real one. ${DEFER}`,
-  },
-  {
-    code: 'supervisory-wrong-terminal',
-    signature: fault((w) => ({ ...w, supervisoryTerminal: other(w.supervisoryTerminal) })),
-    message: () => `Normal reads open but trouble or power-off shows the resistor: the supervisory contact looks wired to the terminal that is open in normal (on many modules its marks describe the de-energized state). ${DEFER}`,
-  },
-  {
-    code: 'not-supervised',
-    signature: fault((w) => ({ ...w, eolPlacement: 'across-pair' })),
-    message: () => `Trouble or power-off still shows the resistor: the loop is not routed through the supervisory contact, so a dirty head, an open cover or loss of power would never reach the panel. ${DEFER}`,
-  },
-  {
-    code: 'line-resistance-high',
-    signature: valueFault(['eol', 'high'], ['low']),
-    message: (a, r, line) => {
-      const extra = typeof r.alarm === 'number' ? `, about ${round(r.alarm - line, 1)} Ω more than the wire accounts for` : ''
-      return `Alarm does not read as a clean short${extra}: look for a loose or corroded splice or terminal, or a longer or thinner run than recorded. ${DEFER}`
-    },
-  },
-]
+// ---------------------------------------------------------------------------------------------
+// Expected readings
 
-const asRecordedSignature = (state: DetectorState, a: Arrangement, line: number): Klass[] => [predicted(wiringOf(a), state, a, line)]
+const toExpected = (span: Span): Expected =>
+  span[0] === Infinity ? { open: true } : { ohms: round((span[0] + span[1]) / 2), min: round(Math.max(0, span[0] * (1 - METER_ACCURACY) - SHORT_ALLOWANCE_OHMS)), max: round(span[1] * (1 + METER_ACCURACY) + SHORT_ALLOWANCE_OHMS) }
 
-/** Series resistance a high-line fault adds must be the same in normal and in alarm. */
-function consistentExtra(a: Arrangement, readings: Readings, line: number): boolean {
-  if (typeof readings.normal !== 'number' || typeof readings.alarm !== 'number') return true
-  const extraAlarm = readings.alarm - line
-  const extraNormal = readings.normal - line - a.eolOhms
-  return Math.abs(extraNormal - extraAlarm) <= (a.tolerance ?? DEFAULT_TOLERANCE) * a.eolOhms
+/** A correctly wired supervised loop of this resistor, conductor and run, where the meter is held. */
+export function expectedCorrect(a: Arrangement): Record<DetectorState, Expected> {
+  return Object.fromEntries(DETECTOR_STATES.map((s) => [s, toExpected(predict(a, [], { series: 0, eol: a.eolOhms, leak: Infinity, short: 0 }, s))])) as Record<DetectorState, Expected>
 }
 
-/** The terminal fault findings that follow from the recorded arrangement alone. */
-function arrangementFindings(a: Arrangement, line: number): Finding[] {
-  const findings: Finding[] = []
-  const model = defaultContactModel(a.supervisoryLabelledIn ?? 'de-energized')
-  if (a.alarmTerminal === 'NC') {
-    findings.push({ code: 'alarm-on-nc', state: null, message: `Recorded with the alarm contact on NC: the panel would see a short at rest, and only the resistor (normal) when the detector trips, so a real alarm never reaches it. It should use NO. ${DEFER}` })
-  }
-  if (a.eolPlacement === 'across-pair') {
-    findings.push({ code: 'not-supervised', state: null, message: `Recorded with the resistor straight across the pair: trouble and loss of power at the detector would not reach the panel. The resistor belongs in series through the supervisory contact. ${DEFER}` })
-  } else if (a.supervisoryTerminal !== closedInNormal(model, 'supervisory')) {
-    findings.push({ code: 'supervisory-wrong-terminal', state: null, message: `Recorded on supervisory ${a.supervisoryTerminal}, the terminal that is open in normal on this module (labelled ${a.supervisoryLabelledIn ?? 'de-energized'}): the panel would show trouble at rest. Use ${closedInNormal(model, 'supervisory')}. ${DEFER}` })
-  }
-  const max = a.maxLineOhms ?? DEFAULT_MAX_LINE_OHMS
-  if (line > max) {
-    findings.push({ code: 'line-resistance-high', state: null, message: `The run adds ${round(line, 1)} Ω, above the ${max} Ω the panel allows: a heavier conductor or a shorter run is needed. ${DEFER}` })
-  }
-  return findings
+/** The faults the recorded wiring itself carries, against a correct loop. */
+function recordedFaults(a: Arrangement): Fault[] {
+  const correct = correctTerminals(a.supervisoryLabelledIn)
+  const out: Fault[] = []
+  if (a.alarmTerminal !== correct.alarmTerminal) out.push('alarm-nc')
+  if (a.eolPlacement === 'across-pair') out.push('eol-across')
+  else if (a.supervisoryTerminal !== correct.supervisoryTerminal) out.push('sup-wrong')
+  return out
 }
+
+/** The loop as recorded (which may itself be miswired), where the meter is held. */
+export function expectedReadings(a: Arrangement): Record<DetectorState, Expected> {
+  const faults = recordedFaults(a)
+  return Object.fromEntries(DETECTOR_STATES.map((s) => [s, toExpected(predict(a, faults, { series: 0, eol: a.eolOhms, leak: Infinity, short: 0 }, s))])) as Record<DetectorState, Expected>
+}
+
+// ---------------------------------------------------------------------------------------------
+// Words
+
+const DEFER = 'The fire alarm contractor puts it right; HVAC staff do not open the panel or cut alarm wiring.'
+const kohms = (n: number) => (n >= 1000 ? `${round(n / 1000, 1)} kΩ` : `${round(n, 0)} Ω`)
+const format = (r: Reading) => (r === 'open' || r >= OPEN_OHMS ? 'open' : `${r.toLocaleString('en-US')} Ω`)
+const stateWord = (s: DetectorState) => STATE_LABELS[s].split(' (')[0].toLowerCase()
+
+/** What the panel would show for a reading: alarm up to its line limit, normal on the resistor, else trouble. */
+function panelShows(r: Reading, a: Arrangement): 'alarm' | 'normal' | 'trouble' {
+  if (r === 'open' || r >= OPEN_OHMS) return 'trouble'
+  const line = seenLine(a)
+  if (r <= (a.maxLineOhms ?? DEFAULT_MAX_LINE_OHMS) + SHORT_ALLOWANCE_OHMS) return 'alarm'
+  const tol = (a.tolerance ?? DEFAULT_TOLERANCE) + METER_ACCURACY
+  return Math.abs(r - line - a.eolOhms) <= tol * a.eolOhms + SHORT_ALLOWANCE_OHMS ? 'normal' : 'trouble'
+}
+
+/** "normal reads 4 Ω (the panel would show alarm)", for the states measured only. */
+function seen(a: Arrangement, readings: Readings, taken: DetectorState[]): string {
+  return taken.map((s) => `${stateWord(s)} reads ${format(readings[s] as Reading)} (the panel would show ${panelShows(readings[s] as Reading, a)})`).join('; ')
+}
+
+const LOOK: Record<FindingCode, (a: Arrangement, p: Params, line: number) => string> = {
+  'open-conductor': () => 'Every state reads open: a conductor is cut or a splice or terminal has come loose between the panel and the detector. Look for a loose terminal, a broken splice or a damaged cable.',
+  'shorted-pair': () => 'Every state reads as a short: the two conductors touch somewhere, or a jumper sits across the pair. Look for a pinched cable, a splice with bare copper or a stray jumper.',
+  'eol-missing': () => 'The end-of-line resistor is not seen: missing, broken or on a terminal that is not in the loop.',
+  'eol-wrong-value': (a, p) => `The resistor reads about ${kohms(p.eol)}, not the ${kohms(a.eolOhms)} the panel expects: it looks like the wrong value.`,
+  'alarm-on-nc': () => 'The alarm contact looks wired to NC instead of NO: the panel would see alarm at rest and miss a real one.',
+  'alarm-in-series': () => 'The alarm contact looks wired in series with the loop instead of across the pair: an alarm opens the loop, so the panel shows a trouble where it should show an alarm.',
+  'no-alarm-short': () => 'Alarm does not short the pair: the alarm contact is not connected, or the detector did not trip during the test. Confirm the trip (LED, relay) before calling it a wiring fault.',
+  'supervisory-wrong-terminal': () => 'The supervisory contact looks wired to the terminal that is open in normal (on many modules its marks describe the de-energized state).',
+  'trouble-reports-as-alarm': () => 'A supervisory contact sits across the pair: a dirty head, an open cover or a power loss reaches the panel as an alarm, which means a false dispatch.',
+  'contacts-swapped': () => 'The alarm and supervisory wires look landed on each other’s contacts.',
+  'not-supervised': () => 'The resistor is straight across the pair, not through the supervisory contact: a dirty head, an open cover or a power loss would never reach the panel.',
+  'line-resistance-high': (a, p, line) => `About ${round(p.series, 0)} Ω more than the ${round(line, 1)} Ω of wire, past the ${a.maxLineOhms ?? DEFAULT_MAX_LINE_OHMS} Ω the panel allows: look for a loose or corroded splice or terminal, or a longer or thinner run than recorded.`,
+  leakage: (_a, p) => `Where the loop should read open it reads about ${kohms(p.leak)}: leakage between the conductors or to ground (wet box, damaged insulation). An insulation test is the fire alarm contractor’s work.`,
+  'record-differs': () => '',
+  unexplained: () => '',
+}
+
+// ---------------------------------------------------------------------------------------------
 
 /** States that must be measured to prove the loop: the resistor, the short, and supervision. */
 function missingProof(readings: Readings): boolean {
   return readings.normal === undefined || readings.alarm === undefined || (readings.trouble === undefined && readings.unpowered === undefined)
 }
 
+function recordFindings(a: Arrangement): Finding[] {
+  const model = defaultContactModel(a.supervisoryLabelledIn ?? 'de-energized')
+  const out: Finding[] = []
+  if (a.alarmTerminal === 'NC') out.push({ code: 'alarm-on-nc', state: null, message: `Recorded with the alarm contact on NC: the panel would see alarm at rest and only the resistor when the detector trips, so a real alarm never reaches it. It should use NO. ${DEFER}` })
+  if (a.eolPlacement === 'across-pair') {
+    out.push({ code: 'not-supervised', state: null, message: `Recorded with the resistor straight across the pair: a trouble or a power loss at the detector would not reach the panel. The resistor belongs in series through the supervisory contact. ${DEFER}` })
+  } else if (a.supervisoryTerminal !== closedInNormal(model, 'supervisory')) {
+    out.push({ code: 'supervisory-wrong-terminal', state: null, message: `Recorded on supervisory ${a.supervisoryTerminal}, the terminal that is open in normal on this module (labelled ${a.supervisoryLabelledIn ?? 'de-energized'}): the panel would show trouble at rest. Use ${closedInNormal(model, 'supervisory')}. ${DEFER}` })
+  }
+  return out
+}
+
 export function diagnose(a: Arrangement, readings: Readings): Diagnosis {
-  const line = lineOhmsOf(a)
-  const expected = expectedReadings(a)
-  const findings = arrangementFindings(a, line)
+  const lineOhms = lineOhmsOf(a)
+  const expected = expectedCorrect(a)
+  const recorded = recordedFaults(a)
+  const findings: Finding[] = []
   const taken = DETECTOR_STATES.filter((s) => readings[s] !== undefined)
-  const measured = Object.fromEntries(taken.map((s) => [s, classify(readings[s] as Reading, a, line)])) as Partial<Record<DetectorState, Klass>>
+  const max = a.maxLineOhms ?? DEFAULT_MAX_LINE_OHMS
+  if (lineOhms > max) {
+    findings.push({ code: 'line-resistance-high', state: null, message: `The recorded run adds ${round(lineOhms, 1)} Ω of wire, above the ${max} Ω the panel allows (wherever the meter is held): a heavier conductor or a shorter run is needed. ${DEFER}` })
+  }
 
-  const fits = (signature: Candidate['signature']) => taken.every((s) => signature(s, a, line).includes(measured[s] as Klass))
-  const offRecord = taken.filter((s) => !asRecordedSignature(s, a, line).includes(measured[s] as Klass))
-
-  if (offRecord.length > 0) {
-    const explained = CANDIDATES.filter((c) => fits(c.signature) && (c.code !== 'line-resistance-high' || consistentExtra(a, readings, line)))
-    // Readings that fit a correct loop name no wiring fault of their own; the record's faults are
-    // already flagged above, and a state not measured leaves the verdict incomplete.
-    const fitsCorrect = explained.some((c) => c.code === null)
-    if (explained.length === 0) {
-      for (const s of offRecord) {
-        const e = expected[s]
-        const want = 'open' in e ? 'open' : `${e.min.toLocaleString('en-US')}–${e.max.toLocaleString('en-US')} Ω`
-        findings.push({
-          code: 'unexplained',
-          state: s,
-          message: `${s[0].toUpperCase()}${s.slice(1)} reads ${format(readings[s] as Reading)}, expected ${want}, and no single miswire explains the readings together. Re-check the meter and leads, then report to the fire alarm contractor.`,
-        })
+  const correctFit = taken.length > 0 ? fitsReadings(a, readings, [], taken) : null
+  if (taken.length === 0 || (correctFit && missingProof(readings))) {
+    // Nothing measured proves the wiring either way: the record speaks for itself.
+    findings.push(...recordFindings(a))
+  } else if (correctFit) {
+    if (recorded.length > 0)
+      findings.push({ code: 'record-differs', state: null, advisory: true, message: `The readings fit a correctly wired, supervised loop, but the record says otherwise (${recorded.map((f) => CODE[f]).join(', ')}). Correct the record to match the wiring.` })
+  } else {
+    const sets = faultSets(a.measuredAt)
+    let fits = sets.filter((s) => s.length === 1).map((s) => fitsReadings(a, readings, s, taken)).filter((f): f is Fit => f !== null)
+    if (fits.length === 0) fits = sets.filter((s) => s.length === 2).map((s) => fitsReadings(a, readings, s, taken)).filter((f): f is Fit => f !== null)
+    const line = seenLine(a)
+    const state = taken.find((s) => !agrees(readings[s] as Reading, predict(a, [], { series: 0, eol: a.eolOhms, leak: Infinity, short: 0 }, s), workingRoom(a))) ?? null
+    if (fits.length === 0) {
+      const e = (s: DetectorState) => expected[s]
+      const want = (s: DetectorState) => ('open' in e(s) ? 'open' : `${(e(s) as { min: number }).min.toLocaleString('en-US')}–${(e(s) as { max: number }).max.toLocaleString('en-US')} Ω`)
+      findings.push({
+        code: 'unexplained',
+        state,
+        message: `${seen(a, readings, taken)}. A correct loop reads ${taken.map((s) => `${stateWord(s)} ${want(s)}`).join(', ')}, and no one or two wiring faults explain these readings together. Re-check the meter, the leads and which state the detector was in, then report it to the fire alarm contractor.`,
+      })
+    } else {
+      const together = fits.length > 1 ? ' The readings fit more than one wiring; check each.' : ''
+      for (const fit of fits) {
+        const pair = fit.faults.length === 2
+        for (const f of fit.faults) {
+          const code = CODE[f]
+          if (findings.some((x) => x.code === code && !x.advisory && x.state !== null)) continue
+          const partner = pair ? ` Together with ${CODE[fit.faults.find((g) => g !== f) as Fault]}, this explains the readings.` : ''
+          findings.push({ code, state, message: `${seen(a, readings, taken)}. ${LOOK[code](a, fit.params, line)}${partner}${together} ${DEFER}` })
+        }
       }
-    }
-    for (const c of fitsCorrect ? [] : explained) {
-      if (c.code === null || findings.some((f) => f.code === c.code)) continue
-      findings.push({ code: c.code, state: offRecord[0], message: c.message(a, readings, line) })
     }
   }
 
-  const verdict = findings.length > 0 ? 'fail' : missingProof(readings) ? 'incomplete' : 'pass'
-  return { expected, lineOhms: line, verdict, findings }
+  // A record that is itself miswired stays flagged unless the readings prove the loop correct.
+  if (taken.length > 0 && !correctFit) for (const f of recordFindings(a)) if (!findings.some((x) => x.code === f.code)) findings.push(f)
+
+  const faulty = findings.some((f) => !f.advisory)
+  const verdict = faulty ? 'fail' : missingProof(readings) ? 'incomplete' : 'pass'
+  const out: Diagnosis = { expected, lineOhms, verdict, findings }
+  if (recorded.length > 0) out.expectedAsRecorded = expectedReadings(a)
+  return out
 }
 
 /** What a correct tamper-circuit loop looks like for a module's labelling. */
