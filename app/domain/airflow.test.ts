@@ -61,6 +61,16 @@ describe('duct area and velocity', () => {
     expect(() => ductAreaFt2(round(-2))).toThrow(RangeError)
   })
 
+  it('refuses airflow, listed ranges and pressures that are not numbers or below zero', () => {
+    expect(() => ductVelocityFpm(Number.NaN, rect(12, 8))).toThrow(/cfm must be zero or more/)
+    expect(() => ductVelocityFpm(-1000, rect(12, 8))).toThrow(RangeError)
+    expect(() => airflowForVelocity(Number.POSITIVE_INFINITY, rect(12, 8))).toThrow(RangeError)
+    expect(() => checkVelocity({ cfm: 1000, duct: rect(12, 8), listedMinFpm: Number.NaN, listedMaxFpm: 4000 })).toThrow(RangeError)
+    expect(() => checkPressure({ measuredInWc: Number.NaN, listedMinInWc: 0.01, listedMaxInWc: 1.2 })).toThrow(RangeError)
+    // 0 cfm is a stopped fan, a real reading: 12×8 in gives 0 ft/min.
+    expect(ductVelocityFpm(0, rect(12, 8))).toBe(0)
+  })
+
   it('velocity × area gives back the airflow', () => {
     const duct = fc.oneof(
       fc.record({

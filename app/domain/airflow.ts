@@ -28,6 +28,11 @@ function positive(name: string, value: number) {
   if (!(Number.isFinite(value) && value > 0)) throw new RangeError(`${name} must be a positive number, got ${value}`)
 }
 
+// A stopped fan is a real reading (0 cfm); a negative or non-numeric one is a typing slip.
+function nonNegative(name: string, value: number) {
+  if (!(Number.isFinite(value) && value >= 0)) throw new RangeError(`${name} must be zero or more, got ${value}`)
+}
+
 /** Cross-section of the duct in square feet. */
 export function ductAreaFt2(duct: Duct): number {
   if (duct.shape === 'rectangular') {
@@ -42,11 +47,13 @@ export function ductAreaFt2(duct: Duct): number {
 
 /** Average air velocity in ft/min: cfm ÷ area (ft²) (common practice). */
 export function ductVelocityFpm(cfm: number, duct: Duct): number {
+  nonNegative('cfm', cfm)
   return cfm / ductAreaFt2(duct)
 }
 
 /** The airflow in cfm that gives this velocity in this duct: fpm × area (ft²). */
 export function airflowForVelocity(fpm: number, duct: Duct): number {
+  nonNegative('fpm', fpm)
   return fpm * ductAreaFt2(duct)
 }
 
@@ -59,6 +66,8 @@ export function metresPerSecondToFpm(mps: number): number {
 }
 
 function checkRange(min: number, max: number) {
+  nonNegative('listed minimum', min)
+  nonNegative('listed maximum', max)
   if (!(min <= max)) throw new RangeError(`listed minimum ${min} is above listed maximum ${max}`)
 }
 
@@ -119,6 +128,8 @@ export function checkPressure(input: {
 }): PressureCheck {
   const { measuredInWc, listedMinInWc: min, listedMaxInWc: max } = input
   checkRange(min, max)
+  // Below zero is allowed (reversed tubes); NaN or infinity is not a reading.
+  if (!Number.isFinite(measuredInWc)) throw new RangeError(`measuredInWc must be a number, got ${measuredInWc}`)
   const range = `${inWc(min)} to ${inWc(max)}`
   if (measuredInWc < min) {
     // A reading below zero means the exhaust side is higher than the inlet: tubes reversed (common practice).
