@@ -1,4 +1,5 @@
 import { getDb } from './db'
+import { startDigestSchedule } from './email/schedule'
 import { refreshIfNewDay } from './refresh'
 
 const globalJobs = globalThis as unknown as { __ductkeeperJobs?: NodeJS.Timeout }
@@ -19,4 +20,5 @@ export function startBackgroundJobs() {
   setTimeout(tick, Number(process.env.REFRESH_START_DELAY_MS ?? 200)).unref()
   globalJobs.__ductkeeperJobs = setInterval(tick, EVERY_MS)
   globalJobs.__ductkeeperJobs.unref()
+  startDigestSchedule(getDb)
 }

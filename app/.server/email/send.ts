@@ -12,7 +12,7 @@ const TIMEOUT_MS = 20_000
 const BASE_BACKOFF_MS = 60_000
 
 const emailEnv = z.object({
-  RESEND_API_KEY: z.string().min(1).optional(),
+  RESEND_API_KEY: z.string().optional().transform((v) => v || undefined),
   EMAIL_FROM: z.string().min(3).default('Ductkeeper <digest@ductkeeper.test>'),
 })
 
