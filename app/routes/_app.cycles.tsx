@@ -128,7 +128,7 @@ export default function Cycles({ loaderData }: Route.ComponentProps) {
         {plan && (
           <>
             <p className="text-sm text-ink-soft">
-              {formatCount(plan.visits.length)} visits on {formatCount(plan.days.length)} days · {formatCount(preview?.refusedCount ?? 0)} detectors not placed ·{' '}
+              {formatCount(plan.visits.length)} visit{plan.visits.length === 1 ? '' : 's'} on {formatCount(plan.days.length)} day{plan.days.length === 1 ? '' : 's'} · {formatCount(preview?.refusedCount ?? 0)} detectors not placed ·{' '}
               {formatCount(plan.notDue)} of the chosen locations not due by {plan.dueBy}
             </p>
             <PlanGrid

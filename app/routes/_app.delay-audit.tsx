@@ -51,9 +51,13 @@ export default function DelayAudit({ loaderData }: Route.ComponentProps) {
       </p>
       {(d.counts.policiesBeyond > 0 || d.counts.settingsBeyond > 0) && (
         <p role="note" aria-label="Beyond the NFPA 72 limit" className="rounded-md border border-late/40 bg-late-soft px-4 py-3 text-sm">
-          <strong>{formatCount(d.counts.policiesBeyond)}</strong> site{d.counts.policiesBeyond === 1 ? '' : 's'} agreed, and{' '}
-          <strong>{formatCount(d.counts.settingsBeyond)}</strong> detector{d.counts.settingsBeyond === 1 ? ' is' : 's are'} set to, a delay longer than
-          the {d.limitSeconds} s NFPA 72 allows for reporting a trouble. Such a delay is never assumed compliant: verify with the AHJ.
+          {[
+            d.counts.policiesBeyond > 0 && `${formatCount(d.counts.policiesBeyond)} site${d.counts.policiesBeyond === 1 ? ' has' : 's have'} agreed`,
+            d.counts.settingsBeyond > 0 && `${formatCount(d.counts.settingsBeyond)} detector${d.counts.settingsBeyond === 1 ? ' is' : 's are'} set to`,
+          ]
+            .filter(Boolean)
+            .join(', and ')}{' '}
+          a delay longer than the {d.limitSeconds} s NFPA 72 allows for reporting a trouble. Such a delay is never assumed compliant: verify with the AHJ.
         </p>
       )}
 

@@ -212,7 +212,7 @@ export const delayAudit = defineAction({
     const cautions: string[] = []
     if (counts.policiesBeyond > 0 || counts.settingsBeyond > 0) {
       cautions.push(
-        `${plural(counts.policiesBeyond, 'site')} agreed, and ${plural(counts.settingsBeyond, 'detector')} set to, a delay past the ${TROUBLE_REPORTING_SECONDS} s NFPA 72 allows for reporting a trouble: verify with the AHJ.`,
+        `${[counts.policiesBeyond > 0 && `${plural(counts.policiesBeyond, 'site')} agreed`, counts.settingsBeyond > 0 && `${plural(counts.settingsBeyond, 'detector')} set to`].filter(Boolean).join(', and ')} a delay past the ${TROUBLE_REPORTING_SECONDS} s NFPA 72 allows for reporting a trouble: verify with the AHJ.`,
       )
     }
     return { ...plan, extra: { audit: counts, limitSeconds: TROUBLE_REPORTING_SECONDS, cautions } }
