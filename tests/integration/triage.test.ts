@@ -2,6 +2,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { startServer } from '#tests/setup/server'
 import { sessionCookieFor, userIdByEmail } from '#tests/setup/sessions'
 import { seededDb, TEST_TODAY } from '#tests/setup/temp-db'
+import { loadCompanyCalendar } from '~/.server/bulk/calendar'
 import { bookingPlan, suggestedDay } from '~/.server/repos/triage-booking'
 
 describe('triage queue', () => {
@@ -164,11 +165,15 @@ describe('booking from the queue', () => {
 
     // Friday 2026-06-26 → Monday 2026-06-29.
     expect(bookingPlan(data.db, [d.id], 'test', '2026-06-26').sites[0].suggestedDay).toBe('2026-06-29')
-    // Thursday 2026-06-18: Friday 2026-06-19 is Juneteenth, a public holiday, then the weekend → Monday 2026-06-22.
+    // Thursday 2026-06-18: Friday 2026-06-19 is Juneteenth, a public holiday the company works unless it
+    // observes it; observed, it and the weekend are stepped over → Monday 2026-06-22.
+    expect(bookingPlan(data.db, [d.id], 'test', '2026-06-18').sites[0].suggestedDay).toBe('2026-06-19')
+    const region = (q().prepare('select region from sites where id = ?').get(d.siteId) as { region: string }).region
+    q().prepare("insert or ignore into observed_holidays (region, name) values (?, 'Juneteenth')").run(region)
     const overHoliday = bookingPlan(data.db, [d.id], 'test', '2026-06-18').sites[0]
     expect(overHoliday.suggestedDay).toBe('2026-06-22')
     expect(overHoliday.skipped).toEqual([{ date: '2026-06-19', holiday: 'Juneteenth' }])
-    expect(suggestedDay('US-TX', '2026-07-02')).toEqual({ day: '2026-07-06', skipped: [{ date: '2026-07-03', holiday: 'Independence Day (substitute day)' }] })
+    expect(suggestedDay(loadCompanyCalendar(data.db), 'US-TX', '2026-07-02')).toEqual({ day: '2026-07-06', skipped: [{ date: '2026-07-03', holiday: 'Independence Day (substitute day)' }] })
     // The form is sent the region's holidays ahead, to warn before the server refuses.
     expect(overHoliday.holidays['2026-06-19']).toBe('Juneteenth')
     expect(overHoliday.holidays['2026-06-22']).toBeUndefined()

@@ -1,7 +1,7 @@
 import { and, asc, count, desc, eq, inArray, isNotNull, max, sql } from 'drizzle-orm'
-import { calendarFor } from '~/domain/calendar'
 import { addDays, weekday } from '~/domain/dates'
 import { OPEN_VISIT_STATUSES, type VisitTask } from '~/domain/vocabulary'
+import { loadCompanyCalendar, type CompanyCalendar } from '../bulk/calendar'
 import type { Db } from '../db'
 import { detectors, sites, users, visitDetectors, visits } from '../schema'
 import { byTag, perDb } from './statements'
@@ -90,25 +90,24 @@ function usualTechnician(db: Db, siteId: number): UsualTechnician | null {
   return row && row.eligible ? { id: row.id, name: row.name, visits: row.visits, of: row.of } : null
 }
 
-/** The first working day after `today` at the site's region, and the holidays stepped over to reach it. */
-export function suggestedDay(region: string, today: string): { day: string; skipped: Array<{ date: string; holiday: string }> } {
-  const cal = calendarFor(region)
-  const day = cal.nextWorkingDay(addDays(today, 1))
+/** The company's first working day after `today` in a region, and the days off stepped over to reach it. */
+export function suggestedDay(company: CompanyCalendar, region: string, today: string): { day: string; skipped: Array<{ date: string; holiday: string }> } {
+  const day = company.forRegion(region).nextWorkingDay(addDays(today, 1))
   const skipped: Array<{ date: string; holiday: string }> = []
   for (let d = addDays(today, 1); d < day; d = addDays(d, 1)) {
-    const holiday = cal.holidayName(d)
-    if (holiday && weekday(d) !== 0 && weekday(d) !== 6) skipped.push({ date: d, holiday })
+    const why = company.dayOff(region, d)
+    if (why && weekday(d) !== 0 && weekday(d) !== 6) skipped.push({ date: d, holiday: why })
   }
   return { day, skipped }
 }
 
-function holidaysAhead(region: string, today: string): Record<string, string> {
-  const cal = calendarFor(region)
+/** The company's weekday days off ahead in a region (observed holidays, closed days), by date. */
+function holidaysAhead(company: CompanyCalendar, region: string, today: string): Record<string, string> {
   const out: Record<string, string> = {}
   for (let i = 0; i <= HOLIDAY_HORIZON_DAYS; i++) {
     const d = addDays(today, i)
-    const name = cal.holidayName(d)
-    if (name) out[d] = name
+    const why = weekday(d) === 0 || weekday(d) === 6 ? null : company.dayOff(region, d)
+    if (why) out[d] = why
   }
   return out
 }
@@ -141,10 +140,11 @@ export function bookingPlan(db: Db, ids: number[], kind: BookingKind, today: str
     })
 
   // Sites share a handful of regions: each region's calendar is read once.
+  const company = loadCompanyCalendar(db)
   const calendars = new Map<string, { day: string; skipped: SitePlan['skipped']; holidays: SitePlan['holidays'] }>()
   const calendarOf = (region: string) => {
     let c = calendars.get(region)
-    if (!c) calendars.set(region, (c = { ...suggestedDay(region, today), holidays: holidaysAhead(region, today) }))
+    if (!c) calendars.set(region, (c = { ...suggestedDay(company, region, today), holidays: holidaysAhead(company, region, today) }))
     return c
   }
   const bySite = new Map<number, SitePlan>()

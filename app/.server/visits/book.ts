@@ -1,7 +1,7 @@
-import { calendarFor } from '~/domain/calendar'
 import type { NewVisit } from '~/domain/visit-forms'
 import { OPEN_VISIT_STATUSES, type VisitTask } from '~/domain/vocabulary'
 import { writeAudit } from '../audit'
+import { loadCompanyCalendar } from '../bulk/calendar'
 import { writeTx, type Db } from '../db'
 import { listsChanged } from '../list-query'
 import { VisitRefusal } from './refusal'
@@ -19,12 +19,12 @@ export function checkWindow(from: string | undefined, until: string | undefined)
   if (from && until && until <= from) throw new VisitRefusal(400, `The window ends (${until}) before it starts (${from}).`)
 }
 
-/** Refuses a day the site does not work: weekends and the region's public holidays. */
-export function checkWorkingDay(site: { name: string; region: string }, date: string) {
-  const cal = calendarFor(site.region)
-  if (!cal.isWorkingDay(date)) {
-    const why = cal.holidayName(date) ?? 'a weekend day'
-    throw new VisitRefusal(400, `${date} is not a working day at ${site.name} (${why}); the next one is ${cal.nextWorkingDay(date)}.`)
+/** Refuses a day the company does not work at the site: weekends, observed holidays, closed days. */
+export function checkWorkingDay(db: Db, site: { name: string; region: string }, date: string) {
+  const company = loadCompanyCalendar(db)
+  const why = company.dayOff(site.region, date)
+  if (why !== null) {
+    throw new VisitRefusal(400, `${date} is not a working day at ${site.name} (${why}); the next one is ${company.forRegion(site.region).nextWorkingDay(date)}.`)
   }
 }
 
@@ -57,7 +57,7 @@ export function bookVisit(db: Db, actorId: number, input: NewVisit, today: strin
     if (strangers.length) {
       throw new VisitRefusal(400, `Not detectors at ${site.name}: ${strangers.join(', ')}. Book each site's detectors on its own visit.`, { detectorIds: strangers })
     }
-    checkWorkingDay(site, input.scheduledOn)
+    checkWorkingDay(db, site, input.scheduledOn)
     checkTechnician(db, input.technicianId)
 
     const open = q

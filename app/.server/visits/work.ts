@@ -216,7 +216,7 @@ export function applyVisitIntent(db: Db, actor: Actor, visitId: number, input: V
         const from = input.windowFrom ?? null
         const until = input.windowUntil ?? null
         checkWindow(from ?? undefined, until ?? undefined)
-        checkWorkingDay({ name: visit.siteName, region: visit.region }, input.scheduledOn)
+        checkWorkingDay(db, { name: visit.siteName, region: visit.region }, input.scheduledOn)
         bump('scheduled_on = ?, window_from = ?, window_until = ?', input.scheduledOn, from, until)
         audit({ scheduledOn: visit.scheduledOn, window: [visit.windowFrom, visit.windowUntil] }, { scheduledOn: input.scheduledOn, window: [from, until] })
         return
