@@ -95,14 +95,14 @@ export interface ListResult<Row> {
   total: number
   offset: number
   limit: number
-  /** False when the total came from the per-filter cache and rows may have changed since. */
-  totalExact: boolean
   /** True when counting stopped at its cap: there are more than `total` matching rows. */
   totalCapped: boolean
 }
 
 // Filtered totals cost a count over the matching rows (tens of ms on millions of events), so each
-// filter's total is kept for a short while; a page request then costs only its indexed window.
+// filter's total is kept for a short while; a page request then costs only its indexed window. A kept
+// total is exact: every write in this process that can change a list drops them all (listsChanged);
+// the time limit covers the rare write from outside it (a script run against the live file).
 const TOTAL_TTL_MS = 30_000
 const totals = new Map<string, { total: number; at: number; version: number }>()
 const MAX_CACHED = 500
@@ -223,7 +223,6 @@ export function runList<F extends Paging, S extends SelectedFields>(db: Db, spec
   const rows = statement.all(values) as ListRow<S>[]
 
   let total: number
-  let totalExact = true
   let totalCapped = false
   const kept = spec.keptTotal?.(params)
   const cap = spec.countCap?.(params) ?? null
@@ -242,7 +241,6 @@ export function runList<F extends Paging, S extends SelectedFields>(db: Db, spec
     const hit = totals.get(cacheKey)
     if (hit && hit.version === writeVersion && Date.now() - hit.at < TOTAL_TTL_MS) {
       total = hit.total
-      totalExact = false
     } else {
       // Counted over the listed table alone, as the filters read only its columns (and subqueries),
       // and a left join on a key adds no rows. SQLite keeps left joins in an aggregate, where each
@@ -253,7 +251,7 @@ export function runList<F extends Paging, S extends SelectedFields>(db: Db, spec
       totals.set(cacheKey, { total, at: Date.now(), version: writeVersion })
     }
   }
-  return { rows, total, offset: params.offset, limit: params.limit, totalExact, totalCapped }
+  return { rows, total, offset: params.offset, limit: params.limit, totalCapped }
 }
 
 /** Parses a list route's query string: 400 with the issues on anything it does not accept. */

@@ -13,7 +13,6 @@ export interface Page<Row> {
   total: number
   offset: number
   limit: number
-  totalExact: boolean
   /** Counting stopped at `total`: there are more matching rows than that. */
   totalCapped?: boolean
 }
@@ -120,7 +119,7 @@ export function DataTable<Row extends { id: number }>(p: DataTableProps<Row>) {
   const scrollRef = useRef<HTMLDivElement>(null)
   const pages = useRef(new Map<string, Page<Row>>())
   const [version, setVersion] = useState(0)
-  const [total, setTotal] = useState<{ n: number; exact: boolean; capped: boolean } | null>(null)
+  const [total, setTotal] = useState<{ n: number; capped: boolean } | null>(null)
   const [error, setError] = useState<FetchError | null>(null)
   const [retryToken, setRetryToken] = useState(0)
   const [cursor, setCursor] = useState(0)
@@ -166,7 +165,7 @@ export function DataTable<Row extends { id: number }>(p: DataTableProps<Row>) {
       if (!err) setError(null)
       pages.current.set(url, page)
       if (url.startsWith(`${endpoint}?${query ? `${query}&` : ''}offset=`)) {
-        setTotal({ n: page.total, exact: page.totalExact, capped: page.totalCapped === true })
+        setTotal({ n: page.total, capped: page.totalCapped === true })
         setShownQuery(query)
         onRowsSeen?.(page.rows)
       }
@@ -311,7 +310,7 @@ export function DataTable<Row extends { id: number }>(p: DataTableProps<Row>) {
       <div className="flex flex-wrap items-center justify-between gap-2 border-b border-line px-3 py-2 text-xs text-ink-soft">
         {/* One line that never wraps: a selection count must not push the rows down. */}
         <span role="status" aria-live="polite" className="min-w-0 flex-1 basis-0 truncate">
-          {total === null ? (error ? 'Not loaded' : 'Loading…') : `${total.capped ? 'More than ' : ''}${formatCount(total.n)}${total.exact ? '' : ' (recent count)'} ${p.label}`}
+          {total === null ? (error ? 'Not loaded' : 'Loading…') : `${total.capped ? 'More than ' : ''}${formatCount(total.n)} ${p.label}`}
           {selected > 0 && (
             <>
               {` · ${formatCount(selected)} selected`}

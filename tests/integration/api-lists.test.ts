@@ -78,7 +78,6 @@ interface Page {
   total: number
   offset: number
   limit: number
-  totalExact: boolean
 }
 
 /** Walks a list page by page until a short page, checking each page's envelope on the way. */
@@ -346,7 +345,6 @@ describe('list routes page, filter and sort in SQL', () => {
     ]) {
       const page = (await (await get(`${path}?limit=1`)).json()) as Page
       expect(page.total, path).toBe(ids(`select id from ${table}`).length)
-      expect(page.totalExact).toBe(true)
     }
   })
 })
