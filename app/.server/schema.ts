@@ -480,7 +480,13 @@ export const auditLog = sqliteTable(
     before: text('before', { mode: 'json' }),
     after: text('after', { mode: 'json' }),
   },
-  (t) => [index('audit_entity_idx').on(t.entity, t.entityId), index('audit_at_idx').on(t.at)],
+  (t) => [
+    index('audit_entity_idx').on(t.entity, t.entityId),
+    index('audit_at_idx').on(t.at),
+    // The audit page's filters by person and by kind of change, walked newest first by id.
+    index('audit_actor_idx').on(t.actorId, t.id),
+    index('audit_action_idx').on(t.action, t.id),
+  ],
 )
 
 export const emailOutbox = sqliteTable(
