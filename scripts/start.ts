@@ -10,6 +10,8 @@ import { officeToday } from '~/.server/today'
 
 const dbPath = (process.env.DATABASE_PATH ??= 'data/ductkeeper.db')
 const port = (process.env.PORT ??= '3000')
+// The demo listens on this machine only; HOST=0.0.0.0 (or an address) opens it to the network.
+process.env.HOST ??= '127.0.0.1'
 // The local demo's public address; sign-in comes back here (open this one, not 127.0.0.1).
 process.env.APP_URL ??= `http://localhost:${port}`
 
@@ -49,10 +51,12 @@ if (!process.env.SESSION_SECRET) {
 // With no identity provider configured, run the local stand-in so people can sign in.
 let idp: Awaited<ReturnType<typeof startIdentityProvider>> | null = null
 if (!process.env.OIDC_ISSUER && !process.env.OIDC_AUTHORIZATION_ENDPOINT) {
+  // A secret made for this run: the server refuses the well-known demo one in production mode.
+  process.env.OIDC_CLIENT_SECRET ??= randomBytes(24).toString('base64url')
   idp = await startIdentityProvider({
     port: Number(process.env.IDP_PORT ?? 4010),
     clientId: process.env.OIDC_CLIENT_ID ?? 'ductkeeper-local',
-    clientSecret: process.env.OIDC_CLIENT_SECRET ?? 'local-secret-not-for-production',
+    clientSecret: process.env.OIDC_CLIENT_SECRET,
     redirectUris: [new URL('/auth/callback', process.env.APP_URL).toString()],
     accounts: DEMO_DIRECTORY,
   })

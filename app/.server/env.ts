@@ -1,4 +1,9 @@
+import { existsSync } from 'node:fs'
+import { dirname, resolve } from 'node:path'
 import { z } from 'zod'
+
+/** The local stand-in provider's secret: fine on a laptop, refused in production. */
+const DEMO_CLIENT_SECRET = 'local-secret-not-for-production'
 
 const optionalUrl = z.string().url().optional()
 
@@ -19,7 +24,7 @@ const schema = z
     OIDC_TOKEN_ENDPOINT: optionalUrl,
     OIDC_USERINFO_ENDPOINT: optionalUrl,
     OIDC_CLIENT_ID: z.string().default('ductkeeper-local'),
-    OIDC_CLIENT_SECRET: z.string().default('local-secret-not-for-production'),
+    OIDC_CLIENT_SECRET: z.string().default(DEMO_CLIENT_SECRET),
     OIDC_REDIRECT_URI: optionalUrl,
     /** The contractor's name as printed on inspection records. */
     COMPANY_NAME: z.string().trim().min(1).max(120).default('Brightwater Mechanical'),
@@ -32,6 +37,19 @@ const schema = z
     // The sign-in redirect must never be taken from a request's Host header.
     if (env.NODE_ENV === 'production' && !env.APP_URL && !env.OIDC_REDIRECT_URI) {
       ctx.addIssue({ code: 'custom', path: ['APP_URL'], message: 'APP_URL (or OIDC_REDIRECT_URI) is required in production' })
+    }
+    if (env.NODE_ENV !== 'production') return
+    // Production signs people in through the company's provider only, never the local stand-in's.
+    if (!env.OIDC_ISSUER && !(env.OIDC_AUTHORIZATION_ENDPOINT && env.OIDC_TOKEN_ENDPOINT && env.OIDC_USERINFO_ENDPOINT)) {
+      ctx.addIssue({ code: 'custom', path: ['OIDC_ISSUER'], message: 'OIDC_ISSUER (or all three OIDC_*_ENDPOINT variables) is required in production' })
+    }
+    if (env.OIDC_CLIENT_SECRET === DEMO_CLIENT_SECRET || !env.OIDC_CLIENT_SECRET.trim()) {
+      ctx.addIssue({ code: 'custom', path: ['OIDC_CLIENT_SECRET'], message: 'set the client secret registered with your identity provider; the local demo secret is refused in production' })
+    }
+    // A missing folder is a mistyped path or an unmounted volume: starting would make a new, empty
+    // database there and look like every record was lost.
+    if (env.DATABASE_PATH !== ':memory:' && !existsSync(dirname(resolve(env.DATABASE_PATH)))) {
+      ctx.addIssue({ code: 'custom', path: ['DATABASE_PATH'], message: `the folder ${dirname(resolve(env.DATABASE_PATH))} does not exist; create it (and restore or migrate the database) first` })
     }
   })
 
