@@ -41,20 +41,18 @@ export function digestFigures(db: Db, o: { today: string; customerIds: number[] 
 
   const taskSums = (op: 'overdue' | 'soon') =>
     TASKS.map((t) => (op === 'overdue' ? `sum(d.next_${t}_on < @today) as ${t}` : `sum(d.next_${t}_on >= @today and d.next_${t}_on <= @fortnight) as ${t}`)).join(', ')
+  const anyTask = (cond: (col: string) => string) => TASKS.map((t) => cond(`d.next_${t}_on`)).join(' or ')
+  // One pass over the fleet's detectors for both overdue and falling due, by task and in all.
   const due = c
     .prepare(
-      `select count(*) as detectors, ${taskSums('overdue')},
-              sum(min(coalesce(d.next_visual_on, '9'), coalesce(d.next_functional_on, '9'), coalesce(d.next_sensitivity_on, '9'), coalesce(d.next_cleaning_on, '9')) < @today) as anyOverdue
-         from detectors d where ${dWhere} and d.state <> 'out-of-service'`,
-    )
-    .get({ today }) as Record<string, number | null>
-  const soon = c
-    .prepare(
-      `select ${taskSums('soon')},
-              sum(min(coalesce(d.next_visual_on, '9'), coalesce(d.next_functional_on, '9'), coalesce(d.next_sensitivity_on, '9'), coalesce(d.next_cleaning_on, '9')) between @today and @fortnight) as anySoon
+      `select count(*) as detectors, ${taskSums('overdue')}, ${taskSums('soon').replace(/ as (\w+)/g, ' as soon_$1')},
+              sum(${anyTask((col) => `${col} < @today`)}) as anyOverdue,
+              sum(${anyTask((col) => `${col} between @today and @fortnight`)}) as anySoon
          from detectors d where ${dWhere} and d.state <> 'out-of-service'`,
     )
     .get({ today, fortnight }) as Record<string, number | null>
+  const soon: Record<string, number | null> = { anySoon: due.anySoon }
+  for (const t of TASKS) soon[t] = due[`soon_${t}`]
 
   // How long each detector now in trouble has been so: since its latest trouble event.
   const troubleRows = c
