@@ -6,7 +6,12 @@ const reading = z.union([z.number().nonnegative().finite(), z.literal('open')])
 /** The body of POST /api/diagnose: a loop arrangement and any subset of readings. */
 export const diagnoseRequest = z.object({
   arrangement: z.object({
-    eolOhms: z.number().positive().max(1_000_000),
+    // Initiating-circuit EOL resistors run from about 1 kΩ to tens of kΩ (common practice); a value
+    // outside 470 Ω–100 kΩ is more likely a slip of units than a panel's resistor.
+    eolOhms: z
+      .number()
+      .min(470, { message: 'An end-of-line resistor below 470 Ω is outside the range used on initiating circuits; check the value and its units (Ω, not kΩ).' })
+      .max(100_000, { message: 'An end-of-line resistor above 100 kΩ is outside the range used on initiating circuits; check the value and its units (Ω, not kΩ).' }),
     eolPlacement: z.enum(['through-supervisory', 'across-pair']),
     alarmTerminal: z.enum(['NO', 'NC']),
     supervisoryTerminal: z.enum(['NO', 'NC']),

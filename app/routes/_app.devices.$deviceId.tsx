@@ -43,7 +43,9 @@ const showExpected = (e: Expected) => ('open' in e ? 'open (over-range)' : e.min
 const showReading = (r: Reading | undefined) => (r === undefined ? '—' : r === 'open' ? 'open' : ohms(r))
 const METHOD_WORDS = { phone: 'by phone', email: 'by e-mail', portal: 'through their online portal' } as const
 const crumb = `${TAP} text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink`
-const delayWords = (s: number | null) => (s === null ? 'not recorded' : s === 0 ? 'report at once' : `${s / 60} min delay`)
+// Whole minutes and seconds, as the module's switches are read: 170 s is "2 min 50 s", never 2.83 min.
+const minSec = (s: number) => [Math.floor(s / 60) && `${Math.floor(s / 60)} min`, s % 60 && `${Math.round(s % 60)} s`].filter(Boolean).join(' ')
+const delayWords = (s: number | null) => (s === null ? 'not recorded' : s === 0 ? 'report at once' : `${minSec(s)} delay`)
 
 function fits(e: Expected, r: Reading | undefined): boolean | null {
   if (r === undefined) return null
@@ -128,26 +130,48 @@ export default function Device({ loaderData }: Route.ComponentProps) {
           {/* One row per detector state: a table's columns on a desk, a short stack on a phone. */}
           <div aria-hidden="true" className="hidden grid-cols-[minmax(0,1.3fr)_minmax(0,1.2fr)_minmax(0,1fr)_5.5rem] gap-x-3 px-4 pt-2 pb-1 text-xs font-medium text-ink-faint uppercase @md:grid">
             <span>Detector state</span>
-            <span>Expected</span>
+            <span>Expected (correct loop)</span>
             <span>Last reading</span>
             <span>Fits</span>
           </div>
           <ul className="divide-y divide-line/70 text-sm">
             {DETECTOR_STATES.map((s) => {
+              // A reading in range beside a fault is not a pass: the mark stays neutral until the loop passes.
               const ok = fits(r.loop.expected[s], r.loopReadings[s])
+              const recorded = r.loop.expectedAsRecorded?.[s]
+              const differs = recorded !== undefined && showExpected(recorded) !== showExpected(r.loop.expected[s])
               return (
                 <li key={s} data-state={s} className="grid grid-cols-[minmax(0,1fr)_auto] gap-x-3 gap-y-0.5 px-4 py-2 @md:grid-cols-[minmax(0,1.3fr)_minmax(0,1.2fr)_minmax(0,1fr)_5.5rem] @md:items-center">
                   <span className="font-medium @md:font-normal">{STATE_LABELS[s]}</span>
                   <span className="col-start-1 row-start-2 font-mono text-xs @md:col-start-2 @md:row-start-1">
                     <span className="font-sans text-ink-faint @md:hidden">Expect </span>
-                    {showExpected(r.loop.expected[s])}
+                    {differs ? (
+                      <>
+                        <span className="block">
+                          <span className="font-sans text-ink-faint">as it should be </span>
+                          {showExpected(r.loop.expected[s])}
+                        </span>
+                        <span className="block">
+                          <span className="font-sans text-ink-faint">as recorded </span>
+                          {showExpected(recorded)}
+                        </span>
+                      </>
+                    ) : (
+                      showExpected(r.loop.expected[s])
+                    )}
                   </span>
                   <span className="col-start-1 row-start-3 font-mono text-xs @md:col-start-3 @md:row-start-1">
                     <span className="font-sans text-ink-faint @md:hidden">Last </span>
                     {showReading(r.loopReadings[s])}
                   </span>
                   <span className="col-start-2 row-span-3 row-start-1 self-center @md:col-start-4 @md:row-span-1">
-                    {ok === null ? <span className="text-xs text-ink-faint">not measured</span> : <StateBadge value={ok ? 'pass' : 'fail'} label={ok ? 'Fits' : 'Off'} />}
+                    {ok === null ? (
+                      <span className="text-xs text-ink-faint">not measured</span>
+                    ) : ok && r.loop.verdict === 'fail' ? (
+                      <span className="text-xs text-ink-faint">in range</span>
+                    ) : (
+                      <StateBadge value={ok ? 'pass' : 'fail'} label={ok ? 'Fits' : 'Off'} />
+                    )}
                   </span>
                 </li>
               )
@@ -162,7 +186,7 @@ export default function Device({ loaderData }: Route.ComponentProps) {
               <ul className="space-y-2 text-sm">
                 {r.loop.findings.map((f, i) => (
                   <li key={i} className="flex flex-wrap items-start gap-x-2 gap-y-1">
-                    <StateBadge value="fail" label={f.code} />
+                    <StateBadge value={f.advisory ? 'advisory' : 'fail'} label={f.code} />
                     <span className="min-w-0 flex-1 basis-48">{f.message}</span>
                   </li>
                 ))}

@@ -41,9 +41,11 @@ describe('POST /api/diagnose', () => {
     expect(res.status).toBe(200)
     const body = await res.json()
     expect(body).toEqual({
+      // A 10 % resistor as recorded, read by a ±1 % meter (from memory) with 10 Ω of contacts and leads
+      // (common practice): (3.975 + 13,500) × 0.99 − 10 and (3.975 + 16,500) × 1.01 + 10.
       expected: {
-        normal: { ohms: 15003.98, min: 13503.98, max: 16503.97 },
-        alarm: { ohms: 3.98, min: 0, max: 13.98 },
+        normal: { ohms: 15003.97, min: 13358.94, max: 16679.01 },
+        alarm: { ohms: 3.98, min: 0, max: 14.01 },
         trouble: { open: true },
         unpowered: { open: true },
       },
@@ -70,6 +72,23 @@ describe('POST /api/diagnose', () => {
     expect(paths).toEqual(expect.arrayContaining(['arrangement.eolOhms', 'arrangement.conductor.awg', 'readings.normal']))
     expect((await post('{not json')).status).toBe(400)
     expect((await post({ arrangement, readings: { sideways: 3 } })).status).toBe(400)
+  })
+
+  it('names a supervisory contact across the pair as a trouble that reaches the panel as an alarm', async () => {
+    const res = await post({ arrangement, readings: { normal: 15004, alarm: 4, trouble: 4, unpowered: 4 } })
+    const body = await res.json()
+    expect(body.verdict).toBe('fail')
+    expect(body.findings.map((f: { code: string }) => f.code)).toEqual(['trouble-reports-as-alarm'])
+    expect(body.findings[0].message).toMatch(/false dispatch/)
+  })
+
+  it('refuses an EOL value outside the range used on initiating circuits, with the reason', async () => {
+    // 470 Ω–100 kΩ (common practice): 4.7 typed for 4.7 k is a slip of units.
+    const res = await post({ arrangement: { ...arrangement, eolOhms: 4.7 }, readings: {} })
+    expect(res.status).toBe(400)
+    const body = await res.json()
+    expect(body.issues[0].message).toMatch(/below 470 Ω/)
+    expect((await post({ arrangement: { ...arrangement, eolOhms: 220_000 } })).status).toBe(400)
   })
 
   it('is for roles that record work', async () => {
