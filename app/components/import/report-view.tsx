@@ -20,11 +20,11 @@ const COUNT_LABELS: Record<string, string> = {
 function ProblemTable({ caption, rows, total }: { caption: string; rows: Problem[]; total: number }) {
   return (
     <div className="mt-4 overflow-x-auto rounded-md border border-line bg-panel">
-      <table className="w-full text-left text-sm [overflow-wrap:anywhere]">
+      <table className="w-full text-left text-sm">
         <caption className="px-3 py-2 text-left font-semibold">
           {caption} {total > rows.length && <span className="font-normal text-ink-soft">(the first {rows.length.toLocaleString()} of {total.toLocaleString()})</span>}
         </caption>
-        <thead className="bg-sunken text-xs text-ink-soft">
+        <thead className="bg-sunken text-xs whitespace-nowrap text-ink-soft">
           <tr>
             <th className="px-3 py-1.5 font-medium">Row</th>
             <th className="px-3 py-1.5 font-medium">Column</th>
@@ -36,11 +36,11 @@ function ProblemTable({ caption, rows, total }: { caption: string; rows: Problem
           {rows.map((p, i) => (
             <tr key={`${p.row}-${p.column}-${i}`}>
               <td className="px-3 py-1.5 font-mono">{p.row}</td>
-              <td className="px-3 py-1.5">{p.column ?? '—'}</td>
+              <td className="px-3 py-1.5 [overflow-wrap:anywhere]">{p.column ?? '—'}</td>
               <td className="max-w-[8rem] truncate px-3 py-1.5 font-mono sm:max-w-[14rem]" title={p.value}>
                 {p.value === '' ? <span className="text-ink-faint">blank</span> : p.value}
               </td>
-              <td className="px-3 py-1.5">{p.problem}</td>
+              <td className="px-3 py-1.5 [overflow-wrap:anywhere]">{p.problem}</td>
             </tr>
           ))}
         </tbody>
