@@ -1,6 +1,9 @@
 import { isRouteErrorResponse, Links, Meta, Outlet, Scripts, ScrollRestoration } from 'react-router'
 import type { Route } from './+types/root'
 import './app.css'
+import { apiHeaders } from '~/.server/http'
+
+export const middleware: Route.MiddlewareFunction[] = [apiHeaders]
 
 export const meta: Route.MetaFunction = () => [{ title: 'Ductkeeper' }]
 

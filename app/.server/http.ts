@@ -1,3 +1,4 @@
+import type { MiddlewareFunction } from 'react-router'
 import { z } from 'zod'
 
 /**
@@ -150,4 +151,18 @@ export async function readJsonOrForm<S extends z.ZodType>(request: Request, sche
   const kind = kindOf(request, 'json-or-form')
   const bytes = await readBytes(request)
   return validate(schema, kind === 'json' ? parseJson(bytes) : toObject(await parseForm(request, bytes)))
+}
+
+/**
+ * Root middleware: every /api/* answer, refusals included, is never sniffed and never kept by a
+ * browser or proxy (they carry one person's records). A route that chose its own caching (an
+ * attachment's image) keeps it.
+ */
+export const apiHeaders: MiddlewareFunction<Response> = async ({ request }, next) => {
+  const response = await next()
+  if (!new URL(request.url).pathname.startsWith('/api/')) return response
+  const headers = new Headers(response.headers)
+  headers.set('X-Content-Type-Options', 'nosniff')
+  if (!headers.has('Cache-Control')) headers.set('Cache-Control', 'no-store')
+  return new Response(response.body, { status: response.status, statusText: response.statusText, headers })
 }
