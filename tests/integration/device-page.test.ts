@@ -38,6 +38,8 @@ describe('device page', () => {
       expect(html).toContain(`alarm contact ${a.alarm} across the loop`)
       expect(html).toContain(a.placement === 'across-pair' ? 'resistor straight across the loop' : `resistor through supervisory ${a.sup}`)
       if (a.alarm === 'NC') expect(html).toContain('alarm-on-nc')
+      // Expected is the correct loop; a miswired record is shown beside it, not in its place.
+      if (a.alarm === 'NC' || a.placement === 'across-pair') expect(html).toMatch(/as it should be[\s\S]*as recorded/)
       if (a.placement === 'across-pair') expect(html).toContain('not-supervised')
       expect(html).toContain('Before any work: notify, then work.')
     }
