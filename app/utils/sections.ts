@@ -27,6 +27,7 @@ export const SECTIONS: Section[] = [
   { to: '/admin/tokens', label: 'API tokens', key: 'k', capability: 'manage:tokens', group: 'admin' },
   { to: '/admin/audit', label: 'Audit log', key: 'a', capability: 'view:audit', group: 'admin' },
   { to: '/admin/calendar', label: 'Company calendar', key: 'l', capability: 'manage:settings', group: 'admin' },
+  { to: '/admin/outbox', label: 'Outbox', key: 'b', capability: 'manage:settings', group: 'admin' },
 ]
 
 /** The sections a role may open: the rail, the `g` keys, the help overlay and the palette show only these. */
