@@ -203,7 +203,8 @@ function predict(a: Arrangement, faults: Fault[], p: Params, state: DetectorStat
   // A supervisory contact wired like an alarm contact: its trouble-closing terminal across the pair.
   if (has('sup-across')) device = parallel(device, contact(closed('supervisory', other(supT))))
   if (has('leak')) device = parallel(device, [p.leak, p.leak])
-  const wire: Span = [line + (has('series') ? p.series : 0), line + (has('series') ? p.series : 0)]
+  // Series resistance up to the panel's limit is a working loop; past it, the series fault.
+  const wire: Span = [line + p.series, line + p.series]
   // From the panel a short hides the detector; from the device's terminals (panel end lifted) it
   // hangs across them through the wire back to where the conductors touch.
   if (has('short')) return a.measuredAt === 'panel' ? [p.short, p.short] : parallel(device, [p.short, p.short])
@@ -214,13 +215,13 @@ function predict(a: Arrangement, faults: Fault[], p: Params, state: DetectorStat
 const workingRoom = (a: Arrangement) => (a.measuredAt === 'device' ? 0 : Math.max(0, (a.maxLineOhms ?? DEFAULT_MAX_LINE_OHMS) - lineOhmsOf(a)))
 
 /** Whether a reading agrees with a predicted span, allowing the meter and the contacts. */
-function agrees(r: Reading, span: Span, workingSeries: number): boolean {
+function agrees(r: Reading, span: Span): boolean {
   const value = r === 'open' || r >= OPEN_OHMS ? Infinity : r
   if (span[0] === Infinity) return value === Infinity
   if (value === Infinity) return false
   // A loop still working carries wire up to the panel's limit: the panel sees alarm up to there.
   const lo = span[0] * (1 - METER_ACCURACY) - SHORT_ALLOWANCE_OHMS
-  const hi = span[1] * (1 + METER_ACCURACY) + SHORT_ALLOWANCE_OHMS + workingSeries
+  const hi = span[1] * (1 + METER_ACCURACY) + SHORT_ALLOWANCE_OHMS
   return value >= lo && value <= hi
 }
 
@@ -229,7 +230,10 @@ const finite = (r: Reading | undefined): r is number => typeof r === 'number' &&
 function hypotheses(a: Arrangement, readings: Readings, faults: Fault[]): Params[] {
   const line = seenLine(a)
   const values = DETECTOR_STATES.map((s) => readings[s]).filter(finite)
-  const seriesH = faults.includes('series') ? values.map((v) => v - line).filter((v) => v > SHORT_ALLOWANCE_OHMS) : [0]
+  // One series value for every state: past the panel's limit for the series fault, within it otherwise.
+  const room = workingRoom(a)
+  const extra = values.map((v) => v - line)
+  const seriesH = faults.includes('series') ? extra.filter((v) => v > SHORT_ALLOWANCE_OHMS) : [0, ...extra.filter((v) => v > SHORT_ALLOWANCE_OHMS && v <= room)]
   const out: Params[] = []
   for (const s of seriesH) {
     const bare = values.map((v) => v - line - s).filter((v) => v > 0)
@@ -260,8 +264,7 @@ function fitsReadings(a: Arrangement, readings: Readings, faults: Fault[], taken
   for (const params of hypotheses(a, readings, faults)) {
     // Added series resistance is a fault only where it takes the loop past the panel's limit.
     if (faults.includes('series') && params.series <= room) continue
-    const working = faults.includes('series') ? 0 : room
-    if (taken.every((s) => agrees(readings[s] as Reading, predict(a, faults, params, s), working))) return { faults, params }
+    if (taken.every((s) => agrees(readings[s] as Reading, predict(a, faults, params, s)))) return { faults, params }
   }
   return null
 }
@@ -375,7 +378,7 @@ export function diagnose(a: Arrangement, readings: Readings): Diagnosis {
     let fits = sets.filter((s) => s.length === 1).map((s) => fitsReadings(a, readings, s, taken)).filter((f): f is Fit => f !== null)
     if (fits.length === 0) fits = sets.filter((s) => s.length === 2).map((s) => fitsReadings(a, readings, s, taken)).filter((f): f is Fit => f !== null)
     const line = seenLine(a)
-    const state = taken.find((s) => !agrees(readings[s] as Reading, predict(a, [], { series: 0, eol: a.eolOhms, leak: Infinity, short: 0 }, s), workingRoom(a))) ?? null
+    const state = taken.find((s) => !agrees(readings[s] as Reading, predict(a, [], { series: 0, eol: a.eolOhms, leak: Infinity, short: 0 }, s))) ?? null
     if (fits.length === 0) {
       const e = (s: DetectorState) => expected[s]
       const want = (s: DetectorState) => ('open' in e(s) ? 'open' : `${(e(s) as { min: number }).min.toLocaleString('en-US')}–${(e(s) as { max: number }).max.toLocaleString('en-US')} Ω`)
