@@ -23,6 +23,7 @@ export const SECTIONS: Section[] = [
   { to: '/import', label: 'Import', key: 'i', capability: 'edit:records' },
   { to: '/delay-audit', label: 'Delay audit', key: 'r', capability: 'schedule:visits' },
   { to: '/cycles', label: 'Cleaning cycles', key: 'y', capability: 'schedule:visits' },
+  { to: '/settings', label: 'Digest settings', key: 'n', capability: 'receive:digest' },
   { to: '/admin/users', label: 'Users', key: 'u', capability: 'manage:users', group: 'admin' },
   { to: '/admin/tokens', label: 'API tokens', key: 'k', capability: 'manage:tokens', group: 'admin' },
   { to: '/admin/audit', label: 'Audit log', key: 'a', capability: 'view:audit', group: 'admin' },

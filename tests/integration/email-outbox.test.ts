@@ -54,4 +54,17 @@ describe('the admin outbox page', () => {
     const res = await fetch(`${server.url}/admin/outbox`, { method: 'POST', body, headers: { Cookie: cookie.admin, Origin: server.url, 'Content-Type': 'application/x-www-form-urlencoded' } })
     expect(res.status).toBe(400)
   })
+
+  it('a manager switches the digest off and follows one customer on the settings page; bad input is a 400', async () => {
+    const manager = userIdByEmail(data.db, 'manager@ductkeeper.test')
+    const post = (body: URLSearchParams) =>
+      fetch(`${server.url}/settings`, { method: 'POST', body, headers: { Cookie: cookie.manager, Origin: server.url, 'Content-Type': 'application/x-www-form-urlencoded' } })
+    const customer = data.db.$client.prepare('select id from customers order by id limit 1').pluck().get() as number
+    expect((await post(new URLSearchParams({ weekday: '3', hour: '9', customerIds: String(customer) }))).status).toBeLessThan(400)
+    expect(data.db.$client.prepare('select enabled, weekday, hour from digest_settings where user_id = ?').get(manager)).toEqual({ enabled: 0, weekday: 3, hour: 9 })
+    expect(data.db.$client.prepare('select customer_id from digest_customers where user_id = ?').pluck().all(manager)).toEqual([customer])
+    expect(data.db.$client.prepare(`select count(*) from audit_log where entity = 'digest_settings' and entity_id = ?`).pluck().get(String(manager))).toBe(1)
+    expect((await post(new URLSearchParams({ enabled: 'on', weekday: '8', hour: '9' }))).status).toBe(400)
+    expect((await post(new URLSearchParams({ enabled: 'on', weekday: '1', hour: '7', customerIds: '999999' }))).status).toBe(400)
+  })
 })
