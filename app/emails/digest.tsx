@@ -3,7 +3,7 @@ import type { DigestFigures } from '~/.server/email/digest'
 import type { ReasonCode } from '~/domain/vocabulary'
 
 // The console's colours (app/app.css); fonts fall back to the system's where Inter is not installed.
-const C = { paper: '#f5f4ef', panel: '#ffffff', line: '#d9d7ce', ink: '#1b2527', soft: '#4a5557', faint: '#737c7d', accent: '#0e5a55', late: '#a8321f', ok: '#2f6b3a' }
+const C = { paper: '#f5f4ef', panel: '#ffffff', line: '#d9d7ce', ink: '#1b2527', soft: '#4a5557', faint: '#737c7d', accent: '#0e5a55', }
 const FONT = "'Inter', 'Segoe UI', Helvetica, Arial, sans-serif"
 
 const REASON_WORDS: Record<ReasonCode, string> = {
@@ -85,7 +85,8 @@ export function arrow(value: number, before: number | undefined): string {
 }
 
 export function reasonWords(codes: ReasonCode[]): string {
-  return codes.map((c) => REASON_WORDS[c] ?? c).join('; ')
+  const words = codes.map((c) => REASON_WORDS[c] ?? c).join('; ')
+  return words.charAt(0).toUpperCase() + words.slice(1)
 }
 
 export default function DigestEmail({ figures, name, appUrl }: { figures: DigestFigures; name: string; appUrl: string }) {
@@ -122,7 +123,7 @@ export default function DigestEmail({ figures, name, appUrl }: { figures: Digest
                   </Link>{' '}
                   {l.label.trim()}
                   {l.before !== undefined ? (
-                    <span className="dk-soft" style={{ color: l.value > l.before ? C.late : C.ok, fontSize: 13 }}>
+                    <span className="dk-soft" style={{ color: C.soft, fontSize: 13 }}>
                       {' '}
                       ({arrow(l.value, l.before)})
                     </span>
