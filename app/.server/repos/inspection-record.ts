@@ -4,7 +4,7 @@ import { alias } from 'drizzle-orm/sqlite-core'
 import { z } from 'zod'
 import { checkPressure, type RangeStatus } from '~/domain/airflow'
 import type { DetectorState } from '~/domain/contacts'
-import { diagnose, expectedReadings, type Expected, type Readings } from '~/domain/loop'
+import { diagnose, expectedCorrect, type Expected, type Readings } from '~/domain/loop'
 import type { Db } from '../db'
 import { arrangementColumns, arrangementOf } from '../derivation'
 import { env } from '../env'
@@ -210,7 +210,8 @@ function recordVisits(db: Db, visitIds: readonly number[]) {
       }
       const arrangement = arrangementOf(d)
       const hasLoop = Object.keys(loopReadings).length > 0
-      const expected = expectedReadings(arrangement)
+      // Judged against a correctly wired loop of this EOL, conductor and run, as the device page is.
+      const expected = expectedCorrect(arrangement)
       const diagnosis = hasLoop ? diagnose(arrangement, loopReadings) : null
       const loop: LoopRow[] = (Object.entries(loopReadings) as Array<[DetectorState, number | 'open']>).map(([state, reading]) => ({
         state,
