@@ -79,7 +79,8 @@ describe('admin pages in Chromium', () => {
 
     await page.getByRole('link', { name: 'Everything' }).click()
     await page.waitForURL((u) => u.pathname === '/admin/audit' && u.search === '')
-    expect(await page.getByLabel('Person').inputValue()).toBe('')
+    // The address changes a moment before the page shows the new view: wait for the form to follow.
+    await expect.poll(() => page.getByLabel('Person').inputValue()).toBe('')
     expect(await page.getByLabel('Show sign-ins').isChecked()).toBe(false)
     expect(await page.getByRole('link', { name: 'Everything' }).getAttribute('aria-current')).toBe('page')
     expect(await page.getByText('Ada Whitlock signed in').count()).toBe(0)
