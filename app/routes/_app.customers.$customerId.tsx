@@ -86,11 +86,13 @@ export default function Customer({ loaderData }: Route.ComponentProps) {
           <h2 id="due-h" className="font-semibold">
             Due work: most overdue first
           </h2>
-          <span className="text-xs text-ink-faint">
-            {dueWork.total === 0
-              ? 'Nothing overdue'
-              : `Showing ${formatCount(dueWork.rows.length)} of ${formatCount(dueWork.total)} overdue detectors`}
-          </span>
+          {dueWork.total === 0 ? (
+            <span className="text-xs text-ink-faint">Nothing overdue</span>
+          ) : (
+            <Link to={`/devices?customer=${c.id}&due=overdue`} className="text-xs text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink">
+              {`Showing ${formatCount(dueWork.rows.length)} of ${formatCount(dueWork.total)} overdue detectors`} · open the list
+            </Link>
+          )}
         </div>
         <div className="px-4 pt-3">
           <Caution compact />
@@ -158,11 +160,12 @@ export default function Customer({ loaderData }: Route.ComponentProps) {
           <h2 id="sites-h" className="font-semibold">
             Sites
           </h2>
-          <span className="text-xs text-ink-faint">
+          <Link to={`/sites?customer=${c.id}`} className="text-xs text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink">
             {sites.total > sites.rows.length
               ? `Showing ${formatCount(sites.rows.length)} of ${formatCount(sites.total)}, most overdue first`
-              : `${formatCount(sites.total)} ${sites.total === 1 ? 'site' : 'sites'}, most overdue first`}
-          </span>
+              : `${formatCount(sites.total)} ${sites.total === 1 ? 'site' : 'sites'}, most overdue first`}{' '}
+            · open the list
+          </Link>
         </div>
         {sites.rows.length === 0 ? (
           <p className="px-4 py-3 text-sm text-ink-soft">No sites on record.</p>

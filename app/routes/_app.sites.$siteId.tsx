@@ -197,7 +197,7 @@ export default function Site({ loaderData }: Route.ComponentProps) {
       </section>
 
       <section aria-labelledby="det-h" className="rounded-md border border-line bg-panel">
-        <SectionHead id="det-h" title="Detectors" shown={detectors.rows.length} total={detectors.total} />
+        <SectionHead id="det-h" title="Detectors" shown={detectors.rows.length} total={detectors.total} href={`/devices?site=${s.id}`} />
         <div className="overflow-x-auto">
           <table className="w-full text-sm">
             <thead className="text-left text-xs text-ink-faint uppercase">
@@ -245,7 +245,7 @@ export default function Site({ loaderData }: Route.ComponentProps) {
       </section>
 
       <section aria-labelledby="visits-h" className="rounded-md border border-line bg-panel">
-        <SectionHead id="visits-h" title="Upcoming visits" shown={visits.rows.length} total={visits.total} />
+        <SectionHead id="visits-h" title="Upcoming visits" shown={visits.rows.length} total={visits.total} href={`/visits?site=${s.id}&status=planned,notified`} />
         {visits.rows.length === 0 ? (
           <p className="px-4 py-3 text-sm text-ink-soft">No visits planned.</p>
         ) : (
@@ -410,15 +410,21 @@ function NoticeStep({ mc, account }: { mc: Monitoring; account: string | null })
   )
 }
 
-function SectionHead({ id, title, shown, total }: { id: string; title: string; shown: number; total: number }) {
+/** A section's title and count; where a list shows them all, the count opens it. */
+function SectionHead({ id, title, shown, total, href }: { id: string; title: string; shown: number; total: number; href?: string }) {
+  const count = total > shown ? `Showing ${formatCount(shown)} of ${formatCount(total)}` : formatCount(total)
   return (
     <div className="flex flex-wrap items-baseline justify-between gap-2 border-b border-line px-4 py-3">
       <h2 id={id} className="font-semibold">
         {title}
       </h2>
-      <span className="text-xs text-ink-faint">
-        {total > shown ? `Showing ${formatCount(shown)} of ${formatCount(total)}` : formatCount(total)}
-      </span>
+      {href ? (
+        <Link to={href} className="text-xs text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink">
+          {count} · open the list
+        </Link>
+      ) : (
+        <span className="text-xs text-ink-faint">{count}</span>
+      )}
     </div>
   )
 }

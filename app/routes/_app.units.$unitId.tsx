@@ -112,9 +112,9 @@ export default function Unit({ loaderData }: Route.ComponentProps) {
             <h2 id="det-h" className="font-semibold">
               Detectors on {u.tag}
             </h2>
-            <span className="text-xs text-ink-faint">
-              {detectorTotal > detectors.length ? `Showing ${formatCount(detectors.length)} of ${formatCount(detectorTotal)}` : formatCount(detectorTotal)}
-            </span>
+            <Link to={`/devices?unit=${u.id}`} className="text-xs text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink">
+              {detectorTotal > detectors.length ? `Showing ${formatCount(detectors.length)} of ${formatCount(detectorTotal)}` : formatCount(detectorTotal)} · open the list
+            </Link>
           </div>
           {detectors.length === 0 ? (
             <p className="px-4 py-3 text-sm text-ink-soft">No detectors recorded on this unit.</p>
