@@ -84,6 +84,10 @@ describe('every main page at phone and desk width, for every role', () => {
           const keys = [...document.querySelectorAll('kbd')].filter(shown).map((k) => k.textContent)
           if (keys.length) out.push(`key hints shown on a touch screen: ${keys.join(', ')}`)
           if (/j\/k to move/.test(document.body.innerText)) out.push('"j/k to move" shown on a touch screen')
+          // Every control a finger presses: buttons, choices, and fields (tick boxes have a wider label).
+          const controls = [...document.querySelectorAll('main button, main select, main input:not([type=checkbox]):not([type=radio]):not([type=hidden])')].filter(shown)
+          const short = controls.filter((c) => c.getBoundingClientRect().height < minTouch)
+          if (short.length) out.push(`controls shorter than ${minTouch} px: ${short.slice(0, 5).map((c) => (c.textContent || c.getAttribute('aria-label') || c.getAttribute('name') || c.tagName).trim().slice(0, 30)).join(' | ')}`)
         }
         if (drawing) {
           const texts = [...document.querySelectorAll('main svg[role="img"] text')].filter(shown)
