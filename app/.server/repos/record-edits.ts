@@ -25,6 +25,7 @@ import { officeToday } from '../today'
 import { rederive } from '../derivation'
 import { listsChanged } from '../list-query'
 import { auditLog, customers, detectorModels, detectors, monitoringCompanies, sites, units, users } from '../schema'
+import { unitColumns } from './unit'
 
 export type EditKind = 'customer' | 'site' | 'unit' | 'detector' | 'model'
 
@@ -64,23 +65,6 @@ const siteColumns = {
   monitoringAccount: sites.monitoringAccount,
   delayPolicySeconds: sites.delayPolicySeconds,
   accessNotes: sites.accessNotes,
-}
-
-const unitColumns = {
-  tag: units.tag,
-  kind: units.kind,
-  location: units.location,
-  shutdownInput: units.shutdownInput,
-  supplyCfm: units.supplyCfm,
-  returnCfm: units.returnCfm,
-  ductShape: units.ductShape,
-  ductWidthIn: units.ductWidthIn,
-  ductHeightIn: units.ductHeightIn,
-  ductDiameterIn: units.ductDiameterIn,
-  storeysServed: units.storeysServed,
-  sharedPlenum: units.sharedPlenum,
-  areaDetection: units.areaDetection,
-  transformerVa: units.transformerVa,
 }
 
 const detectorColumns = {

@@ -12,29 +12,31 @@ import { perDb } from './statements'
 // A unit carries a supply and a return detector at most, bar the odd extra; the cap only guards the page.
 const DETECTORS_CAP = 200
 
+/** A unit's own record fields, as its page shows them and its edit form changes them. */
+export const unitColumns = {
+  tag: units.tag,
+  kind: units.kind,
+  location: units.location,
+  shutdownInput: units.shutdownInput,
+  supplyCfm: units.supplyCfm,
+  returnCfm: units.returnCfm,
+  ductShape: units.ductShape,
+  ductWidthIn: units.ductWidthIn,
+  ductHeightIn: units.ductHeightIn,
+  ductDiameterIn: units.ductDiameterIn,
+  storeysServed: units.storeysServed,
+  sharedPlenum: units.sharedPlenum,
+  areaDetection: units.areaDetection,
+  transformerVa: units.transformerVa,
+}
+
 const id = sql.placeholder('id')
 const detectorsOfUnit = eq(detectors.unitId, id)
 
 const statements = perDb((db: Db) => ({
   unit: db
     .select({
-      unit: {
-        id: units.id,
-        tag: units.tag,
-        kind: units.kind,
-        location: units.location,
-        shutdownInput: units.shutdownInput,
-        supplyCfm: units.supplyCfm,
-        returnCfm: units.returnCfm,
-        ductShape: units.ductShape,
-        ductWidthIn: units.ductWidthIn,
-        ductHeightIn: units.ductHeightIn,
-        ductDiameterIn: units.ductDiameterIn,
-        storeysServed: units.storeysServed,
-        sharedPlenum: units.sharedPlenum,
-        areaDetection: units.areaDetection,
-        transformerVa: units.transformerVa,
-      },
+      unit: { id: units.id, ...unitColumns },
       site: { id: sites.id, name: sites.name, city: sites.city, codeBasis: sites.codeBasis, ahjName: sites.ahjName },
       customer: { id: customers.id, name: customers.name },
       monitoring: { name: monitoringCompanies.name, phone: monitoringCompanies.phone, notifyMethod: monitoringCompanies.notifyMethod },
