@@ -116,6 +116,13 @@ describe('deriveDetector', () => {
     expect(decodeReasons(',failed-test,overdue,')).toEqual(['failed-test', 'overdue'])
   })
 
+  it('ends the sensitivity streak on a day that holds a fail, whichever order that day was stored in', () => {
+    const pass = { task: 'sensitivity', doneOn: '2015-05-24', outcome: 'pass' } as const
+    const fail = { task: 'sensitivity', doneOn: '2015-05-24', outcome: 'fail' } as const
+    expect(derive([pass, fail], '2016-01-01', {}).stored.sensitivityStreak).toBe(0)
+    expect(derive([fail, pass], '2016-01-01', {}).stored.sensitivityStreak).toBe(0)
+  })
+
   it('gives the same facts for any order of the same history, and the score is the sum of its reasons', () => {
     const day = fc.integer({ min: 0, max: 3000 }).map((n) => new Date(Date.UTC(2015, 0, 1) + n * 86_400_000).toISOString().slice(0, 10))
     const result = fc.record({ task: fc.constantFrom('visual', 'functional', 'sensitivity', 'cleaning' as const), doneOn: day, outcome: fc.constantFrom('pass', 'fail' as const) })

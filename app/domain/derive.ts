@@ -103,7 +103,11 @@ export function workFacts(results: readonly TaskResult[]): WorkFacts {
     for (const r of results) if (r.task === task && (on === null || r.doneOn > on)) on = r.doneOn
     return on
   }
-  const sensitivity = results.filter((r) => r.task === 'sensitivity').sort((a, b) => (a.doneOn < b.doneOn ? 1 : a.doneOn > b.doneOn ? -1 : 0))
+  // Newest first; on one day a fail comes before a pass, so a day with any fail ends the streak
+  // whatever order the results were stored in (the same rule as lastResult below).
+  const sensitivity = results
+    .filter((r) => r.task === 'sensitivity')
+    .sort((a, b) => (a.doneOn !== b.doneOn ? (a.doneOn < b.doneOn ? 1 : -1) : a.outcome === b.outcome ? 0 : a.outcome === 'fail' ? -1 : 1))
   let streak = 0
   for (const r of sensitivity) {
     if (r.outcome !== 'pass') break
