@@ -88,6 +88,8 @@ export const sites = sqliteTable(
     monitoringAccount: text('monitoring_account'),
     // The reporting delay agreed with the monitoring company, in seconds (0 = report at once).
     delayPolicySeconds: integer('delay_policy_seconds').notNull().default(0),
+    // The site keeps records of nuisance alarms: only then may sensitivity tests stretch to the longer interval.
+    keepsNuisanceRecords: integer('keeps_nuisance_records', { mode: 'boolean' }).notNull().default(false),
     accessNotes: text('access_notes'),
     version: integer('version').notNull().default(1),
     createdAt: createdAt(),
@@ -117,6 +119,8 @@ export const units = sqliteTable(
     ductHeightIn: real('duct_height_in'),
     ductDiameterIn: real('duct_diameter_in'),
     storeysServed: integer('storeys_served').notNull().default(1),
+    // Detectors fitted at each storey's return before it joins the common return; null when not recorded.
+    storeyReturnDetectors: integer('storey_return_detectors'),
     sharedPlenum: integer('shared_plenum', { mode: 'boolean' }).notNull().default(false),
     areaDetection: integer('area_detection', { mode: 'boolean' }).notNull().default(false),
     transformerVa: integer('transformer_va').notNull().default(40),
@@ -176,6 +180,10 @@ export const detectors = sqliteTable(
     installedOn: text('installed_on').notNull(),
     eolOhms: integer('eol_ohms').notNull(),
     eolPlacement: text('eol_placement', { enum: EOL_PLACEMENTS }).notNull(),
+    // The resistor's marked tolerance in percent; null means the usual 5 %.
+    eolTolerancePct: real('eol_tolerance_pct'),
+    // The panel input's alarm threshold in ohms, from the panel's documentation; null means not recorded.
+    alarmThresholdOhms: integer('alarm_threshold_ohms'),
     alarmTerminal: text('alarm_terminal', { enum: TERMINALS }).notNull(),
     supervisoryTerminal: text('supervisory_terminal', { enum: TERMINALS }).notNull(),
     conductorAwg: integer('conductor_awg').notNull(),
@@ -445,6 +453,8 @@ export const sessions = sqliteTable(
     lastSeenAt: text('last_seen_at').notNull(),
     revokedAt: text('revoked_at'),
     userAgent: text('user_agent'),
+    // The identity provider's ID token, kept only to end its session at sign-out (id_token_hint).
+    idToken: text('id_token'),
   },
   (t) => [index('sessions_user_idx').on(t.userId)],
 )
@@ -630,3 +640,17 @@ export const importMappings = sqliteTable('import_mappings', {
     .notNull()
     .default(sql`(strftime('%Y-%m-%dT%H:%M:%fZ','now'))`),
 })
+
+// The digest's figures as sent each ISO week, so the next week's digest can show what changed.
+export const digestSnapshots = sqliteTable(
+  'digest_snapshots',
+  {
+    userId: integer('user_id')
+      .notNull()
+      .references(() => users.id),
+    week: text('week').notNull(),
+    figures: text('figures', { mode: 'json' }).notNull(),
+    createdAt: createdAt(),
+  },
+  (t) => [primaryKey({ columns: [t.userId, t.week] })],
+)
