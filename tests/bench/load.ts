@@ -1,0 +1,167 @@
+// npm run load -- [--db <file>] [--seconds 20] [--connections 50] [--rate <requests per second, all connections>]
+// A bounded load run on loopback: autocannon drives the list APIs while a bulk reschedule (preview,
+// apply, undo) and a visit's notice, start and completion run through the same server, and /healthz
+// is timed throughout. Fails (exit 1) on any error or non-2xx answer, any SQLITE_BUSY in the
+// server's output, or /healthz at or over 50 ms p99. Runs on a copy: the given file is never written.
+import { copyFileSync, mkdtempSync, rmSync } from 'node:fs'
+import { tmpdir } from 'node:os'
+import { join } from 'node:path'
+import { parseArgs } from 'node:util'
+import autocannon from 'autocannon'
+import { createDb } from '~/.server/db'
+import { createToken } from '~/.server/repos/tokens'
+import { startServer } from '#tests/setup/server'
+import { seededDb } from '#tests/setup/temp-db'
+
+const { values } = parseArgs({
+  options: { db: { type: 'string' }, seconds: { type: 'string', default: '20' }, connections: { type: 'string', default: '50' }, rate: { type: 'string' } },
+})
+const seconds = Math.min(60, Math.max(3, Number(values.seconds)))
+const connections = Math.min(100, Math.max(1, Number(values.connections)))
+// Without a rate every connection sends its next request as soon as the last is answered (the most
+// the process can serve); with one, the run is an office's steady traffic and /healthz shows the wait.
+const rate = values.rate ? Math.min(5_000, Math.max(1, Number(values.rate))) : undefined
+
+const dir = mkdtempSync(join(tmpdir(), 'ductkeeper-load-'))
+const path = join(dir, 'load.db')
+if (values.db) copyFileSync(values.db, path)
+else {
+  const demo = seededDb('demo')
+  copyFileSync(demo.path, path)
+  demo.cleanup()
+}
+
+// Tokens, the day the file was derived for, and the work to run, read before the server starts.
+const db = createDb(path)
+const q = db.$client
+const derivedDay = (q.prepare("select value from app_state where key = 'derived-day'").get() as { value: string } | undefined)?.value
+const userId = (email: string) => (q.prepare('select id from users where email = ?').get(email) as { id: number }).id
+const expiresAt = new Date(Date.now() + 3_600_000)
+const token = (email: string) => createToken(db, { userId: userId(email), name: 'load run', expiresAt, actorId: null }).token
+const lead = token('lead@ductkeeper.test')
+const office = token('office@ductkeeper.test')
+const visit = q
+  .prepare(
+    `select v.id, v.technician_id as tech, u.email from visits v join users u on u.id = v.technician_id
+      where v.status = 'planned' and exists (select 1 from visit_detectors vd where vd.visit_id = v.id) order by v.scheduled_on, v.id limit 1`,
+  )
+  .get() as { id: number; tech: number; email: string } | undefined
+const technician = visit ? token(visit.email) : null
+const detectorIds = visit ? (q.prepare('select detector_id as id from visit_detectors where visit_id = ?').all(visit.id) as Array<{ id: number }>).map((r) => r.id) : []
+const someSite = (q.prepare('select min(id) as id from sites').get() as { id: number }).id
+q.close()
+
+const server = await startServer(path, derivedDay ? { OFFICE_TODAY: derivedDay } : {})
+const auth = (t: string) => ({ authorization: `Bearer ${t}`, 'content-type': 'application/json' })
+
+// The list reads the console makes most: first pages, sorts, filters, a text search and a deep page.
+const reads = [
+  '/api/devices?limit=100',
+  '/api/devices?limit=100&sort=nextDueOn&dir=asc',
+  '/api/devices?limit=100&environment=humid',
+  '/api/devices?limit=100&offset=5000',
+  '/api/events?limit=100',
+  '/api/events?limit=100&q=rtu',
+  '/api/visits?limit=100',
+  '/api/sites?limit=100',
+  '/api/customers?limit=100',
+  '/api/triage?limit=100',
+  `/api/sites/${someSite}`,
+  '/api/search?q=ro',
+]
+
+// /healthz every 50 ms from its own connection, for the whole run.
+const health: number[] = []
+let probing = true
+const probe = (async () => {
+  while (probing) {
+    const t = performance.now()
+    const res = await fetch(`${server.url}/healthz`)
+    await res.arrayBuffer()
+    health.push(performance.now() - t)
+    await new Promise((r) => setTimeout(r, 50))
+  }
+})()
+
+interface Step {
+  name: string
+  status: number
+  ms: number
+  error?: string
+}
+const steps: Step[] = []
+async function call(name: string, method: string, url: string, t: string, body?: unknown) {
+  const start = performance.now()
+  const res = await fetch(server.url + url, { method, headers: auth(t), body: body === undefined ? undefined : JSON.stringify(body) })
+  const json = (await res.json().catch(() => null)) as Record<string, unknown> | null
+  steps.push({ name, status: res.status, ms: performance.now() - start, error: res.ok ? undefined : JSON.stringify(json).slice(0, 300) })
+  return json
+}
+
+// The writes, started a few seconds into the load so they meet it at full speed.
+const writes = (async () => {
+  await new Promise((r) => setTimeout(r, 3_000))
+  const filter = 'status=planned'
+  const preview = await call('bulk reschedule: preview', 'POST', '/api/bulk/reschedule', office, { preview: true, filter, mode: 'shift', days: 2 })
+  if (preview?.previewId) {
+    const applied = await call('bulk reschedule: apply', 'POST', '/api/bulk/reschedule', office, { preview: false, previewId: preview.previewId, filter, mode: 'shift', days: 2 })
+    if (applied?.changeId) await call('bulk reschedule: undo', 'POST', '/api/bulk/undo', office, { changeId: applied.changeId })
+  }
+  if (!visit || !technician) return
+  const version = async () => ((await call('visit: read', 'GET', `/api/visits/${visit.id}`, technician)) as { visit: { version: number } }).visit.version
+  const now = Date.now()
+  await call('visit: notice', 'POST', `/api/visits/${visit.id}`, technician, {
+    intent: 'notify',
+    version: await version(),
+    method: 'phone',
+    spokeWith: 'Operator on the load run',
+    inTestFrom: new Date(now).toISOString(),
+    inTestUntil: new Date(now + 4 * 3_600_000).toISOString(),
+    siteManagementTold: true,
+  })
+  await call('visit: start', 'POST', `/api/visits/${visit.id}`, technician, { intent: 'start', version: await version() })
+  await call('visit: complete', 'POST', `/api/visits/${visit.id}`, technician, {
+    intent: 'complete',
+    version: await version(),
+    entries: detectorIds.map((detectorId) => ({ detectorId, result: 'pass' })),
+  })
+})()
+
+let next = 0
+const result = await autocannon({
+  url: server.url,
+  connections,
+  duration: seconds,
+  ...(rate ? { overallRate: rate } : {}),
+  requests: [{ method: 'GET', headers: { authorization: `Bearer ${lead}` }, setupRequest: (req) => ({ ...req, path: reads[next++ % reads.length] }) }],
+})
+await writes
+probing = false
+await probe
+await server.stop()
+rmSync(dir, { recursive: true, force: true })
+
+const pct = (xs: number[], p: number) => {
+  const s = [...xs].sort((a, b) => a - b)
+  return s[Math.min(s.length - 1, Math.floor(p * s.length))] ?? NaN
+}
+const busy = (server.output().match(/SQLITE_BUSY/g) ?? []).length
+console.log(`\nLoad: ${connections} connections${rate ? ` at ${rate} requests/s` : ', as fast as answered,'} for ${seconds} s over ${reads.length} list reads (${values.db ? 'given file' : 'demo scale'})`)
+console.log(`  requests ${result.requests.total}, ${result.requests.average}/s; errors ${result.errors}, timeouts ${result.timeouts}, non-2xx ${result.non2xx}`)
+console.log(`  latency p50 ${result.latency.p50} ms, p99 ${result.latency.p99} ms, max ${result.latency.max} ms`)
+console.log(`  /healthz: ${health.length} probes, p50 ${pct(health, 0.5).toFixed(1)} ms, p99 ${pct(health, 0.99).toFixed(1)} ms, max ${Math.max(...health).toFixed(1)} ms`)
+for (const s of steps) console.log(`  ${s.name}: ${s.status} in ${s.ms.toFixed(0)} ms${s.error ? ` ${s.error}` : ''}`)
+console.log(`  SQLITE_BUSY in the server's output: ${busy}`)
+
+const failed = [
+  result.errors > 0 && `${result.errors} errors`,
+  result.non2xx > 0 && `${result.non2xx} non-2xx answers`,
+  busy > 0 && 'SQLITE_BUSY reached the log',
+  pct(health, 0.99) >= 50 && '/healthz p99 at or over 50 ms',
+  steps.some((s) => s.status >= 300) && 'a write was refused',
+].filter(Boolean)
+if (failed.length) {
+  console.error(`FAILED: ${failed.join('; ')}`)
+  process.exit(1)
+}
+console.log('PASSED')
