@@ -11,6 +11,8 @@ export interface IdpOptions {
   clientId: string
   clientSecret: string
   redirectUris: string[]
+  /** Where the app may send people back after sign-out; by default its `/sign-in?signed-out` beside each redirect. */
+  postLogoutRedirectUris?: string[]
   accounts: IdpAccount[]
 }
 export interface RunningIdp { issuer: string; close(): Promise<void> }
@@ -106,6 +108,7 @@ function buildConfiguration(opts: IdpOptions): Configuration {
         client_id: opts.clientId,
         client_secret: opts.clientSecret,
         redirect_uris: opts.redirectUris,
+        post_logout_redirect_uris: opts.postLogoutRedirectUris ?? opts.redirectUris.map((u) => new URL('/sign-in?signed-out', u).toString()),
         token_endpoint_auth_method: 'client_secret_basic',
         grant_types: ['authorization_code'],
         response_types: ['code'],
@@ -130,9 +133,19 @@ function buildConfiguration(opts: IdpOptions): Configuration {
         enabled: true,
         logoutSource: (ctx: OidcContext, form: string) => {
           ctx.type = 'html'
+          // The library has already checked any id_token_hint: with one, the app is ending this person's
+          // session, so sign out at once as company providers commonly do. Without one, ask first.
+          if (ctx.oidc.params.id_token_hint) {
+            ctx.body = page(
+              'Signing out (local stand-in)',
+              `<h1>Signing out…</h1>${form.replace('</form>', '<input type="hidden" name="logout" value="yes"><noscript><button type="submit">Continue</button></noscript></form>')}
+<script>document.getElementById('op.logoutForm').submit()</script>`,
+            )
+            return
+          }
           ctx.body = page(
             'Sign out (local stand-in)',
-            `<h1>Sign out of the local stand-in?</h1>${form}
+            `<h1>Sign out of the local stand-in?</h1><p>Then you can sign in as someone else.</p>${form}
 <ul><li><button type="submit" form="op.logoutForm" name="logout" value="yes" autofocus>Yes, sign out</button></li>
 <li><button class="quiet" type="submit" form="op.logoutForm">Stay signed in</button></li></ul>`,
           )

@@ -12,6 +12,7 @@ declare module 'oidc-provider' {
       client: { clientId: string }
       session: { accountId?: string; grantIdFor(clientId: string): string | undefined }
       result?: { consent?: { grantId?: string } }
+      params: Record<string, unknown>
       provider: Provider
     }
     host: string

@@ -20,23 +20,83 @@ export interface CurrentUser {
 export interface Identity {
   email: string
   name: string | null
+  /** The provider's ID token, kept with the session so sign-out can end the provider's session too. */
+  idToken: string | null
 }
 
 export const OAUTH_COOKIE = 'dk_oauth'
 
-async function endpoints() {
+interface Endpoints {
+  authorization: string
+  token: string
+  userinfo: string
+  /** RP-initiated logout; a provider without one keeps its own session after sign-out. */
+  endSession: string | null
+}
+
+async function discover(): Promise<Endpoints> {
   if (env.OIDC_AUTHORIZATION_ENDPOINT && env.OIDC_TOKEN_ENDPOINT && env.OIDC_USERINFO_ENDPOINT) {
     return {
       authorization: env.OIDC_AUTHORIZATION_ENDPOINT,
       token: env.OIDC_TOKEN_ENDPOINT,
       userinfo: env.OIDC_USERINFO_ENDPOINT,
+      endSession: env.OIDC_END_SESSION_ENDPOINT ?? null,
     }
   }
   if (!env.OIDC_ISSUER) throw new Error('Set OIDC_ISSUER, or the three OIDC_*_ENDPOINT variables, to sign people in.')
   const res = await fetch(new URL('.well-known/openid-configuration', env.OIDC_ISSUER.replace(/\/?$/, '/')))
   if (!res.ok) throw new Error(`Identity provider discovery failed: HTTP ${res.status}`)
-  const doc = (await res.json()) as { authorization_endpoint: string; token_endpoint: string; userinfo_endpoint: string }
-  return { authorization: doc.authorization_endpoint, token: doc.token_endpoint, userinfo: doc.userinfo_endpoint }
+  const doc = (await res.json()) as { authorization_endpoint: string; token_endpoint: string; userinfo_endpoint: string; end_session_endpoint?: string }
+  return {
+    authorization: doc.authorization_endpoint,
+    token: doc.token_endpoint,
+    userinfo: doc.userinfo_endpoint,
+    endSession: env.OIDC_END_SESSION_ENDPOINT ?? doc.end_session_endpoint ?? null,
+  }
+}
+
+let discovered: Promise<Endpoints> | null = null
+
+function endpoints(): Promise<Endpoints> {
+  discovered ??= discover().catch((error) => {
+    discovered = null // retry discovery on the next request
+    throw error
+  })
+  return discovered
+}
+
+/**
+ * Where to send a person at sign-out so the provider ends its own session too (OpenID Connect
+ * RP-initiated logout), coming back to the sign-in page. Without it the provider would sign the next
+ * person at this browser straight back in as the last one. Null when the provider has no such
+ * endpoint or cannot be reached: the app's session is ended either way.
+ */
+export async function providerSignOutUrl(request: Request, idToken: string | null): Promise<string | null> {
+  let endSession: string | null
+  try {
+    endSession = (await endpoints()).endSession
+  } catch (error) {
+    console.warn('sign-out: identity provider not reachable:', error instanceof Error ? error.message : error)
+    return null
+  }
+  if (!endSession) return null
+  const url = new URL(endSession)
+  // With the ID token the provider knows whose session to end and may skip its question; without one
+  // (a refused sign-in keeps no session) the client id lets it accept the way back.
+  if (idToken) url.searchParams.set('id_token_hint', idToken)
+  else url.searchParams.set('client_id', env.OIDC_CLIENT_ID)
+  url.searchParams.set('post_logout_redirect_uri', new URL(SIGNED_OUT_PATH, env.APP_URL ?? request.url).toString())
+  return url.toString()
+}
+
+export const SIGNED_OUT_PATH = '/sign-in?signed-out'
+
+function idTokenOf(tokens: { idToken(): string }): string | null {
+  try {
+    return tokens.idToken()
+  } catch {
+    return null // a plain OAuth 2.0 provider sends none
+  }
 }
 
 let authenticator: Promise<Authenticator<Identity>> | null = null
@@ -68,7 +128,7 @@ export function getAuthenticator(request: Request): Promise<Authenticator<Identi
           if (!info.email) throw new Error('The identity provider did not share an e-mail address.')
           // Accounts are matched on e-mail, so an address the provider has not verified proves nothing.
           if (info.email_verified === false) throw new Error('The identity provider has not verified this e-mail address.')
-          return { email: info.email.toLowerCase(), name: info.name ?? null }
+          return { email: info.email.toLowerCase(), name: info.name ?? null, idToken: idTokenOf(tokens) }
         },
       ),
       'oidc',

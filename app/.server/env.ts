@@ -23,6 +23,8 @@ const schema = z
     OIDC_AUTHORIZATION_ENDPOINT: optionalUrl,
     OIDC_TOKEN_ENDPOINT: optionalUrl,
     OIDC_USERINFO_ENDPOINT: optionalUrl,
+    /** The provider's end_session_endpoint, when not found by discovery; sign-out ends its session there. */
+    OIDC_END_SESSION_ENDPOINT: optionalUrl,
     OIDC_CLIENT_ID: z.string().default('ductkeeper-local'),
     OIDC_CLIENT_SECRET: z.string().default(DEMO_CLIENT_SECRET),
     OIDC_REDIRECT_URI: optionalUrl,

@@ -5,6 +5,8 @@ import { env, secureCookies, sessionSecret } from './env'
 
 interface SessionData {
   userId: number
+  /** Written once at sign-in to the session's row, never read back into the session's data. */
+  idToken?: string
 }
 
 const HOUR = 3_600_000
@@ -55,9 +57,16 @@ export const sessionStorage = createSessionStorage<SessionData>({
     const now = new Date()
     getDb()
       .$client.prepare(
-        'insert into sessions (id, user_id, created_at, expires_at, last_seen_at) values (?, ?, ?, ?, ?)',
+        'insert into sessions (id, user_id, created_at, expires_at, last_seen_at, id_token) values (?, ?, ?, ?, ?, ?)',
       )
-      .run(id, data.userId, now.toISOString(), (expires ?? new Date(now.getTime() + env.SESSION_MAX_AGE_HOURS * HOUR)).toISOString(), now.toISOString())
+      .run(
+        id,
+        data.userId,
+        now.toISOString(),
+        (expires ?? new Date(now.getTime() + env.SESSION_MAX_AGE_HOURS * HOUR)).toISOString(),
+        now.toISOString(),
+        data.idToken ?? null,
+      )
     return id
   },
   async readData(id) {
@@ -70,6 +79,13 @@ export const sessionStorage = createSessionStorage<SessionData>({
     getDb().$client.prepare("update sessions set revoked_at = strftime('%Y-%m-%dT%H:%M:%fZ','now') where id = ? and revoked_at is null").run(id)
   },
 })
+
+/** The provider's ID token kept for a session at sign-in (null for one made without the provider). */
+export function sessionIdToken(id: string): string | null {
+  if (!id) return null
+  const row = getDb().$client.prepare('select id_token as idToken from sessions where id = ?').get(id) as { idToken: string | null } | undefined
+  return row?.idToken ?? null
+}
 
 /** Revokes every live session of a user (deactivation, role change), inside the caller's transaction. */
 export function revokeSessionsOf(db: Db, userId: number) {

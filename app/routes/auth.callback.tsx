@@ -1,4 +1,4 @@
-import { data, redirect } from 'react-router'
+import { data, Form, redirect } from 'react-router'
 import { writeAudit } from '~/.server/audit'
 import { getAuthenticator } from '~/.server/auth'
 import { getDb } from '~/.server/db'
@@ -17,9 +17,10 @@ export async function loader({ request }: Route.LoaderArgs) {
   headers.append('Set-Cookie', await returnToCookie.serialize('', { maxAge: 0 }))
 
   let email: string
+  let idToken: string | null
   try {
     const auth = await getAuthenticator(request)
-    email = (await auth.authenticate('oidc', request)).email
+    ;({ email, idToken } = await auth.authenticate('oidc', request))
   } catch (error) {
     console.warn('sign-in callback refused:', error instanceof Error ? error.message : error)
     auditRefusedSignIn(getDb(), { reason: 'failed', email: null, userId: null })
@@ -39,6 +40,7 @@ export async function loader({ request }: Route.LoaderArgs) {
   }
   const session = await sessionStorage.getSession()
   session.set('userId', user.id)
+  if (idToken) session.set('idToken', idToken)
   headers.append('Set-Cookie', await sessionStorage.commitSession(session))
   writeAudit(db, { actorId: user.id, action: 'session.sign-in', entity: 'user', entityId: user.id })
   throw redirect(await readReturnTo(request), { headers })
@@ -64,9 +66,18 @@ export default function Refused({ loaderData }: Route.ComponentProps) {
             MESSAGES.failed
           )}
         </p>
-        <a href="/sign-in" className="mt-6 inline-block rounded-sm bg-accent px-4 py-2 text-accent-ink">
-          Back to sign-in
-        </a>
+        {loaderData.email ? (
+          // The provider still holds this person's session: end it there so it asks who signs in next.
+          <Form method="post" action="/sign-out" className="mt-6">
+            <button type="submit" className="rounded-sm bg-accent px-4 py-2 text-accent-ink">
+              Sign in with another account
+            </button>
+          </Form>
+        ) : (
+          <a href="/sign-in" className="mt-6 inline-block rounded-sm bg-accent px-4 py-2 text-accent-ink">
+            Back to sign-in
+          </a>
+        )}
       </div>
     </main>
   )

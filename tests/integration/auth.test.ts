@@ -3,8 +3,8 @@ import { createHash } from 'node:crypto'
 import { promisify } from 'node:util'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { createToken } from '~/.server/repos/tokens'
-import { go, Jar, signInViaProvider } from '#tests/setup/oauth-client'
-import { startServer } from '#tests/setup/server'
+import { follow, go, Jar, signInViaProvider } from '#tests/setup/oauth-client'
+import { startServer, TEST_CLIENT } from '#tests/setup/server'
 import { sessionCookieFor, userIdByEmail } from '#tests/setup/sessions'
 import { seededDb } from '#tests/setup/temp-db'
 
@@ -40,11 +40,80 @@ describe('sign-in, sessions and tokens', () => {
     expect(who.status).toBe(200)
     expect((await who.json()).user).toMatchObject({ email: 'lead@ductkeeper.test', role: 'lead' })
 
-    const out = await go(jar, `${server.url}/sign-out`, { method: 'POST', headers: { Origin: server.url } })
-    expect(out.status).toBe(302)
-    expect(out.headers.get('location')).toBe('/sign-in?signed-out')
+    const out = await signOutThroughProvider(jar)
+    expect(out.landing).toBe(`${server.url}/sign-in?signed-out`)
     // The old cookie, replayed, is dead: the session record was revoked.
     expect((await me({ cookie })).status).toBe(401)
+  })
+
+  /** POST /sign-out, then the provider's end-session page (its form submitted as its script would), back to the app. */
+  async function signOutThroughProvider(jar: Jar) {
+    const out = await go(jar, `${server.url}/sign-out`, { method: 'POST', headers: { Origin: server.url } })
+    expect(out.status).toBe(302)
+    const endSession = new URL(out.headers.get('location')!)
+    expect(endSession.origin).toBe(server.issuer)
+    const page = await go(jar, endSession.toString())
+    expect(page.status).toBe(200)
+    const html = await page.text()
+    const action = /<form id="op.logoutForm" method="post" action="([^"]+)"/.exec(html)![1]
+    const fields = new URLSearchParams([...html.matchAll(/<input type="hidden" name="(\w+)" value="([^"]*)"/g)].map((m) => [m[1], m[2]]))
+    // As the person answering "Yes, sign out" where the provider asks.
+    fields.set('logout', 'yes')
+    const confirm = await go(jar, new URL(action, endSession).toString(), {
+      method: 'POST',
+      headers: { 'Content-Type': 'application/x-www-form-urlencoded' },
+      body: fields,
+    })
+    expect(confirm.status).toBe(303)
+    return { endSession, html, landing: confirm.headers.get('location')! }
+  }
+
+  /** A second browser holding only the provider's cookies from the first. */
+  function providerCookies(jar: Jar) {
+    const copy = new Jar()
+    copy.cookies = new Map([...jar.cookies].filter(([k]) => k.startsWith('idp_')))
+    return copy
+  }
+
+  /** Starts a sign-in with the jar's cookies: where the provider sends the browser first. */
+  async function providerAnswer(jar: Jar) {
+    const start = await go(jar, `${server.url}/sign-in`, {
+      method: 'POST',
+      headers: { Origin: server.url, 'Content-Type': 'application/x-www-form-urlencoded' },
+      body: new URLSearchParams({ returnTo: '/' }),
+    })
+    return (await follow(jar, start.headers.get('location')!, (u) => u.startsWith(`${server.url}/auth/callback`))).url
+  }
+
+  it('ends the provider session at sign-out, so the next person chooses an account', async () => {
+    const { jar } = await signInViaProvider(server.url, 'office@ductkeeper.test')
+    const sessionId = data.db.$client.prepare('select id_token as t from sessions where revoked_at is null and id_token is not null order by created_at desc limit 1').get() as { t: string }
+    expect(sessionId.t.split('.')).toHaveLength(3)
+    // While the provider session lives, a new sign-in in this browser comes straight back signed in as the same person.
+    expect(await providerAnswer(providerCookies(jar))).toMatch(/\/auth\/callback\?/)
+
+    const out = await signOutThroughProvider(jar)
+    expect(out.endSession.searchParams.get('id_token_hint')).toBe(sessionId.t)
+    expect(out.endSession.searchParams.get('post_logout_redirect_uri')).toBe(`${server.url}/sign-in?signed-out`)
+    expect(out.landing).toBe(`${server.url}/sign-in?signed-out`)
+    // Now the provider asks who is signing in.
+    expect(await providerAnswer(jar)).toMatch(/\/interaction\/[\w-]+$/)
+  })
+
+  it('lets a refused person choose another account', async () => {
+    const { jar, callback } = await signInViaProvider(server.url, 'visitor@ductkeeper.test')
+    expect(callback.status).toBe(403)
+    expect(await callback.text()).toContain('Sign in with another account')
+    // Trying again as they are would bring the same refused person back.
+    expect(await providerAnswer(providerCookies(jar))).toMatch(/\/auth\/callback\?/)
+    const out = await signOutThroughProvider(jar)
+    // No session, no ID token: the client id vouches for the way back, and the provider asks first.
+    expect(out.endSession.searchParams.get('client_id')).toBe(TEST_CLIENT.id)
+    expect(out.html).toContain('Yes, sign out')
+    expect(out.landing).toBe(`${server.url}/sign-in?signed-out`)
+    expect(await providerAnswer(jar)).toMatch(/\/interaction\/[\w-]+$/)
+    const next = await signInViaProvider(server.url, 'tech@ductkeeper.test')
+    expect(next.callback.status).toBe(302)
   })
 
   it('refuses a person the provider knows but Ductkeeper does not', async () => {
