@@ -1,5 +1,6 @@
 import { Body, Container, Head, Heading, Hr, Html, Link, Preview, Section, Text } from '@react-email/components'
 import type { DigestFigures } from '~/.server/email/digest'
+import type { WeekFigures } from '~/.server/email/snapshots'
 import type { ReasonCode } from '~/domain/vocabulary'
 
 // The console's colours (app/app.css); fonts fall back to the system's where Inter is not installed.
@@ -17,13 +18,14 @@ const REASON_WORDS: Record<ReasonCode, string> = {
   'humid-unrated': 'humid location, standard housing',
   'delay-disagrees': 'reporting delay differs from site policy',
   'delay-unknown': 'reporting delay not recorded',
+  'supervision-unproven': 'loop never shown to report trouble',
 }
 
 export interface DigestLine {
   label: string
   value: number
   href: string
-  /** Last week's figure, for an arrow; absent where no earlier figure is kept. */
+  /** Last week's figure, for an arrow and its words; absent where no earlier figure is kept. */
   before?: number
   note?: string
 }
@@ -33,8 +35,12 @@ export interface DigestSection {
   lines: DigestLine[]
 }
 
-/** The digest's figures as titled lines, each with the console view that shows it. */
-export function digestSections(f: DigestFigures, appUrl: string): DigestSection[] {
+/**
+ * The digest's figures as titled lines, each with the console view that shows it. `lastWeek` is what
+ * last week's digest said; the week's failed tests, visits and notices fall back on the history's own
+ * count for the week before when no digest was kept.
+ */
+export function digestSections(f: DigestFigures, appUrl: string, lastWeek: WeekFigures | null = null): DigestSection[] {
   const scope = f.customers?.length === 1 ? `&customer=${f.customers[0].id}` : ''
   const u = (path: string) => `${appUrl}${path}`
   const tasks = ['visual', 'functional', 'sensitivity', 'cleaning'] as const
@@ -42,9 +48,9 @@ export function digestSections(f: DigestFigures, appUrl: string): DigestSection[
     {
       title: 'Due dates',
       lines: [
-        { label: 'Detectors overdue', value: f.overdue.any, href: u(`/devices?due=overdue${scope}`) },
+        { label: 'Detectors overdue', value: f.overdue.any, before: lastWeek?.overdue, href: u(`/devices?due=overdue${scope}`) },
         ...tasks.map((t) => ({ label: `  ${t} overdue`, value: f.overdue[t], href: u(`/devices?due=overdue${scope}&sort=nextDueOn`) })),
-        { label: 'Falling due in the next two weeks', value: f.dueSoon.any, href: u(`/devices?nextDueFrom=${f.today}&nextDueTo=${addDaysIso(f.today, 14)}${scope}`) },
+        { label: 'Falling due in the next two weeks', value: f.dueSoon.any, before: lastWeek?.dueSoon, href: u(`/devices?nextDueFrom=${f.today}&nextDueTo=${addDaysIso(f.today, 14)}${scope}`) },
         ...tasks.map((t) => ({ label: `  ${t} due`, value: f.dueSoon[t], href: u(`/devices?nextDueFrom=${f.today}&nextDueTo=${addDaysIso(f.today, 14)}${scope}`) })),
       ],
     },
@@ -54,20 +60,21 @@ export function digestSections(f: DigestFigures, appUrl: string): DigestSection[
         {
           label: 'In trouble now',
           value: f.trouble.now,
+          before: lastWeek?.trouble,
           href: u(`/devices?state=trouble${scope}`),
           note: f.trouble.now ? `${f.trouble.overAWeek} for over a week${f.trouble.longestDays !== null ? `; longest ${f.trouble.longestDays} days` : ''}` : undefined,
         },
-        { label: 'Failed tests this week', value: f.failedTests.thisWeek, before: f.failedTests.weekBefore, href: u(`/triage?reason=failed-test`) },
-        { label: 'Failed wiring diagnoses', value: f.failedDiagnoses.now, href: u(`/devices?loop=fail${scope}`), note: `${f.failedDiagnoses.newThisWeek} with readings taken this week` },
-        { label: 'Reporting delay differs from policy', value: f.delayDisagree, href: u(`/delay-audit`) },
+        { label: 'Failed tests this week', value: f.failedTests.thisWeek, before: lastWeek?.failedTests ?? f.failedTests.weekBefore, href: u(`/triage?reason=failed-test`) },
+        { label: 'Failed wiring diagnoses', value: f.failedDiagnoses.now, before: lastWeek?.failedDiagnoses, href: u(`/devices?loop=fail${scope}`), note: `${f.failedDiagnoses.newThisWeek} with readings taken this week` },
+        { label: 'Reporting delay differs from policy', value: f.delayDisagree, before: lastWeek?.delayDisagree, href: u(`/delay-audit`) },
       ],
     },
     {
       title: 'Work',
       lines: [
-        { label: 'Visits done this week', value: f.visitsDone.thisWeek, before: f.visitsDone.weekBefore, href: u(`/visits?status=done&from=${addDaysIso(f.today, -6)}&to=${f.today}`) },
-        { label: 'Visits planned for the coming week', value: f.visitsPlanned, href: u(`/visits?status=planned,notified,in-progress&from=${f.today}&to=${addDaysIso(f.today, 6)}`) },
-        { label: 'Monitoring-company notices logged', value: f.notices.thisWeek, before: f.notices.weekBefore, href: u(`/events?kind=notice`) },
+        { label: 'Visits done this week', value: f.visitsDone.thisWeek, before: lastWeek?.visitsDone ?? f.visitsDone.weekBefore, href: u(`/visits?status=done&from=${addDaysIso(f.today, -6)}&to=${f.today}`) },
+        { label: 'Visits planned for the coming week', value: f.visitsPlanned, before: lastWeek?.visitsPlanned, href: u(`/visits?status=planned,notified,in-progress&from=${f.today}&to=${addDaysIso(f.today, 6)}`) },
+        { label: 'Monitoring-company notices logged', value: f.notices.thisWeek, before: lastWeek?.notices ?? f.notices.weekBefore, href: u(`/events?kind=notice`) },
       ],
     },
   ]
@@ -89,8 +96,8 @@ export function reasonWords(codes: ReasonCode[]): string {
   return words.charAt(0).toUpperCase() + words.slice(1)
 }
 
-export default function DigestEmail({ figures, name, appUrl }: { figures: DigestFigures; name: string; appUrl: string }) {
-  const sections = digestSections(figures, appUrl)
+export default function DigestEmail({ figures, lastWeek = null, name, appUrl }: { figures: DigestFigures; lastWeek?: WeekFigures | null; name: string; appUrl: string }) {
+  const sections = digestSections(figures, appUrl, lastWeek)
   const scope = figures.customers ? figures.customers.map((c) => c.name).join(', ') : 'the whole fleet'
   return (
     <Html lang="en">
@@ -109,7 +116,10 @@ export default function DigestEmail({ figures, name, appUrl }: { figures: Digest
             Week to {figures.today}
           </Heading>
           <Text className="dk-soft" style={{ color: C.soft, fontSize: 14, margin: '0 0 12px' }}>
-            For {name}: {figures.detectors} detectors in {scope}. Every figure opens the console view that shows it.
+            For {name}: {figures.detectors} detectors in {scope}. Every figure opens the console view that shows it.{' '}
+            {lastWeek
+              ? 'Changes are against the figures in your digest last week.'
+              : 'Your digest last week was not kept, so only the week’s own tests, visits and notices show a change.'}
           </Text>
           {sections.map((s) => (
             <Section key={s.title} style={{ marginTop: 12 }}>

@@ -4,8 +4,8 @@ import { z } from 'zod'
 import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
 import { digestRecipients } from '~/.server/email/digest'
-import { digestMessage } from '~/.server/email/digest-message'
-import { enqueue, sendMessage } from '~/.server/email/send'
+import { digestMessage, queueDigest } from '~/.server/email/digest-message'
+import { sendMessage } from '~/.server/email/send'
 import { readFormData } from '~/.server/http'
 import { emailOutbox } from '~/.server/schema'
 import { officeToday } from '~/.server/today'
@@ -62,7 +62,7 @@ export async function action({ request }: Route.ActionArgs) {
   if (!r) return data({ ok: false, message: 'That person does not receive the digest' }, { status: 400 })
   const today = officeToday()
   // This week's key: sending now counts as this week's digest, so the schedule will not send another.
-  const { id, created } = enqueue(db, await digestMessage(db, r, today))
+  const { id, created } = await queueDigest(db, r, today)
   const outcome = await sendMessage(db, id, { force: true })
   const said = outcome === 'sent' ? 'sent' : outcome === 'retry' ? 'queued for a retry' : outcome === 'failed' ? 'not sent (failed)' : 'already on its way'
   return { ok: outcome !== 'failed', message: `${r.name}'s digest for this week ${created ? '' : '(already in the outbox) '}${said}.`, id }

@@ -23,110 +23,194 @@ export interface DigestFigures {
   atRisk: { id: number; tag: string; site: string; customer: string; score: number; reasons: ReasonCode[] }[]
 }
 
+/** One customer's share of every additive figure; a person's digest sums the customers they follow. */
+interface Tally {
+  detectors: number
+  overdue: Record<Task, number> & { any: number }
+  dueSoon: Record<Task, number> & { any: number }
+  troubleNow: number
+  troubleOverAWeek: number
+  troubleLongest: number | null
+  failedThisWeek: number
+  failedWeekBefore: number
+  diagnosesNow: number
+  diagnosesNew: number
+  delayDisagree: number
+  doneThisWeek: number
+  doneWeekBefore: number
+  planned: number
+  noticesThisWeek: number
+  noticesWeekBefore: number
+}
+
+/** Every customer's tallies for one office day, computed once for however many people get a digest. */
+export interface FleetFigures {
+  today: string
+  byCustomer: Map<number, Tally>
+}
+
+const emptyTally = (): Tally => ({
+  detectors: 0,
+  overdue: { visual: 0, functional: 0, sensitivity: 0, cleaning: 0, any: 0 },
+  dueSoon: { visual: 0, functional: 0, sensitivity: 0, cleaning: 0, any: 0 },
+  troubleNow: 0,
+  troubleOverAWeek: 0,
+  troubleLongest: null,
+  failedThisWeek: 0,
+  failedWeekBefore: 0,
+  diagnosesNow: 0,
+  diagnosesNew: 0,
+  delayDisagree: 0,
+  doneThisWeek: 0,
+  doneWeekBefore: 0,
+  planned: 0,
+  noticesThisWeek: 0,
+  noticesWeekBefore: 0,
+})
+
 /**
- * Every figure of one person's digest, counted in SQL over indexed columns: the whole fleet, or only the
- * customers the person follows. `today` is the office's day the digest is written for.
+ * The whole fleet's figures in a handful of grouped queries, one row per customer: the detectors in one
+ * pass, then the trouble ages, failed results, visits and notices of the last two weeks on their
+ * indexes. Every person's digest is then a sum over customers, so a hundred managers cost one pass.
  */
-export function digestFigures(db: Db, o: { today: string; customerIds: number[] | null }): DigestFigures {
+export function fleetFigures(db: Db, today: string): FleetFigures {
   const c = db.$client
-  const today = o.today
   const weekAgo = addDays(today, -7)
   const twoWeeksAgo = addDays(today, -14)
   const fortnight = addDays(today, 14)
-  const ids = o.customerIds && o.customerIds.length > 0 ? o.customerIds : null
-  // A list of integers the caller checked; inlined so each query keeps one plan for its index.
-  const inIds = ids ? `(${ids.map((id) => Number(id) | 0).join(',')})` : ''
-  const dWhere = ids ? `d.customer_id in ${inIds}` : '1'
-  const sWhere = ids ? `s.customer_id in ${inIds}` : '1'
-
-  const taskSums = (op: 'overdue' | 'soon') =>
-    TASKS.map((t) => (op === 'overdue' ? `sum(d.next_${t}_on < @today) as ${t}` : `sum(d.next_${t}_on >= @today and d.next_${t}_on <= @fortnight) as ${t}`)).join(', ')
+  const byCustomer = new Map<number, Tally>()
+  const tally = (id: number) => {
+    let t = byCustomer.get(id)
+    if (!t) byCustomer.set(id, (t = emptyTally()))
+    return t
+  }
+  const live = `d.state <> 'out-of-service'`
+  const sums = TASKS.map((t) => `sum(${live} and d.next_${t}_on < @today) as o_${t}, sum(${live} and d.next_${t}_on between @today and @fortnight) as s_${t}`).join(', ')
   const anyTask = (cond: (col: string) => string) => TASKS.map((t) => cond(`d.next_${t}_on`)).join(' or ')
-  // One pass over the fleet's detectors for both overdue and falling due, by task and in all.
-  const due = c
+  // One pass over the detectors for due dates, wiring verdicts and delay agreement. The readings probe
+  // runs only for the few detectors whose loop failed (CASE evaluates its branch only when it applies).
+  const rows = c
     .prepare(
-      `select count(*) as detectors, ${taskSums('overdue')}, ${taskSums('soon').replace(/ as (\w+)/g, ' as soon_$1')},
-              sum(${anyTask((col) => `${col} < @today`)}) as anyOverdue,
-              sum(${anyTask((col) => `${col} between @today and @fortnight`)}) as anySoon
-         from detectors d where ${dWhere} and d.state <> 'out-of-service'`,
+      `select d.customer_id as customer, sum(${live}) as detectors, ${sums},
+              sum(${live} and (${anyTask((col) => `${col} < @today`)})) as o_any,
+              sum(${live} and (${anyTask((col) => `${col} between @today and @fortnight`)})) as s_any,
+              sum(d.loop_verdict = 'fail') as diagnosesNow,
+              sum(case when d.loop_verdict = 'fail' then exists (select 1 from readings r where r.detector_id = d.id and r.taken_at > @weekAgo) else 0 end) as diagnosesNew,
+              sum(d.delay_agreement = 'disagree') as delayDisagree
+         from detectors d group by d.customer_id`,
     )
-    .get({ today, fortnight }) as Record<string, number | null>
-  const soon: Record<string, number | null> = { anySoon: due.anySoon }
-  for (const t of TASKS) soon[t] = due[`soon_${t}`]
+    .all({ today, fortnight, weekAgo }) as Record<string, number>[]
+  for (const r of rows) {
+    const t = tally(r.customer)
+    t.detectors = r.detectors
+    for (const k of [...TASKS, 'any'] as const) {
+      t.overdue[k] = r[`o_${k}`]
+      t.dueSoon[k] = r[`s_${k}`]
+    }
+    t.diagnosesNow = r.diagnosesNow
+    t.diagnosesNew = r.diagnosesNew
+    t.delayDisagree = r.delayDisagree
+  }
 
   // How long each detector now in trouble has been so: since its latest trouble event.
-  const troubleRows = c
+  const trouble = c
     .prepare(
-      `select (select max(e.occurred_at) from events e where e.detector_id = d.id and e.kind = 'trouble') as since
-         from detectors d where d.state = 'trouble' and ${dWhere}`,
+      `select d.customer_id as customer, (select max(e.occurred_at) from events e where e.detector_id = d.id and e.kind = 'trouble') as since
+         from detectors d where d.state = 'trouble'`,
     )
-    .all() as { since: string | null }[]
-  const ages = troubleRows.map((r) => (r.since ? daysBetween(r.since.slice(0, 10), today) : null))
-  const known = ages.filter((a): a is number => a !== null)
+    .all() as { customer: number; since: string | null }[]
+  for (const r of trouble) {
+    const t = tally(r.customer)
+    t.troubleNow++
+    if (!r.since) continue
+    const age = daysBetween(r.since.slice(0, 10), today)
+    if (age > 7) t.troubleOverAWeek++
+    t.troubleLongest = Math.max(t.troubleLongest ?? age, age)
+  }
 
-  const failedTests = c
+  const failed = c
     .prepare(
-      `select sum(tr.done_on > @weekAgo) as thisWeek, sum(tr.done_on <= @weekAgo) as weekBefore
-         from task_results tr join visits v on v.id = tr.visit_id join sites s on s.id = v.site_id
+      `select s.customer_id as customer, sum(tr.done_on > @weekAgo) as thisWeek, sum(tr.done_on <= @weekAgo) as weekBefore
+         from visits v join task_results tr on tr.visit_id = v.id join sites s on s.id = v.site_id
         where v.scheduled_on > @from and v.scheduled_on <= @today and tr.outcome = 'fail'
-          and tr.done_on > @twoWeeksAgo and tr.done_on <= @today and ${sWhere}`,
+          and tr.done_on > @twoWeeksAgo and tr.done_on <= @today
+        group by s.customer_id`,
     )
     // Results hang off visits; a visit done late may have been booked a while before its day.
-    .get({ weekAgo, twoWeeksAgo, today, from: addDays(today, -60) }) as { thisWeek: number | null; weekBefore: number | null }
-
-  const diagnoses = c
-    .prepare(
-      `select count(*) as now,
-              sum(exists (select 1 from readings r where r.detector_id = d.id and r.taken_at > @weekAgo)) as newThisWeek
-         from detectors d where d.loop_verdict = 'fail' and ${dWhere}`,
-    )
-    .get({ weekAgo }) as { now: number; newThisWeek: number | null }
-
-  const delay = c.prepare(`select count(*) as n from detectors d where d.delay_agreement = 'disagree' and ${dWhere}`).get() as { n: number }
+    .all({ weekAgo, twoWeeksAgo, today, from: addDays(today, -60) }) as { customer: number; thisWeek: number; weekBefore: number }[]
+  for (const r of failed) Object.assign(tally(r.customer), { failedThisWeek: r.thisWeek, failedWeekBefore: r.weekBefore })
 
   const visits = c
     .prepare(
-      `select sum(v.status = 'done' and v.scheduled_on > @weekAgo and v.scheduled_on <= @today) as doneThisWeek,
-              sum(v.status = 'done' and v.scheduled_on > @twoWeeksAgo and v.scheduled_on <= @weekAgo) as doneWeekBefore,
-              sum(v.status in ('planned', 'notified', 'in-progress') and v.scheduled_on >= @today and v.scheduled_on < @nextWeek) as planned
+      `select s.customer_id as customer,
+              sum(v.status = 'done' and v.scheduled_on > @weekAgo and v.scheduled_on <= @today) as doneThisWeek,
+              sum(v.status = 'done' and v.scheduled_on <= @weekAgo) as doneWeekBefore,
+              sum(v.status in ('planned', 'notified', 'in-progress') and v.scheduled_on >= @today) as planned
          from visits v join sites s on s.id = v.site_id
-        where v.scheduled_on > @twoWeeksAgo and v.scheduled_on < @nextWeek and ${sWhere}`,
+        where v.scheduled_on > @twoWeeksAgo and v.scheduled_on < @nextWeek
+        group by s.customer_id`,
     )
-    .get({ weekAgo, twoWeeksAgo, today, nextWeek: addDays(today, 7) }) as Record<string, number | null>
+    .all({ weekAgo, twoWeeksAgo, today, nextWeek: addDays(today, 7) }) as { customer: number; doneThisWeek: number; doneWeekBefore: number; planned: number }[]
+  for (const r of visits) Object.assign(tally(r.customer), { doneThisWeek: r.doneThisWeek, doneWeekBefore: r.doneWeekBefore, planned: r.planned })
 
   const notices = c
     .prepare(
-      `select sum(n.notified_at > @weekAgo) as thisWeek, sum(n.notified_at <= @weekAgo) as weekBefore
+      `select s.customer_id as customer, sum(n.notified_at > @weekAgo) as thisWeek, sum(n.notified_at <= @weekAgo) as weekBefore
          from notifications n join sites s on s.id = n.site_id
-        where n.notified_at > @twoWeeksAgo and n.notified_at <= @end and ${sWhere}`,
+        where n.notified_at > @twoWeeksAgo and n.notified_at <= @end
+        group by s.customer_id`,
     )
-    .get({ weekAgo, twoWeeksAgo, end: `${today}T99` }) as { thisWeek: number | null; weekBefore: number | null }
+    .all({ weekAgo, twoWeeksAgo, end: `${today}T99` }) as { customer: number; thisWeek: number; weekBefore: number }[]
+  for (const r of notices) Object.assign(tally(r.customer), { noticesThisWeek: r.thisWeek, noticesWeekBefore: r.weekBefore })
 
+  return { today, byCustomer }
+}
+
+/**
+ * One person's digest figures: the whole fleet, or only the customers the person follows. Pass the
+ * fleet's figures when building several digests for the same day; without them they are counted here.
+ */
+export function digestFigures(db: Db, o: { today: string; customerIds: number[] | null; fleet?: FleetFigures }): DigestFigures {
+  const fleet = o.fleet && o.fleet.today === o.today ? o.fleet : fleetFigures(db, o.today)
+  const ids = o.customerIds && o.customerIds.length > 0 ? [...new Set(o.customerIds.map((id) => Number(id) | 0))] : null
+  const sum = emptyTally()
+  for (const [customer, t] of fleet.byCustomer) {
+    if (ids && !ids.includes(customer)) continue
+    for (const k of [...TASKS, 'any'] as const) {
+      sum.overdue[k] += t.overdue[k]
+      sum.dueSoon[k] += t.dueSoon[k]
+    }
+    for (const k of ['detectors', 'troubleNow', 'troubleOverAWeek', 'failedThisWeek', 'failedWeekBefore', 'diagnosesNow', 'diagnosesNew', 'delayDisagree', 'doneThisWeek', 'doneWeekBefore', 'planned', 'noticesThisWeek', 'noticesWeekBefore'] as const) {
+      sum[k] += t[k]
+    }
+    if (t.troubleLongest !== null) sum.troubleLongest = Math.max(sum.troubleLongest ?? t.troubleLongest, t.troubleLongest)
+  }
+  const c = db.$client
+  // A list of integers checked above; inlined so the query keeps one plan for its index.
+  const inIds = ids ? `(${ids.join(',')})` : ''
   const atRisk = c
     .prepare(
       `select d.id, d.tag, s.name as site, cu.name as customer, d.risk_score as score, d.risk_reasons as reasons
          from detectors d join sites s on s.id = d.site_id join customers cu on cu.id = d.customer_id
-        where d.risk_score > 0 and ${dWhere}
+        where d.risk_score > 0 and ${ids ? `d.customer_id in ${inIds}` : '1'}
         order by d.risk_score desc, d.id limit 5`,
     )
     .all() as { id: number; tag: string; site: string; customer: string; score: number; reasons: string }[]
-
   const customers = ids ? (c.prepare(`select id, name from customers where id in ${inIds} order by name`).all() as { id: number; name: string }[]) : null
-  const n = (v: number | null | undefined) => v ?? 0
   return {
-    today,
-    weekAgo,
+    today: o.today,
+    weekAgo: addDays(o.today, -7),
     customers,
-    detectors: n(due.detectors),
-    overdue: { visual: n(due.visual), functional: n(due.functional), sensitivity: n(due.sensitivity), cleaning: n(due.cleaning), any: n(due.anyOverdue) },
-    dueSoon: { visual: n(soon.visual), functional: n(soon.functional), sensitivity: n(soon.sensitivity), cleaning: n(soon.cleaning), any: n(soon.anySoon) },
-    trouble: { now: troubleRows.length, overAWeek: known.filter((a) => a > 7).length, longestDays: known.length ? Math.max(...known) : null },
-    failedTests: { thisWeek: n(failedTests.thisWeek), weekBefore: n(failedTests.weekBefore) },
-    failedDiagnoses: { now: diagnoses.now, newThisWeek: n(diagnoses.newThisWeek) },
-    delayDisagree: delay.n,
-    visitsDone: { thisWeek: n(visits.doneThisWeek), weekBefore: n(visits.doneWeekBefore) },
-    visitsPlanned: n(visits.planned),
-    notices: { thisWeek: n(notices.thisWeek), weekBefore: n(notices.weekBefore) },
+    detectors: sum.detectors,
+    overdue: sum.overdue,
+    dueSoon: sum.dueSoon,
+    trouble: { now: sum.troubleNow, overAWeek: sum.troubleOverAWeek, longestDays: sum.troubleLongest },
+    failedTests: { thisWeek: sum.failedThisWeek, weekBefore: sum.failedWeekBefore },
+    failedDiagnoses: { now: sum.diagnosesNow, newThisWeek: sum.diagnosesNew },
+    delayDisagree: sum.delayDisagree,
+    visitsDone: { thisWeek: sum.doneThisWeek, weekBefore: sum.doneWeekBefore },
+    visitsPlanned: sum.planned,
+    notices: { thisWeek: sum.noticesThisWeek, weekBefore: sum.noticesWeekBefore },
     atRisk: atRisk.map((r) => ({ ...r, reasons: r.reasons.split(',').filter(Boolean) as ReasonCode[] })),
   }
 }

@@ -1,9 +1,9 @@
 import { Cron } from 'croner'
 import type { Db } from '../db'
 import { officeToday } from '../today'
-import { digestKey, digestRecipients } from './digest'
-import { digestMessage } from './digest-message'
-import { enqueue, sendDue } from './send'
+import { digestKey, digestRecipients, fleetFigures, type FleetFigures } from './digest'
+import { queueDigest } from './digest-message'
+import { sendDue } from './send'
 
 const officeZone = () => process.env.OFFICE_TIME_ZONE ?? 'America/Chicago'
 
@@ -38,13 +38,16 @@ export async function runDigests(db: Db, now = new Date()): Promise<DigestRun> {
   const exists = db.$client.prepare('select 1 from email_outbox where idempotency_key = ?').pluck()
   let queued = 0
   let already = 0
+  // Counted once for the whole fleet, on the first digest that is not yet queued.
+  let fleet: FleetFigures | undefined
   for (const r of due) {
     // Building a digest costs queries; skip it when this week's is already in the outbox.
     if (exists.get(digestKey(r.userId, today))) {
       already++
       continue
     }
-    if (enqueue(db, await digestMessage(db, r, today)).created) queued++
+    fleet ??= fleetFigures(db, today)
+    if ((await queueDigest(db, r, today, fleet)).created) queued++
     else already++
   }
   const sent = await sendDue(db, now)
