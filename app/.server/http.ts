@@ -154,6 +154,16 @@ export async function readJsonOrForm<S extends z.ZodType>(request: Request, sche
 }
 
 /**
+ * Answers a method the route does not serve: 405 with the methods it does serve (its declared
+ * `handle.methods`), logged in one line like any other refused request.
+ */
+export function methodNotAllowed(request: Request, allow: readonly string[]): Response {
+  const message = `Use ${allow.join(' or ')}.`
+  console.warn(`${request.method} ${new URL(request.url).pathname} 405: ${message}`)
+  return Response.json({ error: message }, { status: 405, headers: { Allow: allow.join(', ') } })
+}
+
+/**
  * Root middleware: every /api/* answer, refusals included, is never sniffed and never kept by a
  * browser or proxy (they carry one person's records). A route that chose its own caching (an
  * attachment's image) keeps it.

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { auditDelay } from './delay-audit'
+import { auditDelay, beyondTroubleLimit, delayLimitCaution, TROUBLE_REPORTING_SECONDS } from './delay-audit'
 
 // The delay a site should have is agreed with its monitoring company (common practice).
 describe('auditDelay', () => {
@@ -7,10 +7,12 @@ describe('auditDelay', () => {
     expect(auditDelay({ delaySeconds: 0, policySeconds: 0 })).toEqual({
       agreement: 'agree',
       action: 'No action: set to report at once as agreed.',
+      caution: null,
     })
     expect(auditDelay({ delaySeconds: 180, policySeconds: 180 })).toEqual({
       agreement: 'agree',
       action: 'No action: set to report after 3 min as agreed.',
+      caution: null,
     })
   })
 
@@ -28,6 +30,7 @@ describe('auditDelay', () => {
     expect(auditDelay({ delaySeconds: null, policySeconds: 120 })).toEqual({
       agreement: 'unknown',
       action: 'Record the delay switch setting at the next visit (site policy: report after 2 min).',
+      caution: null,
     })
   })
 
@@ -36,5 +39,22 @@ describe('auditDelay', () => {
     expect(r.agreement).toBe('disagree')
     expect(r.action).toMatch(/^Set to report after 170 s, policy is report after 3 min\./)
     expect(auditDelay({ delaySeconds: 90, policySeconds: 120 }).action).toMatch(/^Set to report after 90 s, policy is report after 2 min\./)
+  })
+
+  it('cautions past the NFPA 72 trouble limit, even when the setting agrees with the policy', () => {
+    // NFPA 72: a trouble is to be annunciated within 200 s [read, secondary]
+    expect(TROUBLE_REPORTING_SECONDS).toBe(200)
+    expect(beyondTroubleLimit(200)).toBe(false)
+    expect(beyondTroubleLimit(201)).toBe(true)
+    expect(beyondTroubleLimit(null)).toBe(false)
+    expect(auditDelay({ delaySeconds: 200, policySeconds: 200 }).caution).toBeNull()
+    const agreed = auditDelay({ delaySeconds: 300, policySeconds: 300 })
+    expect(agreed.agreement).toBe('agree')
+    expect(agreed.caution).toBe(
+      'The agreed policy and the module’s setting are longer than the 200 s NFPA 72 allows for a trouble to be annunciated. Keep it only as agreed with the monitoring company, and verify with the AHJ.',
+    )
+    expect(auditDelay({ delaySeconds: 600, policySeconds: 0 }).caution).toMatch(/^The module’s setting is longer than the 200 s .*verify with the AHJ\.$/)
+    expect(auditDelay({ delaySeconds: null, policySeconds: 240 }).caution).toMatch(/^The agreed policy is longer than the 200 s .*verify with the AHJ\.$/)
+    expect(delayLimitCaution({ delaySeconds: 180 })).toBeNull()
   })
 })

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { CLASS2_MAX_VA, CLASS2_MAX_VOLTS, currentFor, powerBudget, voltageDrop } from './power'
+import { CLASS2_MAX_VA, CLASS2_MAX_VOLTS, class2LimitVa, class2Source, currentFor, powerBudget, voltageDrop } from './power'
 
 // Load figures below are test inputs, not any device's published draw.
 const detector = (label: string, standbyVa: number, alarmVa: number) => ({ label, standbyVa, alarmVa })
@@ -60,11 +60,46 @@ describe('powerBudget', () => {
     expect(powerBudget({ transformerVa: 150, loads: [detector('Loads', 10, 20)] }).withinClass2).toBe(false)
   })
 
-  it('over 30 V is beyond Class 2', () => {
-    // NEC Chapter 9 Table 11(A): ≤ 30 V
+  it('over 30 V is outside the Class 2 check', () => {
+    // NEC Chapter 9 Table 11(A): the 100 VA band ends at 30 V; above it the limits are far lower (from memory)
     const b = powerBudget({ transformerVa: 40, volts: 120, loads: [detector('Loads', 5, 5)] })
     expect(b.withinClass2).toBe(false)
-    expect(b.findings.join(' ')).toMatch(/above the Class 2 limit of 30 V/)
+    expect(b.class2LimitVa).toBeNull()
+    expect(b.findings.join(' ')).toMatch(/above the 30 V this Class 2 check covers/)
+  })
+})
+
+describe('Class 2 limit by voltage', () => {
+  it.each([
+    // NEC Chapter 9 Table 11(A), 0–20 V: at most 5.0 × Vmax VA (from memory)
+    [12, 60],
+    [16, 80],
+    [20, 100],
+    // NEC Chapter 9 Table 11(A), over 20 V up to 30 V: at most 100 VA
+    [20.5, 100],
+    [24, 100],
+    [30, 100],
+  ])('%s V → %s VA', (volts, limit) => {
+    expect(class2LimitVa(volts)).toBeCloseTo(limit, 9)
+  })
+
+  it('has no limit to give above 30 V or at no voltage', () => {
+    expect(class2LimitVa(30.5)).toBeNull()
+    expect(class2LimitVa(0)).toBeNull()
+  })
+
+  it('names the source beside the figure, and says which band is recalled', () => {
+    expect(class2Source(24)).toBe('NEC Chapter 9 Table 11(A)')
+    expect(class2Source(12)).toBe('NEC Chapter 9 Table 11(A), from memory')
+  })
+
+  it('a 75 VA transformer at 12 V is beyond Class 2; the same at 24 V is within', () => {
+    // NEC Chapter 9 Table 11(A): 5.0 × 12 = 60 VA at 12 V (from memory); 100 VA at 24 V
+    const low = powerBudget({ transformerVa: 75, volts: 12, loads: [detector('Loads', 10, 20)] })
+    expect(low.class2LimitVa).toBe(60)
+    expect(low.withinClass2).toBe(false)
+    expect(low.findings.join(' ')).toMatch(/Class 2 limit of 60 VA at 12 V \(NEC Chapter 9 Table 11\(A\), from memory\)/)
+    expect(powerBudget({ transformerVa: 75, volts: 24, loads: [detector('Loads', 10, 20)] }).withinClass2).toBe(true)
   })
 })
 

@@ -24,7 +24,10 @@ export interface PowerBudget {
   standbyVa: number
   alarmVa: number
   ratingVa: number
-  class2LimitVa: number
+  /** The Class 2 limit at this voltage (NEC Chapter 9 Table 11(A)); null above 30 V. */
+  class2LimitVa: number | null
+  /** The source of that limit, to show beside it. */
+  class2Source: string
   /** Rating less the larger of the standby and alarm loads; negative when over. */
   headroomVa: number
   withinRating: boolean
@@ -35,10 +38,34 @@ export interface PowerBudget {
   findings: string[]
 }
 
-/** NEC Class 2 (Chapter 9 Table 11(A)): at most 100 VA. */
+// NEC Chapter 9 Table 11(A), Class 2 power sources not inherently limited; always check the
+// edition the AHJ enforces:
+//   0 V up to 20 V          → at most 5.0 × Vmax VA (from memory)
+//   over 20 V up to 30 V    → at most 100 VA (NEC Chapter 9 Table 11(A), read in a reproduction)
+/** NEC Chapter 9 Table 11(A): at most 5.0 × Vmax VA at 20 V and below (from memory). */
+export const CLASS2_VA_PER_VOLT_TO_20V = 5
+/** NEC Chapter 9 Table 11(A): the voltage up to which the 5.0 × Vmax limit applies (from memory). */
+export const CLASS2_LOW_BAND_VOLTS = 20
+/** NEC Chapter 9 Table 11(A): at most 100 VA over 20 V up to 30 V. */
 export const CLASS2_MAX_VA = 100
-/** NEC Class 2 (Chapter 9 Table 11(A)): at most 30 V. */
+/** NEC Chapter 9 Table 11(A): the top of the band this check covers; above it the limits are far lower (from memory). */
 export const CLASS2_MAX_VOLTS = 30
+
+/** Where the Class 2 figure for this voltage comes from, shown beside it wherever it appears. */
+export function class2Source(volts: number): string {
+  return volts <= CLASS2_LOW_BAND_VOLTS || volts > CLASS2_MAX_VOLTS ? 'NEC Chapter 9 Table 11(A), from memory' : 'NEC Chapter 9 Table 11(A)'
+}
+
+/**
+ * The Class 2 power limit for a source of this maximum voltage (NEC Chapter 9 Table 11(A), from
+ * memory): 5.0 × Vmax VA up to 20 V, 100 VA over 20 V up to 30 V. Null above 30 V, where this
+ * check does not apply and a licensed electrician should review the circuit.
+ */
+export function class2LimitVa(volts: number): number | null {
+  if (!(volts > 0) || volts > CLASS2_MAX_VOLTS) return null
+  return volts <= CLASS2_LOW_BAND_VOLTS ? CLASS2_VA_PER_VOLT_TO_20V * volts : CLASS2_MAX_VA
+}
+
 /** Nominal control voltage on rooftop units and air handlers: common practice. */
 export const CONTROL_VOLTS = 24
 
@@ -59,7 +86,8 @@ export function powerBudget(input: PowerBudgetInput): PowerBudget {
   const withinRating = headroomVa >= 0
   // A Class 2 source is limited in both power and voltage, so the transformer's own rating counts,
   // not just today's load (NEC Chapter 9 Table 11(A)).
-  const withinClass2 = ratingVa <= CLASS2_MAX_VA && peakVa <= CLASS2_MAX_VA && volts <= CLASS2_MAX_VOLTS
+  const limitVa = class2LimitVa(volts)
+  const withinClass2 = limitVa !== null && ratingVa <= limitVa && peakVa <= limitVa
 
   const findings: string[] = []
   if (!withinRating) {
@@ -70,16 +98,16 @@ export function powerBudget(input: PowerBudgetInput): PowerBudget {
         'or have a larger transformer fitted per the unit maker and licensed practice.',
     )
   }
-  if (peakVa > CLASS2_MAX_VA || ratingVa > CLASS2_MAX_VA) {
+  if (limitVa !== null && (peakVa > limitVa || ratingVa > limitVa)) {
     findings.push(
-      `Beyond the Class 2 limit of ${va(CLASS2_MAX_VA)} (NEC Chapter 9 Table 11(A)): ` +
-        (peakVa > CLASS2_MAX_VA ? `the load is ${va(peakVa)}. ` : `the source is rated ${va(ratingVa)}. `) +
+      `Beyond the Class 2 limit of ${va(limitVa)} at ${volts} V (${class2Source(volts)}): ` +
+        (peakVa > limitVa ? `the load is ${va(peakVa)}. ` : `the source is rated ${va(ratingVa)}. `) +
         'Class 2 wiring rules do not cover this circuit; have a licensed electrician review it.',
     )
   }
-  if (volts > CLASS2_MAX_VOLTS) {
+  if (limitVa === null) {
     findings.push(
-      `${volts} V is above the Class 2 limit of ${CLASS2_MAX_VOLTS} V (NEC Chapter 9 Table 11(A)): ` +
+      `${volts} V is above the ${CLASS2_MAX_VOLTS} V this Class 2 check covers (${class2Source(volts)}): ` +
         'have a licensed electrician review the circuit.',
     )
   }
@@ -87,7 +115,8 @@ export function powerBudget(input: PowerBudgetInput): PowerBudget {
     standbyVa,
     alarmVa,
     ratingVa,
-    class2LimitVa: CLASS2_MAX_VA,
+    class2LimitVa: limitVa,
+    class2Source: class2Source(volts),
     headroomVa,
     withinRating,
     withinClass2,

@@ -326,6 +326,11 @@ export default function Device({ loaderData }: Route.ComponentProps) {
               <Fact label="AHJ">{d.ahjName}</Fact>
             </dl>
             {r.delay.agreement !== 'agree' && <p className="mt-3 text-sm text-ink-soft">{r.delay.action}</p>}
+            {r.delay.caution && (
+              <p role="note" className="mt-3 rounded-md border border-soon/40 bg-soon-soft px-3 py-2 text-sm">
+                <strong className="font-semibold">Caution:</strong> {r.delay.caution}
+              </p>
+            )}
           </section>
           <section aria-labelledby="air-h" className="rounded-md border border-line bg-panel p-4">
             <h2 id="air-h" className="font-semibold">

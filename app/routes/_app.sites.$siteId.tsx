@@ -11,6 +11,7 @@ import { EventTimeline } from '~/components/event-timeline'
 import { StateBadge } from '~/components/state-badge'
 import type { RouteAccess } from '~/domain/permissions'
 import { formatCount, formatDay } from '~/utils/format'
+import { delayLimitCaution } from '~/domain/delay-audit'
 import type { Route } from './+types/_app.sites.$siteId'
 import { Fact } from '~/components/ui/facts'
 import { TAP, TAP_AREA } from '~/components/ui/tap'
@@ -43,6 +44,7 @@ const clockAfter = (iso: string, ref: string, timeZone: string) =>
 
 export default function Site({ loaderData }: Route.ComponentProps) {
   const { site: s, customer, monitoring: mc, units, detectors, upcomingVisits: visits, notifications, events, now } = loaderData
+  const policyCaution = delayLimitCaution({ policySeconds: s.delayPolicySeconds })
   const tz = s.timeZone
   return (
     <div className="mx-auto max-w-6xl space-y-6">
@@ -152,11 +154,20 @@ export default function Site({ loaderData }: Route.ComponentProps) {
               </Fact>
               <Fact label="Hours">{mc.hours}</Fact>
               <Fact label="Account">{s.monitoringAccount ? <span className="font-mono whitespace-nowrap">{s.monitoringAccount}</span> : <span className="text-ink-faint">Not recorded</span>}</Fact>
-              <Fact label="Delay policy">{delayWords(s.delayPolicySeconds)}</Fact>
+              <Fact label="Delay policy">
+                {delayWords(s.delayPolicySeconds)}
+                {policyCaution && (
+                  <span className="mt-1 block">
+                    <strong className="font-semibold">Caution:</strong> {policyCaution}
+                  </span>
+                )}
+              </Fact>
               {mc.notes && <Fact label="Notes">{mc.notes}</Fact>}
             </dl>
           ) : (
-            <p className="mt-3 text-sm text-ink-soft">No monitoring company on record. Delay policy: {delayWords(s.delayPolicySeconds).toLowerCase()}.</p>
+            <p className="mt-3 text-sm text-ink-soft">
+              No monitoring company on record. Delay policy: {delayWords(s.delayPolicySeconds).toLowerCase()}.{policyCaution && ` Caution: ${policyCaution}`}
+            </p>
           )}
         </section>
       </div>

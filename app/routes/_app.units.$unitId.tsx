@@ -271,7 +271,10 @@ export default function Unit({ loaderData }: Route.ComponentProps) {
             </Fact>
             <Fact label="Alarm current">{power.currentA.toFixed(2)} A at {CONTROL_VOLTS} V</Fact>
             <Fact label="Class 2">
-              {power.withinClass2 ? `Within ${va(power.class2LimitVa)} (NEC Chapter 9 Table 11(A))` : 'Beyond the limit'}
+              {power.class2LimitVa === null
+                ? 'Not covered above 30 V'
+                : `${power.withinClass2 ? 'Within' : 'Beyond'} the ${va(power.class2LimitVa)} limit at ${CONTROL_VOLTS} V`}{' '}
+              <span className="text-xs text-ink-faint">({power.class2Source})</span>
             </Fact>
           </dl>
           {power.findings.length > 0 && (

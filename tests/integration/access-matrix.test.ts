@@ -13,7 +13,7 @@ interface BuiltRoute {
   parentId?: string
   path?: string
   index?: boolean
-  module: { default?: unknown; loader?: unknown; action?: unknown; handle?: { access?: RouteAccess; sampleQuery?: string; sampleParams?: Record<string, string>; redirects?: boolean } }
+  module: { default?: unknown; loader?: unknown; action?: unknown; handle?: { access?: RouteAccess; sampleQuery?: string; sampleParams?: Record<string, string>; redirects?: boolean; methods?: readonly string[] } }
 }
 
 // Every route comes from the production build, which is made from app/routes.ts: a new route
@@ -81,7 +81,12 @@ describe('route × role matrix', () => {
     if (allows(role, access)) {
       expect([401, 403], label).not.toContain(res.status)
       expect(location.startsWith('/sign-in?returnTo='), label).toBe(false)
-      if (method === 'GET' && access !== 'public') expect(res.status, label).toBe(route.module.handle?.redirects ? 302 : 200)
+      // A route that declares the methods it serves answers any other with 405 and says which it takes.
+      const methods = route.module.handle?.methods
+      if (methods && !methods.includes(method)) {
+        expect(res.status, label).toBe(405)
+        expect(res.headers.get('allow'), label).toBe(methods.join(', '))
+      } else if (method === 'GET' && access !== 'public') expect(res.status, label).toBe(route.module.handle?.redirects ? 302 : 200)
     } else if (role === null) {
       if (isApi) expect(res.status, label).toBe(401)
       else {

@@ -131,7 +131,7 @@ describe('delay-setting audit', () => {
     const preview = previewBulk(data.db, action, ids, action.input.parse({ do: 'verify' }), lead())
     const extra = preview.extra as { audit: { policiesBeyond: number }; cautions: string[] }
     expect(extra.audit.policiesBeyond).toBe(1)
-    expect(extra.cautions.join(' ')).toMatch(/past the 200 s NFPA 72 allows for reporting a trouble: verify with the AHJ/)
+    expect(extra.cautions.join(' ')).toMatch(/longer than the 200 s NFPA 72 allows for a trouble to be annunciated: verify with the AHJ/)
     expect(fleetCounts(data.db).policiesBeyond).toBeGreaterThanOrEqual(1)
     const csv = auditCsv(data.db, 'agree')
     expect(csv.split('\n')[0]).toBe('customer,site,city,region,tag,serial,delay_seconds,policy_seconds,observed_on,outcome,advice,caution')

@@ -63,6 +63,18 @@ describe('POST /api/diagnose', () => {
     expect(typeof body.findings[0].message).toBe('string')
   })
 
+  it('answers a GET with 405, the method it takes, and one log line', async () => {
+    const from = server.output().length
+    const res = await fetch(`${server.url}/api/diagnose`, { headers: { Cookie: tech, Accept: 'application/json' } })
+    expect(res.status).toBe(405)
+    expect(res.headers.get('allow')).toBe('POST')
+    expect((await res.json()).error).toBe('Use POST.')
+    await new Promise((r) => setTimeout(r, 200))
+    const log = server.output().slice(from)
+    expect(log.split('\n').filter((l) => l === 'GET /api/diagnose 405: Use POST.')).toHaveLength(1)
+    expect(log).not.toMatch(/^\s+at /m)
+  })
+
   it('refuses bad input with the issues', async () => {
     const bad = await post({ arrangement: { ...arrangement, eolOhms: -5, conductor: { awg: 20, stranded: true, oneWayFeet: 10 } }, readings: { normal: 'shorted' } })
     expect(bad.status).toBe(400)

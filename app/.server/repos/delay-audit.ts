@@ -1,6 +1,6 @@
 import { stringify } from 'csv-stringify/sync'
 import { z } from 'zod'
-import { TROUBLE_REPORTING_SECONDS } from '~/domain/record-forms'
+import { delayLimitCaution, TROUBLE_REPORTING_SECONDS } from '~/domain/delay-audit'
 import { DELAY_AGREEMENTS, type DelayAgreement } from '~/domain/vocabulary'
 import { adviceFor, type AuditCounts } from '../bulk/actions/delay-audit'
 import { safeCell } from '../csv/cells'
@@ -97,7 +97,6 @@ export function auditCsv(db: Db, outcome: DelayAgreement): string {
     )
     .all(outcome) as Array<{ customer: string; site: string; city: string; region: string; tag: string; serial: string | null; delaySeconds: number | null; policySeconds: number; observedOn: string | null; outcome: string }>
   const records = rows.map((r) => {
-    const beyond = r.policySeconds > TROUBLE_REPORTING_SECONDS || (r.delaySeconds ?? 0) > TROUBLE_REPORTING_SECONDS
     return [
       r.customer,
       r.site,
@@ -110,7 +109,7 @@ export function auditCsv(db: Db, outcome: DelayAgreement): string {
       r.observedOn ?? '',
       r.outcome,
       adviceFor(r.delaySeconds, r.policySeconds),
-      beyond ? `Past ${TROUBLE_REPORTING_SECONDS} s: verify with the AHJ` : '',
+      delayLimitCaution(r) ?? '',
     ].map((v) => (typeof v === 'string' ? safeCell(v) : v))
   })
   const header = ['customer', 'site', 'city', 'region', 'tag', 'serial', 'delay_seconds', 'policy_seconds', 'observed_on', 'outcome', 'advice', 'caution']

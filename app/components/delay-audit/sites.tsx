@@ -1,4 +1,5 @@
 import { Link } from 'react-router'
+import { beyondTroubleLimit } from '~/domain/delay-audit'
 import { formatCount } from '~/utils/format'
 
 interface Site {
@@ -55,7 +56,7 @@ export function AuditSites(p: {
               </label>
               <span className="text-xs text-ink-soft">
                 {s.city}, {s.region} · policy {setting(s.policySeconds)} · {formatCount(s.count)} detector{s.count === 1 ? '' : 's'}
-                {s.policySeconds > page.limitSeconds && <strong className="ml-2 text-late">past {page.limitSeconds} s: verify with the AHJ</strong>}
+                {beyondTroubleLimit(s.policySeconds) && <strong className="ml-2 text-late">past {page.limitSeconds} s: verify with the AHJ</strong>}
               </span>
             </header>
             <ul className="divide-y divide-line/60">
@@ -73,7 +74,7 @@ export function AuditSites(p: {
                   </Link>
                   <span className="col-start-2 sm:col-start-auto">
                     set {setting(d.delaySeconds)}
-                    {d.delaySeconds !== null && d.delaySeconds > page.limitSeconds && <span className="ml-1 text-late">(past {page.limitSeconds} s)</span>}
+                    {beyondTroubleLimit(d.delaySeconds) && <span className="ml-1 text-late">(past {page.limitSeconds} s: verify with the AHJ)</span>}
                   </span>
                   <span className="col-start-2 text-ink-soft sm:col-start-auto">{d.delayObservedOn ? `seen ${d.delayObservedOn}` : 'never seen'}</span>
                   <span className="col-start-2 text-xs text-ink-soft sm:col-start-auto">{d.advice}</span>

@@ -4,6 +4,7 @@
 import { useState, useSyncExternalStore } from 'react'
 import { useRevalidator } from 'react-router'
 import { checkPressure } from '~/domain/airflow'
+import { delayLimitCaution } from '~/domain/delay-audit'
 import { DETECTOR_STATES, type DetectorState } from '~/domain/contacts'
 import { diagnoseInterlock, type InterlockStyle } from '~/domain/interlock'
 import type { Arrangement } from '~/domain/loop'
@@ -161,6 +162,7 @@ function DetectorCard({ visitId, version, d, delayPolicySeconds }: { visitId: nu
   const pressureCheck = pressure === undefined ? null : checkPressure({ measuredInWc: pressure, listedMinInWc: d.pressure.min, listedMaxInWc: d.pressure.max })
   const velocity = num(draft.velocity)
   const delay = num(draft.delay)
+  const delayCaution = delayLimitCaution({ policySeconds: delayPolicySeconds, delaySeconds: delay ?? d.delaySeconds })
 
   async function onSave() {
     setProblem(null)
@@ -210,7 +212,9 @@ function DetectorCard({ visitId, version, d, delayPolicySeconds }: { visitId: nu
         <h4 id={`loop-${d.id}`} className="text-lg font-semibold">
           Loop readings at the panel pair
         </h4>
-        <p className="text-sm text-ink-soft">Read only: measure, do not disconnect. The fire alarm contractor owns the panel and the alarm wiring.</p>
+        <p className="text-sm text-ink-soft">
+          Taken at the panel by the fire alarm contractor, or with them: they own the panel and the alarm wiring. Enter what they read; never open the panel or disconnect alarm wiring yourself.
+        </p>
         {DETECTOR_STATES.map((s) => (
           <div key={s} className="grid grid-cols-[minmax(0,1fr)_auto] items-end gap-2">
             <label className={fieldLabel}>
@@ -315,6 +319,7 @@ function DetectorCard({ visitId, version, d, delayPolicySeconds }: { visitId: nu
             {delay !== undefined && (delay === delayPolicySeconds ? ' · agrees' : ' · does not agree with the policy')}
           </span>
         </label>
+        {delayCaution && <Alert tone="warn">{delayCaution}</Alert>}
         {d.testStation !== 'none' && (
           <YesNo label={`Remote test station (${d.testStation}) worked`} value={draft.testStationWorked} onChange={(v) => update({ testStationWorked: v })} />
         )}

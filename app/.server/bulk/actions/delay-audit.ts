@@ -1,7 +1,6 @@
 import { z } from 'zod'
 import { addDays } from '~/domain/dates'
-import { auditDelay } from '~/domain/delay-audit'
-import { TROUBLE_REPORTING_SECONDS } from '~/domain/record-forms'
+import { auditDelay, delayLimitCaution, TROUBLE_REPORTING_SECONDS } from '~/domain/delay-audit'
 import { OPEN_VISIT_STATUSES } from '~/domain/vocabulary'
 import type { Db } from '../../db'
 import { idParam, isoDate } from '../../list-query'
@@ -92,6 +91,16 @@ function auditRows(db: Db, ids: readonly number[], outcome: 'agree' | 'disagree'
 const setting = (s: number) => (s === 0 ? 'at once' : s % 60 === 0 ? `${s / 60} min` : `${s} s`)
 
 /** What a technician is sent to do about one site's disagreeing detectors, in the visit's notes. */
+/** The delay-limit caution once per wording, with the detectors it concerns. */
+function cautionLines(rows: readonly AuditRow[]): string[] {
+  const byText = new Map<string, string[]>()
+  for (const r of rows) {
+    const caution = delayLimitCaution(r)
+    if (caution) byText.set(caution, [...(byText.get(caution) ?? []), r.tag])
+  }
+  return [...byText].map(([text, tags]) => `${tags.slice(0, 10).join(', ')}${tags.length > 10 ? ` and ${tags.length - 10} more` : ''}: ${text}`)
+}
+
 function correctionNotes(rows: readonly AuditRow[]): string {
   const lines = rows.slice(0, 40).map((r) => `${r.tag}: set ${setting(r.delaySeconds ?? 0)}, agreed ${setting(r.policySeconds)}`)
   if (rows.length > 40) lines.push(`and ${rows.length - 40} more`)
@@ -99,9 +108,7 @@ function correctionNotes(rows: readonly AuditRow[]): string {
     'Delay setting correction. Notify the monitoring company and site management first.',
     "Check each module's delay setting per the device's instructions and coordinate any change with the monitoring company; re-test and record the setting as found and as left.",
     'HVAC staff never alter the fire alarm panel.',
-    ...(rows.some((r) => r.policySeconds > TROUBLE_REPORTING_SECONDS || (r.delaySeconds ?? 0) > TROUBLE_REPORTING_SECONDS)
-      ? [`A delay past ${TROUBLE_REPORTING_SECONDS} s is beyond what NFPA 72 allows for reporting a trouble: verify with the AHJ.`]
-      : []),
+    ...cautionLines(rows),
     ...lines,
   ].join('\n')
 }
@@ -212,7 +219,7 @@ export const delayAudit = defineAction({
     const cautions: string[] = []
     if (counts.policiesBeyond > 0 || counts.settingsBeyond > 0) {
       cautions.push(
-        `${[counts.policiesBeyond > 0 && `${plural(counts.policiesBeyond, 'site')} agreed`, counts.settingsBeyond > 0 && `${plural(counts.settingsBeyond, 'detector')} set to`].filter(Boolean).join(', and ')} a delay past the ${TROUBLE_REPORTING_SECONDS} s NFPA 72 allows for reporting a trouble: verify with the AHJ.`,
+        `${[counts.policiesBeyond > 0 && `${plural(counts.policiesBeyond, 'site')} agreed`, counts.settingsBeyond > 0 && `${plural(counts.settingsBeyond, 'detector')} set to`].filter(Boolean).join(', and ')} a delay longer than the ${TROUBLE_REPORTING_SECONDS} s NFPA 72 allows for a trouble to be annunciated: verify with the AHJ.`,
       )
     }
     return { ...plan, extra: { audit: counts, limitSeconds: TROUBLE_REPORTING_SECONDS, cautions } }
