@@ -1,5 +1,5 @@
 import { z } from 'zod'
-import { dateProblem } from './dates'
+import { customerFields, detectorAddedFields, detectorFields, siteFields, unitFields } from './record-forms'
 import {
   CODE_BASES,
   CUSTOMER_KINDS,
@@ -108,6 +108,106 @@ const blankToUndefined = (v: unknown) => (typeof v === 'string' && v.trim() === 
 
 const text = (max: number) => z.preprocess(blankToUndefined, z.string().max(max, `At most ${max} characters`).optional())
 
+/** A cell the import cannot hand to the field's rule at all (a word it does not know), with why. */
+class Unreadable {
+  constructor(readonly message: string) {}
+}
+
+/**
+ * One inventory cell, checked by the record form's own rule for that field: a blank cell is "not
+ * given" (undefined), so a found record keeps its value; `read` turns spreadsheet text into what the
+ * rule takes; `also` follows the rule's message (a file has no drop-down to show the choices).
+ * `needed` names a field every row must give.
+ */
+function cell<T extends z.ZodType>(rule: T, o: { read?: (text: string) => unknown; also?: string; needed?: string } = {}) {
+  // Optional on the way out too: a column left unmapped is absent from the row, not an error.
+  return z.unknown().transform((v, ctx): z.output<T> | undefined => {
+    const given = blankToUndefined(v)
+    if (given === undefined || given === null) {
+      if (o.needed) ctx.addIssue({ code: 'custom', message: `${o.needed} is needed on every row` })
+      return o.needed ? z.NEVER : undefined
+    }
+    const value = o.read && typeof given === 'string' ? o.read(given) : given
+    if (value instanceof Unreadable) {
+      ctx.addIssue({ code: 'custom', message: value.message })
+      return z.NEVER
+    }
+    const checked = rule.safeParse(value)
+    if (checked.success) return checked.data
+    ctx.addIssue({ code: 'custom', message: `${checked.error.issues[0]?.message ?? 'Not a valid value'}${o.also ?? ''}` })
+    return z.NEVER
+  }).optional()
+}
+
+/** One of the rule's words, matched without regard to case, spaces or underscores. */
+function choiceCell<T extends z.ZodEnum>(rule: T) {
+  const values = rule.options as string[]
+  return cell(rule, {
+    read: (t) => {
+      const key = t.toLowerCase().replace(/[\s_]+/g, '-')
+      return values.find((x) => x.toLowerCase() === key) ?? t
+    },
+    also: `: one of ${values.join(', ')}`,
+  })
+}
+
+// Spreadsheets write a yes/no column in many ways; a word not among them is refused, not read as no.
+const YES = ['yes', 'y', 'true', '1', 'stranded']
+const NO = ['no', 'n', 'false', '0', 'solid']
+const yesNo = (t: string) => {
+  const l = t.toLowerCase()
+  return YES.includes(l) ? true : NO.includes(l) ? false : new Unreadable('Use yes or no')
+}
+
+// Every field's rule is the record form's (`record-forms.ts`); the import adds only how a cell is read.
+// `model` and `monitoring` are names, looked up among the records already listed.
+export const inventoryRow = z.object({
+  customer: cell(customerFields.name, { needed: 'The customer' }),
+  customerKind: choiceCell(customerFields.kind),
+  site: cell(siteFields.name, { needed: 'The site' }),
+  street: cell(siteFields.street),
+  city: cell(siteFields.city),
+  region: cell(siteFields.region),
+  postalCode: cell(siteFields.postalCode),
+  timeZone: cell(siteFields.timeZone),
+  jurisdiction: cell(siteFields.jurisdiction),
+  ahjName: cell(siteFields.ahjName),
+  codeBasis: choiceCell(siteFields.codeBasis),
+  monitoring: text(120),
+  monitoringAccount: cell(siteFields.monitoringAccount),
+  unit: cell(unitFields.tag, { needed: 'The unit tag' }),
+  unitKind: choiceCell(unitFields.kind),
+  shutdownInput: choiceCell(unitFields.shutdownInput),
+  supplyCfm: cell(unitFields.supplyCfm),
+  returnCfm: cell(unitFields.returnCfm),
+  ductShape: choiceCell(unitFields.ductShape),
+  tag: cell(detectorFields.tag, { needed: 'The detector tag' }),
+  serial: cell(detectorFields.serial),
+  model: text(120),
+  position: choiceCell(detectorFields.position),
+  housing: choiceCell(detectorFields.housing),
+  environment: choiceCell(detectorFields.environment),
+  installedOn: cell(detectorAddedFields.installedOn),
+  eolOhms: cell(detectorFields.eolOhms),
+  eolPlacement: choiceCell(detectorFields.eolPlacement),
+  alarmTerminal: choiceCell(detectorFields.alarmTerminal),
+  supervisoryTerminal: choiceCell(detectorFields.supervisoryTerminal),
+  conductorAwg: cell(detectorFields.conductorAwg),
+  conductorStranded: cell(detectorFields.conductorStranded, { read: yesNo }),
+  runFeet: cell(detectorFields.runFeet),
+})
+export type InventoryRow = z.infer<typeof inventoryRow>
+
+/** The fields each new record must bring (an existing one may leave them blank). */
+export const NEEDED_FOR_NEW = {
+  customer: ['customerKind'],
+  site: ['street', 'city', 'region', 'postalCode', 'timeZone', 'jurisdiction', 'ahjName', 'codeBasis'],
+  unit: ['unitKind', 'shutdownInput', 'supplyCfm', 'returnCfm', 'ductShape'],
+  detector: ['model', 'position', 'housing', 'environment', 'installedOn', 'eolOhms', 'eolPlacement', 'alarmTerminal', 'supervisoryTerminal', 'conductorAwg', 'conductorStranded', 'runFeet'],
+} as const satisfies Record<string, ReadonlyArray<keyof InventoryRow>>
+
+// ---- event rows: no record form of their own ----
+
 /** One of a fixed list, matched without regard to case, spaces or underscores. */
 function choice<T extends readonly [string, ...string[]]>(values: T) {
   return z.preprocess(
@@ -121,112 +221,7 @@ function choice<T extends readonly [string, ...string[]]>(values: T) {
   )
 }
 
-/** A whole number in plain digits (thousands separators allowed), within bounds. */
-function whole(min: number, max: number) {
-  const message = `Use a whole number from ${min} to ${max}`
-  return z.preprocess(
-    (v) => {
-      const t = blankToUndefined(v)
-      return typeof t === 'string' ? t.replace(/,/g, '') : t
-    },
-    z
-      .string()
-      .regex(/^\d{1,9}$/, message)
-      .transform(Number)
-      .refine((n) => n >= min && n <= max, message)
-      .optional(),
-  )
-}
-
-const YES = ['yes', 'y', 'true', '1', 'stranded']
-const NO = ['no', 'n', 'false', '0', 'solid']
-const yesNo = z.preprocess(
-  (v) => {
-    const t = blankToUndefined(v)
-    if (typeof t !== 'string') return t
-    const l = t.toLowerCase()
-    return YES.includes(l) ? true : NO.includes(l) ? false : t
-  },
-  z.boolean({ error: 'Use yes or no' }).optional(),
-)
-
-const day = z.preprocess(
-  blankToUndefined,
-  z
-    .string()
-    .superRefine((value, ctx) => {
-      const problem = dateProblem(value)
-      if (problem) ctx.addIssue({ code: 'custom', message: problem })
-    })
-    .optional(),
-)
-
-const region = z.preprocess(
-  (v) => (typeof blankToUndefined(v) === 'string' ? String(blankToUndefined(v)).toUpperCase() : blankToUndefined(v)),
-  z.string().regex(/^[A-Z]{2}-[A-Z0-9]{1,3}$/, 'Use a subdivision code such as US-OR').optional(),
-)
-
-const timeZone = z.preprocess(
-  blankToUndefined,
-  z
-    .string()
-    .refine((tz) => {
-      try {
-        new Intl.DateTimeFormat('en', { timeZone: tz })
-        return true
-      } catch {
-        return false
-      }
-    }, 'Use an IANA time zone such as America/Chicago')
-    .optional(),
-)
-
 const required = <T extends z.ZodType>(schema: T, name: string) => schema.refine((v) => v !== undefined, `${name} is needed on every row`)
-
-export const inventoryRow = z.object({
-  customer: required(text(120), 'The customer'),
-  customerKind: choice(CUSTOMER_KINDS),
-  site: required(text(120), 'The site'),
-  street: text(200),
-  city: text(100),
-  region,
-  postalCode: text(20),
-  timeZone,
-  jurisdiction: text(120),
-  ahjName: text(120),
-  codeBasis: choice(CODE_BASES),
-  monitoring: text(120),
-  monitoringAccount: text(60),
-  unit: required(text(60), 'The unit tag'),
-  unitKind: choice(UNIT_KINDS),
-  shutdownInput: choice(SHUTDOWN_INPUTS),
-  supplyCfm: whole(0, 500_000),
-  returnCfm: whole(0, 500_000),
-  ductShape: choice(DUCT_SHAPES),
-  tag: required(text(60), 'The detector tag'),
-  serial: text(60),
-  model: text(120),
-  position: choice(POSITIONS),
-  housing: choice(HOUSINGS),
-  environment: choice(ENVIRONMENTS),
-  installedOn: day,
-  eolOhms: whole(1, 1_000_000),
-  eolPlacement: choice(EOL_PLACEMENTS),
-  alarmTerminal: choice(TERMINALS),
-  supervisoryTerminal: choice(TERMINALS),
-  conductorAwg: whole(10, 26),
-  conductorStranded: yesNo,
-  runFeet: whole(0, 20_000),
-})
-export type InventoryRow = z.infer<typeof inventoryRow>
-
-/** The fields each new record must bring (an existing one may leave them blank). */
-export const NEEDED_FOR_NEW = {
-  customer: ['customerKind'],
-  site: ['street', 'city', 'region', 'postalCode', 'timeZone', 'jurisdiction', 'ahjName', 'codeBasis'],
-  unit: ['unitKind', 'shutdownInput', 'supplyCfm', 'returnCfm', 'ductShape'],
-  detector: ['model', 'position', 'housing', 'environment', 'installedOn', 'eolOhms', 'eolPlacement', 'alarmTerminal', 'supervisoryTerminal', 'conductorAwg', 'conductorStranded', 'runFeet'],
-} as const satisfies Record<string, ReadonlyArray<keyof InventoryRow>>
 
 // An instant with its offset (or Z), or a local date and time read in the site's own time zone.
 const WITH_OFFSET = /^\d{4}-\d{2}-\d{2}[T ]\d{2}:\d{2}(:\d{2}(\.\d{1,3})?)?(Z|[+-]\d{2}:?\d{2})$/i

@@ -1,6 +1,7 @@
 // The office's record forms: one schema per record, read by the edit pages in the browser and by the
 // server (page actions and the JSON API) alike. Values arrive as form strings or as JSON, so every
-// field takes either; a blank optional field is null.
+// field takes either; a blank optional field is null. Each record's field rules are exported on their
+// own (`customerFields`, ...) so the CSV import checks its cells by the very same rules.
 import { z } from 'zod'
 import { AWG_SIZES } from './conductors'
 import { dateProblem } from './dates'
@@ -90,13 +91,14 @@ const phone = z.preprocess(
 
 // --- Customer ---
 
-export const customerForm = z.object({
+export const customerFields = {
   name: text('customer’s name'),
   kind: choice(CUSTOMER_KINDS, 'kind of customer'),
   contactName: optionalText(),
   contactEmail: email,
   contactPhone: phone,
-})
+}
+export const customerForm = z.object(customerFields)
 export type CustomerForm = z.infer<typeof customerForm>
 
 // --- Site ---
@@ -115,29 +117,31 @@ export function isTimeZone(name: string): boolean {
   }
 }
 
+export const siteFields = {
+  name: text('site’s name'),
+  street: text('street address', 200),
+  city: text('town or city'),
+  region: z.preprocess(
+    (v) => (typeof v === 'string' ? v.trim().toUpperCase() : v),
+    z.string({ error: 'Enter the region' }).regex(REGION, 'Enter the ISO 3166-2 code, such as US-OR or CA-ON'),
+  ),
+  postalCode: text('postal code', 12),
+  timeZone: z
+    .string({ error: 'Enter the time zone' })
+    .trim()
+    .refine(isTimeZone, 'Enter a time zone name such as America/Chicago'),
+  jurisdiction: text('jurisdiction'),
+  ahjName: text('authority having jurisdiction (AHJ)'),
+  ahjContact: optionalText(200),
+  codeBasis: choice(CODE_BASES, 'code basis'),
+  monitoringCompanyId: z.preprocess((v) => (isBlank(v) ? null : toNumber(v)), z.number().int().positive().nullable()),
+  monitoringAccount: optionalText(40),
+  delayPolicySeconds: required({ min: 0, max: MAX_DELAY_SECONDS, unit: 's' }),
+  accessNotes: optionalText(1000),
+}
+
 export const siteForm = z
-  .object({
-    name: text('site’s name'),
-    street: text('street address', 200),
-    city: text('town or city'),
-    region: z.preprocess(
-      (v) => (typeof v === 'string' ? v.trim().toUpperCase() : v),
-      z.string({ error: 'Enter the region' }).regex(REGION, 'Enter the ISO 3166-2 code, such as US-OR or CA-ON'),
-    ),
-    postalCode: text('postal code', 12),
-    timeZone: z
-      .string({ error: 'Enter the time zone' })
-      .trim()
-      .refine(isTimeZone, 'Enter a time zone name such as America/Chicago'),
-    jurisdiction: text('jurisdiction'),
-    ahjName: text('authority having jurisdiction (AHJ)'),
-    ahjContact: optionalText(200),
-    codeBasis: choice(CODE_BASES, 'code basis'),
-    monitoringCompanyId: z.preprocess((v) => (isBlank(v) ? null : toNumber(v)), z.number().int().positive().nullable()),
-    monitoringAccount: optionalText(40),
-    delayPolicySeconds: required({ min: 0, max: MAX_DELAY_SECONDS, unit: 's' }),
-    accessNotes: optionalText(1000),
-  })
+  .object(siteFields)
   .superRefine((s, ctx) => {
     if (s.monitoringAccount && s.monitoringCompanyId === null) {
       ctx.addIssue({ code: 'custom', path: ['monitoringCompanyId'], message: 'Choose the monitoring company that holds this account' })
@@ -150,23 +154,25 @@ export type SiteForm = z.infer<typeof siteForm>
 // Duct sizes in inches: a few inches to a plenum of 20 ft (common practice, not a source).
 const ductInches = { min: 4, max: 240, unit: 'in', whole: false }
 
+export const unitFields = {
+  tag: text('unit tag', 40),
+  kind: choice(UNIT_KINDS, 'kind of unit'),
+  location: optionalText(200),
+  shutdownInput: choice(SHUTDOWN_INPUTS, 'shutdown input'),
+  supplyCfm: required({ min: 0, max: 200_000, unit: 'cfm' }),
+  returnCfm: required({ min: 0, max: 200_000, unit: 'cfm' }),
+  ductShape: choice(DUCT_SHAPES, 'duct shape'),
+  ductWidthIn: optional(ductInches),
+  ductHeightIn: optional(ductInches),
+  ductDiameterIn: optional(ductInches),
+  storeysServed: required({ min: 1, max: 200, unit: 'storeys' }),
+  sharedPlenum: flag,
+  areaDetection: flag,
+  transformerVa: required({ min: 10, max: 1000, unit: 'VA' }),
+}
+
 export const unitForm = z
-  .object({
-    tag: text('unit tag', 40),
-    kind: choice(UNIT_KINDS, 'kind of unit'),
-    location: optionalText(200),
-    shutdownInput: choice(SHUTDOWN_INPUTS, 'shutdown input'),
-    supplyCfm: required({ min: 0, max: 200_000, unit: 'cfm' }),
-    returnCfm: required({ min: 0, max: 200_000, unit: 'cfm' }),
-    ductShape: choice(DUCT_SHAPES, 'duct shape'),
-    ductWidthIn: optional(ductInches),
-    ductHeightIn: optional(ductInches),
-    ductDiameterIn: optional(ductInches),
-    storeysServed: required({ min: 1, max: 200, unit: 'storeys' }),
-    sharedPlenum: flag,
-    areaDetection: flag,
-    transformerVa: required({ min: 10, max: 1000, unit: 'VA' }),
-  })
+  .object(unitFields)
   .superRefine((u, ctx) => {
     const need = (field: 'ductWidthIn' | 'ductHeightIn' | 'ductDiameterIn', message: string) => {
       if (u[field] === null) ctx.addIssue({ code: 'custom', path: [field], message })
@@ -188,35 +194,51 @@ export type UnitForm = z.infer<typeof unitForm>
 const velocity = { min: 0, max: 10_000, unit: 'ft/min' }
 const pressure = { min: 0, max: 10, unit: 'in. w.c.', whole: false }
 
+export const detectorFields = {
+  tag: text('detector tag', 40),
+  serial: optionalText(60),
+  modelId: recordId('model'),
+  position: choice(POSITIONS, 'position in the duct'),
+  headsFitted: required({ min: 1, max: 2, unit: 'heads' }),
+  housing: choice(HOUSINGS, 'housing'),
+  environment: choice(ENVIRONMENTS, 'environment'),
+  delaySeconds: optional({ min: 0, max: MAX_DELAY_SECONDS, unit: 's' }),
+  delayObservedOn: optionalDay,
+  eolOhms: required({ min: 100, max: 100_000, unit: 'Ω' }),
+  eolPlacement: choice(EOL_PLACEMENTS, 'EOL resistor placement'),
+  alarmTerminal: choice(TERMINALS, 'alarm contact terminal'),
+  supervisoryTerminal: choice(TERMINALS, 'supervisory contact terminal'),
+  conductorAwg: z.preprocess(
+    (v) => (isBlank(v) ? undefined : toNumber(v)),
+    z.number({ error: 'Choose the conductor size' }).refine((n) => (AWG_SIZES as number[]).includes(n), `Choose ${AWG_SIZES.join(', ')} AWG`),
+  ),
+  conductorStranded: flag,
+  runFeet: required({ min: 1, max: 10_000, unit: 'ft' }),
+  testStation: choice(TEST_STATIONS, 'test station'),
+  testStationFeet: optional({ min: 1, max: 2_000, unit: 'ft' }),
+  velocityMinFpm: required(velocity),
+  velocityMaxFpm: required(velocity),
+  pressureMinInWc: required(pressure),
+  pressureMaxInWc: required(pressure),
+  cleaningIntervalDays: optional({ min: 7, max: 1_825, unit: 'days' }),
+}
+
+/**
+ * Given once, when a detector is added (by an import); the edit form leaves it as recorded, since the
+ * schedule of a first test counts from it.
+ */
+export const detectorAddedFields = {
+  installedOn: z.preprocess(
+    (v) => (isBlank(v) ? undefined : v),
+    z.string({ error: 'Enter the day it was installed' }).superRefine((v, ctx) => {
+      const problem = dateProblem(v)
+      if (problem) ctx.addIssue({ code: 'custom', message: problem })
+    }),
+  ),
+}
+
 export const detectorForm = z
-  .object({
-    tag: text('detector tag', 40),
-    serial: optionalText(60),
-    modelId: recordId('model'),
-    position: choice(POSITIONS, 'position in the duct'),
-    headsFitted: required({ min: 1, max: 2, unit: 'heads' }),
-    housing: choice(HOUSINGS, 'housing'),
-    environment: choice(ENVIRONMENTS, 'environment'),
-    delaySeconds: optional({ min: 0, max: MAX_DELAY_SECONDS, unit: 's' }),
-    delayObservedOn: optionalDay,
-    eolOhms: required({ min: 100, max: 100_000, unit: 'Ω' }),
-    eolPlacement: choice(EOL_PLACEMENTS, 'EOL resistor placement'),
-    alarmTerminal: choice(TERMINALS, 'alarm contact terminal'),
-    supervisoryTerminal: choice(TERMINALS, 'supervisory contact terminal'),
-    conductorAwg: z.preprocess(
-      (v) => (isBlank(v) ? undefined : toNumber(v)),
-      z.number({ error: 'Choose the conductor size' }).refine((n) => (AWG_SIZES as number[]).includes(n), `Choose ${AWG_SIZES.join(', ')} AWG`),
-    ),
-    conductorStranded: flag,
-    runFeet: required({ min: 1, max: 10_000, unit: 'ft' }),
-    testStation: choice(TEST_STATIONS, 'test station'),
-    testStationFeet: optional({ min: 1, max: 2_000, unit: 'ft' }),
-    velocityMinFpm: required(velocity),
-    velocityMaxFpm: required(velocity),
-    pressureMinInWc: required(pressure),
-    pressureMaxInWc: required(pressure),
-    cleaningIntervalDays: optional({ min: 7, max: 1_825, unit: 'days' }),
-  })
+  .object(detectorFields)
   .superRefine((d, ctx) => {
     const issue = (field: string, message: string) => ctx.addIssue({ code: 'custom', path: [field], message })
     if (d.velocityMinFpm > d.velocityMaxFpm) issue('velocityMaxFpm', 'The highest velocity must be at least the lowest')
