@@ -3,6 +3,7 @@ import { describe, expect, it } from 'vitest'
 import {
   ABSENT_MAX_VOLTS,
   diagnoseInterlock,
+  LINE_MIN_VOLTS,
   interlockPlan,
   PRESENT_MIN_VOLTS,
   type InterlockMeasurement,
@@ -94,7 +95,11 @@ describe('diagnoseInterlock', () => {
   })
 
   it.each(STYLES)('%s with no voltage in either state has no source', (style) => {
-    expect(codes({ style, measured: { normalVolts: 0.4, alarmVolts: 0, unitStopped: true } })).toEqual(['no-source'])
+    expect(codes({ style, measured: { normalVolts: 0.4, alarmVolts: 0 } })).toEqual(['no-source'])
+  })
+
+  it('break-to-stop with no voltage in either state has no source, and cannot run to be stopped', () => {
+    expect(codes({ style: 'break-to-stop', measured: { normalVolts: 0.4, alarmVolts: 0, unitStopped: true } })).toEqual(['no-source'])
   })
 
   it('break-to-stop with 24 V in both states never stops', () => {
@@ -187,6 +192,58 @@ describe('diagnoseInterlock', () => {
           },
         })
         expect(d.verdict).toBe('pass')
+      }),
+    )
+  })
+
+  it('line voltage on the 24 V input is its own finding, never read as "24 V present"', () => {
+    // A Class 2 circuit is at most 30 V (NEC Chapter 9 Table 11(A)); 120 V is line voltage (common practice)
+    expect(LINE_MIN_VOLTS).toBe(30)
+    const d = diagnoseInterlock({ style: 'break-to-stop', measured: { normalVolts: 121, alarmVolts: 0, unitStopped: true } })
+    expect(d.verdict).toBe('fail')
+    expect(d.findings.map((f) => f.code)).toEqual(['line-voltage'])
+    expect(d.findings[0].message).toMatch(/normal 121 V/)
+    expect(d.findings[0].message).toMatch(/Stop the test and keep clear/)
+    // 28 V is an unloaded 24 VAC transformer (common practice), not line voltage.
+    expect(diagnoseInterlock({ style: 'break-to-stop', measured: { normalVolts: 28, alarmVolts: 0, unitStopped: true } }).verdict).toBe('pass')
+    expect(codes({ style: 'make-to-stop', measured: { normalVolts: 0, alarmVolts: 208, unitStopped: true } })).toEqual(['line-voltage'])
+  })
+
+  it.each(STYLES)('%s: a detector that did not trip is named, and the unit is not blamed for running on', (style) => {
+    const plan = interlockPlan(style)
+    const same = plan.expected.normal.volts
+    const d = diagnoseInterlock({ style, measured: { normalVolts: same, alarmVolts: same, unitStopped: false, detectorTripped: false } })
+    expect(d.verdict).toBe('fail')
+    expect(d.findings.map((f) => f.code)).toEqual(['detector-did-not-trip'])
+    expect(d.findings[0].message).toMatch(/detector did not trip/)
+  })
+
+  it.each(STYLES)('%s: a unit that stopped is never reported as not stopping', (style) => {
+    const plan = interlockPlan(style)
+    const same = plan.expected.normal.volts
+    const d = diagnoseInterlock({ style, measured: { normalVolts: same, alarmVolts: same, unitStopped: true } })
+    expect(d.findings.map((f) => f.code)).toEqual(['input-did-not-change'])
+    expect(d.findings[0].message).toMatch(/The unit stopped/)
+  })
+
+  it('property: with the unit seen stopping, no reading ever yields "unit did not stop"', () => {
+    const volts = fc.option(fc.double({ min: 0, max: 300, noNaN: true }), { nil: undefined })
+    fc.assert(
+      fc.property(fc.constantFrom(...STYLES), volts, volts, fc.option(fc.boolean(), { nil: undefined }), (style, normalVolts, alarmVolts, detectorTripped) => {
+        expect(codes({ style, measured: { normalVolts, alarmVolts, unitStopped: true, detectorTripped } })).not.toContain('unit-did-not-stop')
+      }),
+    )
+  })
+
+  it('property: any reading over 30 V fails as line voltage', () => {
+    // NEC Chapter 9 Table 11(A): Class 2 at most 30 V
+    fc.assert(
+      fc.property(fc.constantFrom(...STYLES), fc.double({ min: 30.01, max: 600, noNaN: true }), fc.boolean(), (style, high, atNormal) => {
+        const plan = interlockPlan(style)
+        const measured = atNormal ? { normalVolts: high, alarmVolts: plan.expected.alarm.volts, unitStopped: true } : { normalVolts: plan.expected.normal.volts, alarmVolts: high, unitStopped: true }
+        const d = diagnoseInterlock({ style, measured })
+        expect(d.verdict).toBe('fail')
+        expect(d.findings[0].code).toBe('line-voltage')
       }),
     )
   })

@@ -1,3 +1,5 @@
+import { CLASS2_MAX_VOLTS } from './power'
+
 // The HVAC side of a duct detector: an auxiliary contact that stops the unit in alarm. Unit controls
 // take one of two input styles (common practice), and wiring one like the other is a classic miswire:
 // the unit is stopped for good, or never stops. Nothing here touches the alarm or supervisory
@@ -18,7 +20,14 @@ export interface InterlockPlan {
 }
 
 export type InterlockFindingCode =
-  'wired-for-other-style' | 'no-source' | 'unit-did-not-stop' | 'stuck-stopped' | 'unexpected-voltage'
+  | 'wired-for-other-style'
+  | 'no-source'
+  | 'unit-did-not-stop'
+  | 'stuck-stopped'
+  | 'unexpected-voltage'
+  | 'line-voltage'
+  | 'detector-did-not-trip'
+  | 'input-did-not-change'
 
 export interface InterlockFinding {
   code: InterlockFindingCode
@@ -34,6 +43,8 @@ export interface InterlockMeasurement {
     alarmVolts?: number
     /** The unit stopped when the detector was tripped. */
     unitStopped?: boolean
+    /** The detector went into alarm when tripped (its alarm LED lit); false when it did not. */
+    detectorTripped?: boolean
   }
 }
 
@@ -47,6 +58,9 @@ export interface InterlockDiagnosis {
 // induced "ghost" voltage on a digital meter); anything between is neither and needs a second look.
 export const PRESENT_MIN_VOLTS = 18
 export const ABSENT_MAX_VOLTS = 3
+// A Class 2 control circuit is at most 30 V (NEC Chapter 9 Table 11(A)); a 24 VAC transformer reads
+// up to about 28 V unloaded (common practice). Above 30 V the input carries something else: line voltage.
+export const LINE_MIN_VOLTS = CLASS2_MAX_VOLTS
 
 const INPUT: Record<InterlockStyle, string> = {
   'break-to-stop': 'unit stop/safety input',
@@ -100,11 +114,12 @@ export function interlockPlan(style: InterlockStyle, sourceLabel = 'R (24 VAC)')
   }
 }
 
-type Reading = 'present' | 'absent' | 'between' | 'unknown'
+type Reading = 'present' | 'absent' | 'between' | 'line' | 'unknown'
 
 function classify(volts: number | undefined): Reading {
   if (volts === undefined || !Number.isFinite(volts)) return 'unknown'
   const v = Math.abs(volts)
+  if (v > LINE_MIN_VOLTS) return 'line'
   if (v >= PRESENT_MIN_VOLTS) return 'present'
   if (v <= ABSENT_MAX_VOLTS) return 'absent'
   return 'between'
@@ -122,12 +137,37 @@ export function diagnoseInterlock({ style, measured }: InterlockMeasurement): In
   const other = interlockPlan(OTHER[style])
   const breaks = style === 'break-to-stop'
   const input = INPUT[style]
-  const n = classify(measured.normalVolts)
-  const a = classify(measured.alarmVolts)
-  const normalWrong = isOnOff(n) && n !== voltsOn(plan.expected.normal.volts)
-  const alarmWrong = isOnOff(a) && a !== voltsOn(plan.expected.alarm.volts)
   const findings: InterlockFinding[] = []
   const add = (code: InterlockFindingCode, message: string) => findings.push({ code, message })
+  const stopped = measured.unitStopped
+  const notTripped = measured.detectorTripped === false
+
+  // Line voltage comes first: it is a hazard before it is a wiring fault, and nothing else is judged on it.
+  const lineAt = (['normal', 'alarm'] as const).filter((s) => classify(s === 'normal' ? measured.normalVolts : measured.alarmVolts) === 'line')
+  if (lineAt.length > 0) {
+    const shown = lineAt.map((s) => `${s} ${s === 'normal' ? measured.normalVolts : measured.alarmVolts} V`).join(', ')
+    add(
+      'line-voltage',
+      `The ${input} reads ${shown}: more than a 24 VAC control circuit carries (a Class 2 circuit is at most ` +
+        `${CLASS2_MAX_VOLTS} V, NEC Chapter 9 Table 11(A)). Line voltage may be on the input or the meter is on the ` +
+        'wrong terminals. Stop the test and keep clear; the unit’s wiring is to be checked under licensed practice ' +
+        'before anything is reconnected or tested again.',
+    )
+  }
+  const n = lineAt.includes('normal') ? 'unknown' : classify(measured.normalVolts)
+  // A detector that did not trip proves nothing in alarm: its alarm reading is set aside.
+  const a = lineAt.includes('alarm') || notTripped ? 'unknown' : classify(measured.alarmVolts)
+  const normalWrong = isOnOff(n) && n !== voltsOn(plan.expected.normal.volts)
+  const alarmWrong = isOnOff(a) && a !== voltsOn(plan.expected.alarm.volts)
+
+  if (notTripped) {
+    add(
+      'detector-did-not-trip',
+      'The detector did not trip, so the unit’s response and the alarm reading say nothing about the interlock. ' +
+        'Trip it again the way its instructions say (test magnet or remote test station) and confirm its alarm LED; ' +
+        'if it still will not go into alarm, the detector itself needs service (head, power or module).',
+    )
+  }
 
   const between = (state: string, volts: number | undefined) =>
     add(
@@ -139,32 +179,41 @@ export function diagnoseInterlock({ style, measured }: InterlockMeasurement): In
   if (n === 'between') between('Normal', measured.normalVolts)
   if (a === 'between') between('Alarm', measured.alarmVolts)
 
+  // The unit stopped, yet the input never changed: the meter was on another terminal, or something else stopped it.
+  const unchanged = () =>
+    add(
+      'input-did-not-change',
+      `The unit stopped, but the ${input} read the same in alarm as in normal (${n === 'present' ? 'about 24 V' : 'about 0 V'}): ` +
+        'the reading was probably taken on another terminal, or the unit was stopped by another input. Find the ' +
+        `terminal auxiliary ${plan.contact} feeds, measure there, and test again.`,
+    )
+
   if (normalWrong && alarmWrong) {
     // Both readings are the other style's: auxiliary NC and NO swapped, or the unit's style is on record wrongly.
     add(
       'wired-for-other-style',
       `Readings match ${other.style} wiring, not ${style}: the ${input} is fed from auxiliary ${other.contact} ` +
         `instead of ${plan.contact}. ` +
-        (measured.unitStopped === true
+        (stopped === true
           ? `Yet the unit stopped in alarm, so its input is probably ${other.style} and the record is wrong: ` +
             'check the unit’s wiring diagram and correct the record.'
           : `If the unit really is ${style}, it is held stopped while the detector is normal and starts in alarm: ` +
             `confirm from the unit’s wiring diagram, then move the wire to auxiliary ${plan.contact} and test again.`),
     )
   } else if (n === 'absent' && a === 'absent') {
-    add(
-      'no-source',
-      `No 24 V at the ${input} in either state: ${plan.wiring[0].from} is not reaching auxiliary C, or the wire ` +
-        `from auxiliary ${plan.contact} is open. Check the source at the unit first.`,
-    )
-  } else if (n === 'present' && a === 'present') {
-    if (breaks)
-      add('unit-did-not-stop', `24 V stayed on the ${input} in alarm: the detector did not trip, or ${BYPASSED}.`)
+    if (!breaks && stopped === true) unchanged()
     else
       add(
-        'stuck-stopped',
-        `24 V is on the ${input} even with the detector normal, so the unit cannot run: ${BYPASSED}.`,
+        'no-source',
+        `No 24 V at the ${input} in either state: ${plan.wiring[0].from} is not reaching auxiliary C, or the wire ` +
+          `from auxiliary ${plan.contact} is open` +
+          (breaks ? '. ' : ', or the detector did not trip (confirm its alarm LED). ') +
+          'Check the source at the unit first.',
       )
+  } else if (n === 'present' && a === 'present') {
+    if (!breaks) add('stuck-stopped', `24 V is on the ${input} even with the detector normal, so the unit cannot run: ${BYPASSED}.`)
+    else if (stopped === true) unchanged()
+    else add('unit-did-not-stop', `24 V stayed on the ${input} in alarm: the detector did not trip (confirm its alarm LED), or ${BYPASSED}.`)
   } else if (normalWrong) {
     // Only the normal reading is known, or the alarm reading is off the scale: say what it already shows.
     if (breaks) {
@@ -181,22 +230,24 @@ export function diagnoseInterlock({ style, measured }: InterlockMeasurement): In
       )
     }
   } else if (alarmWrong) {
-    if (breaks) {
+    if (stopped === true) unchanged()
+    else if (breaks) {
       add(
         'unit-did-not-stop',
-        `24 V stayed on the ${input} in alarm: the detector did not trip, the input is wired to NO, or it bypasses ` +
-          'the auxiliary contact. Measure with the detector normal too.',
+        `24 V stayed on the ${input} in alarm: the detector did not trip (confirm its alarm LED), the input is wired ` +
+          'to NO, or it bypasses the auxiliary contact. Measure with the detector normal too.',
       )
     } else {
       add(
         'no-source',
-        `No 24 V reached the ${input} in alarm: the detector did not trip, there is no source at auxiliary C, ` +
-          'or the input is wired to NC. Measure with the detector normal too.',
+        `No 24 V reached the ${input} in alarm: the detector did not trip (confirm its alarm LED), there is no ` +
+          'source at auxiliary C, or the input is wired to NC. Measure with the detector normal too.',
       )
     }
   }
 
-  if (measured.unitStopped === false && !findings.some((f) => f.code === 'unit-did-not-stop')) {
+  // Only a unit seen running while the detector was in alarm "did not stop"; one that stopped never does.
+  if (stopped === false && !notTripped && !findings.some((f) => f.code === 'unit-did-not-stop')) {
     const readingsRight = n === voltsOn(plan.expected.normal.volts) && a === voltsOn(plan.expected.alarm.volts)
     add(
       'unit-did-not-stop',
@@ -208,6 +259,6 @@ export function diagnoseInterlock({ style, measured }: InterlockMeasurement): In
   }
 
   if (findings.length > 0) return { verdict: 'fail', findings }
-  const complete = n !== 'unknown' && a !== 'unknown' && measured.unitStopped !== undefined
+  const complete = n !== 'unknown' && a !== 'unknown' && stopped !== undefined
   return { verdict: complete ? 'pass' : 'incomplete', findings }
 }

@@ -27,6 +27,8 @@ export const detectorEntry = z.object({
       signalAtPanel: z.enum(['alarm', 'supervisory', 'nothing']),
       unitShutDown: z.boolean(),
       resetOk: z.boolean(),
+      /** The detector went into alarm when tripped (its alarm LED lit). */
+      detectorTripped: z.boolean().optional(),
     })
     .optional(),
   loop: z.object({ normal: ohms, alarm: ohms, trouble: ohms, unpowered: ohms }).partial().optional(),

@@ -45,7 +45,7 @@ export function taskOutcomes(tasks: readonly VisitTask[], entry: DetectorEntry):
   const done = worked.length || entry.result === 'pass' ? worked : tasks.slice(0, 1)
   const failing = new Set<VisitTask>()
   if (entry.result === 'fail') {
-    if (f && (f.signalAtPanel !== 'alarm' || !f.unitShutDown || !f.resetOk)) failing.add('functional')
+    if (f && (f.signalAtPanel !== 'alarm' || !f.unitShutDown || !f.resetOk || f.detectorTripped === false)) failing.add('functional')
     if (f && !f.unitShutDown) failing.add('shutdown')
     if (entry.testStationWorked === false) failing.add('test-station')
     if (!done.some((t) => failing.has(t))) {

@@ -156,7 +156,7 @@ function DetectorCard({ visitId, version, d, delayPolicySeconds }: { visitId: nu
   const loop = useLoopDiagnosis(d.arrangement, loopReadings(draft))
   const interlock = diagnoseInterlock({
     style: d.shutdownInput,
-    measured: { normalVolts: num(draft.inputNormal), alarmVolts: num(draft.inputAlarm), unitStopped: draft.unitShutDown },
+    measured: { normalVolts: num(draft.inputNormal), alarmVolts: num(draft.inputAlarm), unitStopped: draft.unitShutDown, detectorTripped: draft.detectorTripped },
   })
   const pressure = num(draft.pressure)
   const pressureCheck = pressure === undefined ? null : checkPressure({ measuredInWc: pressure, listedMinInWc: d.pressure.min, listedMaxInWc: d.pressure.max })
@@ -194,6 +194,7 @@ function DetectorCard({ visitId, version, d, delayPolicySeconds }: { visitId: nu
         <h4 id={`fn-${d.id}`} className="text-lg font-semibold">
           Functional test
         </h4>
+        <YesNo label="Detector went into alarm (its alarm LED lit)" value={draft.detectorTripped} onChange={(v) => update({ detectorTripped: v })} />
         <Choice
           label="Signal at the panel"
           value={draft.signalAtPanel}

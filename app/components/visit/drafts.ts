@@ -6,6 +6,7 @@ import { detectorEntry, type DetectorEntry } from '~/domain/visit-forms'
 
 export interface Draft {
   signalAtPanel?: 'alarm' | 'supervisory' | 'nothing'
+  detectorTripped?: boolean
   unitShutDown?: boolean
   resetOk?: boolean
   loop: Partial<Record<DetectorState, string>>
@@ -81,7 +82,7 @@ export function toEntry(detectorId: number, d: Draft): { entry: DetectorEntry } 
     detectorId,
     functional:
       d.signalAtPanel !== undefined && d.unitShutDown !== undefined && d.resetOk !== undefined
-        ? { signalAtPanel: d.signalAtPanel, unitShutDown: d.unitShutDown, resetOk: d.resetOk }
+        ? defined({ signalAtPanel: d.signalAtPanel, unitShutDown: d.unitShutDown, resetOk: d.resetOk, detectorTripped: d.detectorTripped })
         : undefined,
     loop: Object.keys(loop).length ? loop : undefined,
     inputVolts: Object.keys(volts).length ? volts : undefined,
