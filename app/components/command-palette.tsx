@@ -1,4 +1,4 @@
-import { createContext, useContext, useEffect, useLayoutEffect, useMemo, useRef, useState } from 'react'
+import { createContext, useCallback, useContext, useEffect, useId, useLayoutEffect, useMemo, useRef, useState } from 'react'
 import { useNavigate } from 'react-router'
 import { can } from '~/domain/permissions'
 import type { Section } from '~/utils/sections'
@@ -15,17 +15,27 @@ export interface PaletteAction {
   run: () => void
 }
 
-// Pages with a selection publish what can be done to it; the palette lists those actions.
-const ActionsContext = createContext<{ actions: PaletteAction[]; setActions: (a: PaletteAction[]) => void } | null>(null)
+// Pages publish what can be done on them (a list's export, its selection's actions); the palette
+// lists those actions. Each publisher keeps its own entries, so one does not wipe out another's.
+const ActionsContext = createContext<{ actions: PaletteAction[]; publish: (owner: string, a: PaletteAction[] | null) => void } | null>(null)
 
 export function PaletteActionsProvider({ children }: { children: React.ReactNode }) {
-  const [actions, setActions] = useState<PaletteAction[]>([])
-  const value = useMemo(() => ({ actions, setActions }), [actions])
+  const [byOwner, setByOwner] = useState<ReadonlyMap<string, PaletteAction[]>>(new Map())
+  const publish = useCallback((owner: string, a: PaletteAction[] | null) => {
+    setByOwner((prev) => {
+      const next = new Map(prev)
+      if (a === null) next.delete(owner)
+      else next.set(owner, a)
+      return next
+    })
+  }, [])
+  const value = useMemo(() => ({ actions: [...byOwner.values()].flat(), publish }), [byOwner, publish])
   return <ActionsContext.Provider value={value}>{children}</ActionsContext.Provider>
 }
 
 export function usePaletteActions(actions: PaletteAction[]) {
   const ctx = useContext(ActionsContext)
+  const owner = useId()
   // Entries are republished only when their labels change, so each one runs the newest action of
   // its id: the selection or technician chosen since then, not the one seen at publish time.
   const latest = useRef(actions)
@@ -34,8 +44,8 @@ export function usePaletteActions(actions: PaletteAction[]) {
   })
   const key = actions.map((a) => a.id + a.label).join('|')
   useEffect(() => {
-    ctx?.setActions(actions.map((a) => ({ ...a, run: () => latest.current.find((x) => x.id === a.id)?.run() })))
-    return () => ctx?.setActions([])
+    ctx?.publish(owner, actions.map((a) => ({ ...a, run: () => latest.current.find((x) => x.id === a.id)?.run() })))
+    return () => ctx?.publish(owner, null)
     // eslint-disable-next-line react-hooks/exhaustive-deps
   }, [key])
 }

@@ -4,6 +4,7 @@ import { useSearchParams } from 'react-router'
 import { useSWRConfig } from 'swr'
 import { BulkBar } from './bulk/bulk-bar'
 import type { Technician } from './bulk/action-fields'
+import type { BulkList } from './bulk/catalog'
 import { DataTable, type PhoneCard } from './data-table'
 import { ExportButton } from './export-button'
 import { FilterBar, listQuery, type FilterOption } from './filter-bar'
@@ -26,8 +27,8 @@ export function ListPage<Row extends { id: number }>(p: {
   defaultSort?: { key: string; dir: 'asc' | 'desc' }
   /** How a row reads on a phone (see DataTable). */
   phone: (r: Row) => PhoneCard
-  /** Changes many rows at once: the selection bar and its palette entries. */
-  bulk?: { entity: 'visit' | 'detector'; technicians: Technician[] }
+  /** Acts on many rows at once: the selection bar and its palette entries (`today`: the office's day). */
+  bulk?: { list: BulkList; technicians: Technician[]; today: string }
 }) {
   const [params] = useSearchParams()
   const query = useMemo(() => listQuery(params), [params])
@@ -45,7 +46,15 @@ export function ListPage<Row extends { id: number }>(p: {
         <ExportButton page={p.page} query={query} />
       </FilterBar>
       {p.bulk && (
-        <BulkBar entity={p.bulk.entity} endpoint={p.endpoint} query={query} selected={Object.keys(selection).map(Number)} technicians={p.bulk.technicians} onChanged={bulkChanged} />
+        <BulkBar
+          list={p.bulk.list}
+          endpoint={p.endpoint}
+          query={query}
+          selected={Object.keys(selection).map(Number)}
+          technicians={p.bulk.technicians}
+          today={p.bulk.today}
+          onChanged={bulkChanged}
+        />
       )}
       <DataTable<Row>
         selection={selection}

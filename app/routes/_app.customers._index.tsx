@@ -1,5 +1,8 @@
 import type { ColumnDef } from '@tanstack/react-table'
 import { requireUser } from '~/.server/auth'
+import { getDb } from '~/.server/db'
+import { technicianOptions } from '~/.server/lists/visits'
+import { officeToday } from '~/.server/today'
 import { customerList, type CustomerListRow } from '~/.server/lists/customers'
 import { countOf, linkCell, monoCell, selectColumn } from '~/components/columns'
 import { ListPage, options, sentence } from '~/components/list-page'
@@ -13,7 +16,7 @@ export const meta: Route.MetaFunction = () => [{ title: 'Customers · Ductkeeper
 
 export async function loader({ request }: Route.LoaderArgs) {
   await requireUser(request, 'view:fleet')
-  return { sortable: Object.keys(customerList.sorts), defaultSort: customerList.defaultSort }
+  return { sortable: Object.keys(customerList.sorts), defaultSort: customerList.defaultSort, technicians: technicianOptions(getDb()).filter((t) => t.active), today: officeToday() }
 }
 
 const columns: ColumnDef<CustomerListRow>[] = [
@@ -29,6 +32,7 @@ const columns: ColumnDef<CustomerListRow>[] = [
 export default function Customers({ loaderData }: Route.ComponentProps) {
   return (
     <ListPage<CustomerListRow>
+      bulk={{ list: 'customers', technicians: loaderData.technicians, today: loaderData.today }}
       sortable={loaderData.sortable}
       defaultSort={loaderData.defaultSort}
       title="Customers"

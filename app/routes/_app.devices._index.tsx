@@ -2,6 +2,7 @@ import type { ColumnDef } from '@tanstack/react-table'
 import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
 import { technicianOptions } from '~/.server/lists/visits'
+import { officeToday } from '~/.server/today'
 import { badgeCell, linkCell, monoCell, selectColumn } from '~/components/columns'
 import type { FilterOption } from '~/components/filter-bar'
 import { ListPage, options } from '~/components/list-page'
@@ -16,12 +17,12 @@ export const meta: Route.MetaFunction = () => [{ title: 'Detectors · Ductkeeper
 
 export async function loader({ request }: Route.LoaderArgs) {
   await requireUser(request, 'view:fleet')
-  return { sortable: Object.keys(deviceList.sorts), defaultSort: deviceList.defaultSort, technicians: technicianOptions(getDb()).filter((t) => t.active) }
+  return { sortable: Object.keys(deviceList.sorts), defaultSort: deviceList.defaultSort, technicians: technicianOptions(getDb()).filter((t) => t.active), today: officeToday() }
 }
 
 const FILTERS: FilterOption[] = [
   { param: 'state', label: 'State', options: options(['normal', 'trouble', 'alarm', 'supervisory', 'out-of-service']) },
-  { param: 'due', label: 'Due', options: [{ value: 'overdue', label: 'Overdue' }, { value: 'due-soon', label: 'Due within 30 days' }, { value: 'ok', label: 'Up to date' }] },
+  { param: 'due', label: 'Due', options: [{ value: 'overdue', label: 'Overdue' }, { value: 'due', label: 'Due, inside the window' }, { value: 'due-soon', label: 'Due within 30 days' }, { value: 'ok', label: 'Up to date' }] },
   { param: 'environment', label: 'Location', options: options(['clean', 'dusty', 'kitchen', 'humid']) },
   { param: 'housing', label: 'Housing', options: [{ value: 'standard', label: 'Standard' }, { value: 'nema4', label: 'NEMA 4' }, { value: 'nema4x', label: 'NEMA 4X' }] },
   { param: 'delay', label: 'Delay vs policy', options: [{ value: 'agree', label: 'Agrees' }, { value: 'disagree', label: 'Disagrees' }, { value: 'unknown', label: 'Not recorded' }] },
@@ -47,7 +48,7 @@ const columns: ColumnDef<DeviceListRow>[] = [
 export default function Devices({ loaderData }: Route.ComponentProps) {
   return (
     <ListPage<DeviceListRow>
-      bulk={{ entity: 'detector', technicians: loaderData.technicians }}
+      bulk={{ list: 'detectors', technicians: loaderData.technicians, today: loaderData.today }}
       sortable={loaderData.sortable}
       defaultSort={loaderData.defaultSort}
       title="Detectors"

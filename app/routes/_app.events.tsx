@@ -1,6 +1,9 @@
 import type { ColumnDef } from '@tanstack/react-table'
 import { Link } from 'react-router'
 import { requireUser } from '~/.server/auth'
+import { getDb } from '~/.server/db'
+import { technicianOptions } from '~/.server/lists/visits'
+import { officeToday } from '~/.server/today'
 import { eventList, eventQuery, type EventListRow } from '~/.server/lists/events'
 import { linkCell, monoCell, selectColumn } from '~/components/columns'
 import { KeyHint, ListPage, options, sentence } from '~/components/list-page'
@@ -17,7 +20,7 @@ export async function loader({ request }: Route.LoaderArgs) {
   const url = new URL(request.url)
   const within = { site: url.searchParams.get('site') ?? undefined, detector: url.searchParams.get('detector') ?? undefined }
   const sortable = Object.keys(eventList.sorts).filter((sort) => eventQuery.safeParse({ ...within, sort }).success)
-  return { sortable, defaultSort: eventList.defaultSort }
+  return { sortable, defaultSort: eventList.defaultSort, technicians: technicianOptions(getDb()).filter((t) => t.active), today: officeToday() }
 }
 
 const KINDS = ['alarm', 'trouble', 'supervisory', 'restore', 'test', 'reset', 'cleaning', 'notice', 'change'] as const
@@ -56,6 +59,7 @@ const columns: ColumnDef<EventListRow>[] = [
 export default function Events({ loaderData }: Route.ComponentProps) {
   return (
     <ListPage<EventListRow>
+      bulk={{ list: 'events', technicians: loaderData.technicians, today: loaderData.today }}
       sortable={loaderData.sortable}
       defaultSort={loaderData.defaultSort}
       title="Events"

@@ -1,5 +1,8 @@
 import type { ColumnDef } from '@tanstack/react-table'
 import { requireUser } from '~/.server/auth'
+import { getDb } from '~/.server/db'
+import { technicianOptions } from '~/.server/lists/visits'
+import { officeToday } from '~/.server/today'
 import { siteList, type SiteListRow } from '~/.server/lists/sites'
 import { countOf, linkCell, monoCell, selectColumn } from '~/components/columns'
 import { ListPage } from '~/components/list-page'
@@ -13,7 +16,7 @@ export const meta: Route.MetaFunction = () => [{ title: 'Sites · Ductkeeper' }]
 
 export async function loader({ request }: Route.LoaderArgs) {
   await requireUser(request, 'view:fleet')
-  return { sortable: Object.keys(siteList.sorts), defaultSort: siteList.defaultSort }
+  return { sortable: Object.keys(siteList.sorts), defaultSort: siteList.defaultSort, technicians: technicianOptions(getDb()).filter((t) => t.active), today: officeToday() }
 }
 
 const delay = (s: number) => (s === 0 ? 'at once' : `${s / 60} min`)
@@ -35,6 +38,7 @@ const columns: ColumnDef<SiteListRow>[] = [
 export default function Sites({ loaderData }: Route.ComponentProps) {
   return (
     <ListPage<SiteListRow>
+      bulk={{ list: 'sites', technicians: loaderData.technicians, today: loaderData.today }}
       sortable={loaderData.sortable}
       defaultSort={loaderData.defaultSort}
       title="Sites"

@@ -23,7 +23,7 @@ export async function loader({ request }: Route.LoaderArgs) {
   if (url.search === '') {
     throw redirect(`/visits?${new URLSearchParams({ from: officeToday(), sort: 'scheduledOn', dir: 'asc' })}`)
   }
-  return { technicians: technicianOptions(getDb()), sortable: Object.keys(visitList.sorts), defaultSort: visitList.defaultSort }
+  return { technicians: technicianOptions(getDb()), today: officeToday(), sortable: Object.keys(visitList.sorts), defaultSort: visitList.defaultSort }
 }
 
 const columns: ColumnDef<VisitListRow>[] = [
@@ -43,7 +43,7 @@ export default function Visits({ loaderData }: Route.ComponentProps) {
   const { technicians } = loaderData
   return (
     <ListPage<VisitListRow>
-      bulk={{ entity: 'visit', technicians: technicians.filter((t) => t.active) }}
+      bulk={{ list: 'visits', technicians: technicians.filter((t) => t.active), today: loaderData.today }}
       sortable={loaderData.sortable}
       defaultSort={loaderData.defaultSort}
       title="Visits"

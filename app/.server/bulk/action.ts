@@ -22,6 +22,11 @@ export interface BulkAction<I = unknown> {
   /** What the action does, for the UI's buttons and the palette. */
   title: string
   entity: BulkEntity
+  /**
+   * The lists a selection for it may be made on, besides the entity's own: a detector action can be
+   * offered on sites, customers or events, and then acts on the detectors those rows stand for.
+   */
+  through?: readonly ThroughList[]
   /** Who may run it; the route answers 403 to any other role. */
   capability: Capability
   /** The action's own fields of the request body (the selection and `preview` are taken off first). */
@@ -30,6 +35,9 @@ export interface BulkAction<I = unknown> {
 }
 
 export type BulkEntity = 'visit' | 'detector'
+
+/** Lists whose rows stand for detectors (see selection.ts). */
+export type ThroughList = 'sites' | 'customers' | 'events'
 
 export type Fields = Record<string, string | number | boolean | null>
 
@@ -44,6 +52,8 @@ export interface BulkChange {
   version: number
   /** A visit to book instead of a record to change (see creates.ts): `id` and `version` then name and fingerprint it. */
   create?: VisitCreate
+  /** A line for the detector's history (an event of kind 'change' by the actor), written with the change and removed by its undo. */
+  history?: string
 }
 
 export interface BulkRefusal {

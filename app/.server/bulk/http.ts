@@ -9,7 +9,7 @@ import { BulkError, type BulkContext } from './action'
 import { loadCompanyCalendar } from './calendar'
 import { bulkAction } from './registry'
 import { applyBulk, previewBulk, previewed } from './runner'
-import { resolveSelection, selectionSchema } from './selection'
+import { resolveScope, selectionSchema, type Selection } from './selection'
 import { undoBulk } from './undo'
 
 const body = selectionSchema
@@ -19,7 +19,7 @@ const body = selectionSchema
     versions: z.record(z.string().regex(/^[1-9][0-9]{0,15}$/, 'Record ids in plain digits'), z.number().int().min(1)).optional(),
   })
   .loose()
-const OWN_KEYS = ['preview', 'previewId', 'versions', 'ids', 'filter']
+const OWN_KEYS = ['preview', 'previewId', 'versions', 'ids', 'filter', 'list']
 
 const errorResponse = (error: unknown): Response => {
   if (error instanceof BulkError) return Response.json({ error: error.message }, { status: error.status })
@@ -37,17 +37,24 @@ export async function bulkRequest(request: Request, name: string, user: CurrentU
   if (!parsed.success) {
     return Response.json({ error: 'Invalid request', issues: parsed.error.issues.map((i) => ({ path: i.path.join('.'), message: i.message })) }, { status: 400 })
   }
+  if (b.list && !action.through?.includes(b.list)) {
+    return Response.json({ error: `${action.title} is not offered on a selection of ${b.list}` }, { status: 400 })
+  }
   const db = getDb()
+  const resolve = (s: Selection) => resolveScope(db, action.entity, s)
   const ctx: BulkContext = { actor: user, today: officeToday(), calendar: loadCompanyCalendar(db), now: new Date().toISOString() }
   try {
-    if (b.preview) return Response.json(previewBulk(db, action, resolveSelection(db, action.entity, b), parsed.data, ctx))
+    if (b.preview) {
+      const { ids, through } = resolve(b)
+      return Response.json(previewBulk(db, action, ids, parsed.data, ctx, through))
+    }
     if (b.previewId) {
       const p = previewed(b.previewId, action, parsed.data, user.id)
       return Response.json(applyBulk(db, action, parsed.data, p.ids, p.versions, ctx))
     }
     if (!b.versions) throw new BulkError(400, 'Preview first, then apply with the previewId, or with the selection and the versions the preview gave')
     const versions = new Map(Object.entries(b.versions).map(([id, v]) => [Number(id), v]))
-    return Response.json(applyBulk(db, action, parsed.data, resolveSelection(db, action.entity, b), versions, ctx))
+    return Response.json(applyBulk(db, action, parsed.data, resolve(b).ids, versions, ctx))
   } catch (error) {
     return errorResponse(error)
   }

@@ -6,6 +6,8 @@ import { listsChanged } from '../list-query'
 import { bulkChanges } from '../schema'
 import { BulkError, type BulkAction, type BulkChange, type BulkContext, type BulkEntity, type BulkRefusal, type Fields } from './action'
 import { insertVisit } from './creates'
+import { writeHistory } from './history'
+import type { Through } from './selection'
 import { writeFields } from './write'
 
 /** Rows of a preview or result sent back; the whole selection is still applied. */
@@ -19,6 +21,8 @@ export interface PreviewAnswer {
   entity: BulkEntity
   /** Records selected. */
   selected: number
+  /** For a selection made on the sites, customers or events list: how many of those rows, standing for how many detectors. */
+  through?: Through
   summary: string
   changeCount: number
   refusedCount: number
@@ -52,6 +56,8 @@ export interface ChangedRecord {
   version: number
   /** A visit the change booked: undo removes it instead of putting fields back. */
   created?: true
+  /** The history line (event) the change wrote on the detector: undo removes it. */
+  eventId?: number
 }
 
 interface Snapshot {
@@ -76,7 +82,7 @@ function remember(s: Snapshot): string {
 }
 
 /** Runs the action's preview and keeps the versions it read, for the apply that follows. */
-export function previewBulk<I>(db: Db, action: BulkAction<I>, ids: readonly number[], input: I, ctx: BulkContext): PreviewAnswer {
+export function previewBulk<I>(db: Db, action: BulkAction<I>, ids: readonly number[], input: I, ctx: BulkContext, through?: Through): PreviewAnswer {
   const plan = action.preview(db, ids, input, ctx)
   const versions = new Map(plan.changes.map((c) => [c.id, c.version]))
   const previewId = remember({ actorId: ctx.actor.id, action: action.name, input: JSON.stringify(input), ids, versions, at: Date.now() })
@@ -84,6 +90,7 @@ export function previewBulk<I>(db: Db, action: BulkAction<I>, ids: readonly numb
     action: action.name,
     entity: action.entity,
     selected: ids.length,
+    ...(through ? { through } : {}),
     summary: plan.summary,
     changeCount: plan.changes.length,
     refusedCount: plan.refused.length,
@@ -124,7 +131,10 @@ export function applyBulk<I>(db: Db, action: BulkAction<I>, input: I, ids: reado
       else if (c.version !== seen) stale(c.version)
       else if (c.create) done.push(insertVisit(db, { ...c, create: c.create }, ctx.actor.id))
       else if (!writeFields(db, c.entity, c.id, c.to, seen)) stale('another')
-      else done.push({ entity: c.entity, id: c.id, label: c.label, before: c.from, after: c.to, version: seen + 1 })
+      else {
+        const eventId = c.history && c.entity === 'detector' ? writeHistory(db, c.id, c.history, ctx.actor.id, ctx.now) : undefined
+        done.push({ entity: c.entity, id: c.id, label: c.label, before: c.from, after: c.to, version: seen + 1, ...(eventId ? { eventId } : {}) })
+      }
     }
     if (done.length === 0) return { changeId: null, applied: 0, refused, summary: plan.summary }
     rederiveDetectors(db, done, ctx.today)

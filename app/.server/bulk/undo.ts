@@ -6,6 +6,7 @@ import { listsChanged } from '../list-query'
 import { bulkChanges } from '../schema'
 import { BulkError, type BulkEntity } from './action'
 import { removeVisit, workStarted } from './creates'
+import { removeHistory } from './history'
 import { rederiveDetectors, type ChangedRecord } from './runner'
 import { currentVersions, writeFields } from './write'
 
@@ -19,9 +20,9 @@ export interface UndoAnswer {
 }
 
 /**
- * Puts back exactly the fields a bulk change replaced, on every record, in one IMMEDIATE
- * transaction, bumping each version; or refuses the whole undo, naming the records that someone
- * changed since. Open for a day, to the person who made the change and to leads and admins.
+ * Puts back exactly the fields a bulk change replaced on every record (and removes the visits it
+ * booked and the history lines it wrote), in one IMMEDIATE transaction, bumping each version; or
+ * refuses the whole undo, naming the records that someone changed since. Open for a day, to the person who made the change and to leads and admins.
  */
 export function undoBulk(db: Db, changeId: number, actor: { id: number; role: Role }, today: string, now = new Date()): UndoAnswer {
   const answer = writeTx(db, () => {
@@ -51,6 +52,8 @@ export function undoBulk(db: Db, changeId: number, actor: { id: number; role: Ro
     for (const r of records) {
       if (!(r.created ? removeVisit(db, r) : writeFields(db, r.entity, r.id, r.before, r.version))) throw new Error(`Record ${r.entity} ${r.id} moved during the undo`)
     }
+    // The history lines the change wrote go with it, so the detector's history is as it was.
+    removeHistory(db, records.flatMap((r) => (r.eventId ? [r.eventId] : [])))
     rederiveDetectors(db, records, today)
     const undoneAt = now.toISOString()
     db.update(bulkChanges).set({ undoneAt, undoneBy: actor.id }).where(eq(bulkChanges.id, changeId)).run()

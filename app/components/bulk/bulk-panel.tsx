@@ -17,11 +17,19 @@ const show = (fields: Record<string, unknown>) =>
  * One bulk change, from choosing through preview to apply and undo, in a modal dialog worked from
  * the keyboard: the first field has the focus, Enter previews and then applies, Esc closes.
  */
-export function BulkPanel(p: { action: BulkActionInfo; scope: BulkScope; scopeLabel: string; technicians: Technician[]; onClose: () => void; onChanged: () => void }) {
+export function BulkPanel(p: {
+  action: BulkActionInfo
+  scope: BulkScope
+  scopeLabel: string
+  technicians: Technician[]
+  today: string
+  onClose: () => void
+  onChanged: () => void
+}) {
   const dialog = useRef<HTMLDialogElement>(null)
   const applyButton = useRef<HTMLButtonElement>(null)
   const undoButton = useRef<HTMLButtonElement>(null)
-  const [input, setInput] = useState(() => initialInput(p.action.name))
+  const [input, setInput] = useState(() => initialInput(p.action.name, p.today, p.technicians))
   const [phase, setPhase] = useState<Phase>('choose')
   const [preview, setPreview] = useState<PreviewAnswer | null>(null)
   const [result, setResult] = useState<ApplyAnswer | null>(null)
@@ -150,13 +158,51 @@ export function BulkPanel(p: { action: BulkActionInfo; scope: BulkScope; scopeLa
   )
 }
 
+const LIST_NOUNS = { sites: ['site', 'sites'], customers: ['customer', 'customers'], events: ['event', 'events'] } as const
+const count = (n: number, [one, many]: readonly [string, string]) => `${formatCount(n)} ${n === 1 ? one : many}`
+
+/** What a selection of sites, customers or events stands for: the detectors the action works on. */
+function ThroughLine({ through }: { through: NonNullable<PreviewAnswer['through']> }) {
+  const sitewide = through.withoutDetector ? ` (${count(through.withoutDetector, ['event', 'events'])} of a whole site, with no detector, left out)` : ''
+  const verb = through.records === 1 ? 'stands' : 'stand'
+  return (
+    <p className="rounded-sm bg-sunken px-3 py-2">
+      The {count(through.records, LIST_NOUNS[through.list])} {verb} for <strong>{count(through.detectors, ['detector', 'detectors'])}</strong>
+      {sitewide}.
+    </p>
+  )
+}
+
 function PreviewView({ preview }: { preview: PreviewAnswer }) {
+  const x = preview.extra
   return (
     <section aria-label="Preview" className="flex flex-col gap-3 text-sm">
+      {preview.through && <ThroughLine through={preview.through} />}
       <p className="font-medium">
         {preview.summary}. {formatCount(preview.changeCount)} of {formatCount(preview.selected)} selected will change
         {preview.refusedCount > 0 && `; ${formatCount(preview.refusedCount)} refused`}. Nothing has changed yet.
       </p>
+      {x?.audit && (
+        <p>
+          Of these detectors, {formatCount(x.audit.agree)} agree with their site&apos;s delay policy, {formatCount(x.audit.disagree)} disagree and{' '}
+          {formatCount(x.audit.unknown)} were never recorded.
+        </p>
+      )}
+      {x?.cautions?.map((c) => (
+        <p key={c} role="note" className="rounded-sm border border-late/40 bg-late-soft px-3 py-2">
+          {c}
+        </p>
+      ))}
+      {x?.notDue !== undefined && x.notDue > 0 && (
+        <p className="text-ink-soft">
+          {formatCount(x.notDue)} of the selected detectors are not due for cleaning by {x.dueBy}.
+        </p>
+      )}
+      {x?.history && preview.changeCount > 0 && (
+        <p className="text-ink-soft">
+          Each detector&apos;s history will say: <q>{x.history}</q>, under your name and today&apos;s time.
+        </p>
+      )}
       {preview.changes.length > 0 && (
         <table className="w-full text-left text-xs">
           <caption className="mb-1 text-left text-ink-soft">

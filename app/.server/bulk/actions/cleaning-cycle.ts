@@ -122,6 +122,8 @@ export const cleaningCycle = defineAction({
   name: 'cleaning-cycle',
   title: 'Cleaning cycle',
   entity: 'detector',
+  // A selection of sites or customers stands for their detectors.
+  through: ['sites', 'customers'],
   capability: 'schedule:visits',
   input,
   preview(db, ids, i, ctx) {

@@ -211,6 +211,8 @@ export const delayAudit = defineAction({
   name: 'delay-audit',
   title: 'Delay-setting audit',
   entity: 'detector',
+  // A selection of sites or customers stands for their detectors.
+  through: ['sites', 'customers'],
   capability: 'schedule:visits',
   input,
   preview(db, ids, i, ctx) {

@@ -10,29 +10,43 @@ const plural = (n: number, word: string) => `${n} ${word}${n === 1 ? '' : 's'}`
  * The changes for each selected detector that `decide` gives fields for; a string from `decide`
  * refuses the detector with that reason.
  */
-function perDetector(db: Parameters<typeof detectorRows>[0], ids: readonly number[], decide: (d: DetectorRow) => { from: Fields; to: Fields } | string) {
+function perDetector(db: Parameters<typeof detectorRows>[0], ids: readonly number[], decide: (d: DetectorRow) => { from: Fields; to: Fields; history?: string } | string) {
   const rows = detectorRows(db, ids)
   const refused: BulkRefusal[] = missing(ids, rows, 'Detector')
   const changes: BulkChange[] = []
   for (const d of rows) {
     const r = decide(d)
     if (typeof r === 'string') refused.push({ id: d.id, label: detectorLabel(d), reason: r })
-    else changes.push({ entity: 'detector', id: d.id, label: detectorLabel(d), from: r.from, to: r.to, version: d.version })
+    else changes.push({ entity: 'detector', id: d.id, label: detectorLabel(d), from: r.from, to: r.to, version: d.version, ...(r.history ? { history: r.history } : {}) })
   }
   refused.sort((a, b) => a.id - b.id)
   return { changes, refused }
 }
 
-/** Sets the recorded state (out of service, back to normal…); the derivation re-scores each. */
+const stateWords = (s: string) => s.replace(/-/g, ' ')
+
+/**
+ * Sets the recorded state (out of service, back to normal…); the derivation re-scores each. Each
+ * detector's history gets a line saying from what to what and why, under the person's name.
+ */
 export const setState = defineAction({
   name: 'set-state',
   title: 'Set detector state',
   entity: 'detector',
+  through: ['sites', 'customers'],
   capability: 'edit:records',
-  input: z.object({ state: z.enum(DETECTOR_STATES, { error: `State is one of ${DETECTOR_STATES.join(', ')}` }) }),
+  input: z.object({
+    state: z.enum(DETECTOR_STATES, { error: `State is one of ${DETECTOR_STATES.join(', ')}` }),
+    reason: z.string().trim().max(300, 'Keep the reason under 300 characters').optional(),
+  }),
   preview(db, ids, i) {
-    const plan = perDetector(db, ids, (d) => (d.state === i.state ? `Already ${i.state}` : { from: { state: d.state }, to: { state: i.state } }))
-    return { ...plan, summary: `Set ${plural(plan.changes.length, 'detector')} to ${i.state}` }
+    const why = i.reason ? `: ${i.reason}` : ''
+    const plan = perDetector(db, ids, (d) =>
+      d.state === i.state
+        ? `Already ${i.state}`
+        : { from: { state: d.state }, to: { state: i.state }, history: `State set to ${stateWords(i.state)} (was ${stateWords(d.state)})${why}` },
+    )
+    return { ...plan, summary: `Set ${plural(plan.changes.length, 'detector')} to ${i.state}`, extra: { history: `State set to ${stateWords(i.state)} (was …)${why}` } }
   },
 })
 
@@ -41,6 +55,7 @@ export const assign = defineAction({
   name: 'assign',
   title: 'Assign detectors',
   entity: 'detector',
+  through: ['sites', 'customers', 'events'],
   capability: 'triage:fleet',
   input: z.object({ technicianId: idParam.nullable() }),
   preview(db, ids, i) {
@@ -62,6 +77,7 @@ export const acknowledge = defineAction({
   name: 'acknowledge',
   title: 'Acknowledge',
   entity: 'detector',
+  through: ['sites', 'customers', 'events'],
   capability: 'triage:fleet',
   input: z.object({}),
   preview(db, ids, _i, ctx) {
@@ -79,6 +95,7 @@ export const unacknowledge = defineAction({
   name: 'unacknowledge',
   title: 'Unacknowledge',
   entity: 'detector',
+  through: ['sites', 'customers'],
   capability: 'triage:fleet',
   input: z.object({}),
   preview(db, ids) {
