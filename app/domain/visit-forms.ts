@@ -16,6 +16,21 @@ const id = z.number().int().positive()
 /** The visit's version as last read: a save against an older one is refused (409), never merged. */
 const version = z.number().int().positive()
 
+/** The two e-mails a visit sends its monitoring company: the notice of work and the all-clear. */
+export const VISIT_EMAIL_KINDS = ['notice', 'all-clear'] as const
+export type VisitEmailKind = (typeof VISIT_EMAIL_KINDS)[number]
+
+/** A number the monitoring company can ring back: digits with the usual separators, 7 to 15 digits. */
+const callBack = z
+  .string()
+  .trim()
+  .max(40)
+  .regex(/^\+?[0-9 ().-]+( (ext|x)\.? ?[0-9]{1,6})?$/i, 'Give a telephone number to call back, e.g. (503) 555-0134')
+  .refine((v) => {
+    const digits = v.split(/ (?:ext|x)/i)[0].replace(/\D/g, '').length
+    return digits >= 7 && digits <= 15
+  }, 'Give a telephone number to call back, e.g. (503) 555-0134')
+
 /** A loop reading as typed on site: ohms, or "open" for an over-range meter. */
 export const ohms = z.union([z.literal('open'), z.number().min(0).max(100_000_000)])
 
@@ -65,6 +80,18 @@ export const visitIntent = z.discriminatedUnion('intent', [
   z.object({ intent: z.literal('record'), version, entries: z.array(detectorEntry).min(1).max(500) }),
   z.object({ intent: z.literal('complete'), version, entries: z.array(detectorEntry).max(500).default([]) }),
   z.object({ intent: z.literal('all-clear'), version, confirmedWith: required(120, 'Who confirmed the system is out of test'), at: instant.optional() }),
+  // Where the monitoring company takes e-mail: the notice of work and the all-clear sent through the outbox.
+  z.object({
+    intent: z.literal('email-notice'),
+    version,
+    inTestFrom: instant,
+    inTestUntil: instant,
+    callBack: callBack,
+    siteManagementTold: z.boolean(),
+    siteContact: text(120).optional(),
+  }),
+  z.object({ intent: z.literal('email-all-clear'), version, callBack: callBack }),
+  z.object({ intent: z.literal('retry-email'), version, kind: z.enum(VISIT_EMAIL_KINDS) }),
   z.object({ intent: z.literal('cancel'), version, reason: required(500, 'A reason') }),
   z.object({
     intent: z.literal('reschedule'),

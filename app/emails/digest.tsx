@@ -2,10 +2,7 @@ import { Body, Container, Head, Heading, Hr, Html, Link, Preview, Section, Text 
 import type { DigestFigures } from '~/.server/email/digest'
 import type { WeekFigures } from '~/.server/email/snapshots'
 import type { ReasonCode } from '~/domain/vocabulary'
-
-// The console's colours (app/app.css); fonts fall back to the system's where Inter is not installed.
-const C = { paper: '#f5f4ef', panel: '#ffffff', line: '#d9d7ce', ink: '#1b2527', soft: '#4a5557', faint: '#737c7d', accent: '#0e5a55', }
-const FONT = "'Inter', 'Segoe UI', Helvetica, Arial, sans-serif"
+import { C, DARK_CSS, FONT } from './look'
 
 const REASON_WORDS: Record<ReasonCode, string> = {
   'in-trouble': 'in trouble at the panel',
@@ -104,7 +101,7 @@ export default function DigestEmail({ figures, lastWeek = null, name, appUrl }: 
       <Head>
         <meta name="color-scheme" content="light dark" />
         <meta name="supported-color-schemes" content="light dark" />
-        <style>{`@media (prefers-color-scheme: dark) { .dk-body { background:#11191a !important; } .dk-card { background:#1b2527 !important; border-color:#37464a !important; } .dk-ink { color:#e8ecea !important; } .dk-soft { color:#b9c4c2 !important; } .dk-link { color:#7fc8bf !important; } }`}</style>
+        <style>{DARK_CSS}</style>
       </Head>
       <Preview>{`${figures.overdue.any} overdue, ${figures.trouble.now} in trouble, ${figures.failedTests.thisWeek} failed tests this week`}</Preview>
       <Body className="dk-body" style={{ background: C.paper, fontFamily: FONT, color: C.ink, margin: 0, padding: '16px 0' }}>

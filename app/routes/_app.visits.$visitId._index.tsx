@@ -11,6 +11,7 @@ import { StateBadge } from '~/components/state-badge'
 import { Fact } from '~/components/ui/facts'
 import { DetectorEntryForm, roofWalk, taskWords, type FormDetector } from '~/components/visit/detector-entry-form'
 import { AllClearForm, NoticeForm, StartButton } from '~/components/visit/notice-form'
+import { EmailAllClearForm, EmailNoticeForm, VisitEmailLine } from '~/components/visit/notice-email'
 import { OfficeActions } from '~/components/visit/office-actions'
 import { siteClock } from '~/components/visit/site-time'
 import { can, type RouteAccess } from '~/domain/permissions'
@@ -216,7 +217,7 @@ export default function Visit({ loaderData }: Route.ComponentProps) {
             </dl>
           </section>
           <MonitoringCard mc={mc} account={s.monitoringAccount} />
-          <NoticeList notices={notices} tz={tz} now={now} />
+          <NoticeList notices={notices} emails={loaderData.emails} visitId={v.id} version={v.version} mayRetry={may.record} tz={tz} now={now} />
           {may.schedule && v.status !== 'done' && v.status !== 'cancelled' && (
             <OfficeActions
               visitId={v.id}
@@ -243,6 +244,16 @@ type Data = Route.ComponentProps['loaderData']
 function WorkArea({ loaderData: d, noticeLogged, formDetectors }: { loaderData: Data; noticeLogged: boolean; formDetectors: FormDetector[] }) {
   const { visit: v, site: s, monitoring: mc, may, now } = d
   const latest = d.notifications.rows.at(-1) ?? null
+  // Where the monitoring company takes e-mail, the notice and the all-clear can go from here.
+  const mail = mc?.name && mc.email ? { company: mc.name, to: mc.email } : null
+  const noticeMail = d.emails.find((m) => m.kind === 'notice')
+  const unsent = latest && noticeMail && latest.confirmation === `e-mail message ${noticeMail.id}` && noticeMail.status !== 'sent' ? noticeMail : null
+  const allClear = (
+    <>
+      <AllClearForm visitId={v.id} version={v.version} timeZone={s.timeZone} now={now} />
+      {mail && !d.emails.some((m) => m.kind === 'all-clear') && <EmailAllClearForm visitId={v.id} version={v.version} {...mail} />}
+    </>
+  )
   if (!may.record) {
     if (v.status === 'done' || v.status === 'cancelled') return null
     return <p className="rounded-md border border-line bg-sunken px-4 py-3">Only the assigned technician or the office records work on this visit.</p>
@@ -250,8 +261,15 @@ function WorkArea({ loaderData: d, noticeLogged, formDetectors }: { loaderData: 
   if (v.status === 'planned' || v.status === 'notified')
     return (
       <div className="space-y-4">
+        {!noticeLogged && mail && mc?.notifyMethod === 'email' && <EmailNoticeForm visitId={v.id} version={v.version} {...mail} timeZone={s.timeZone} now={now} />}
         {!noticeLogged && <NoticeForm visitId={v.id} version={v.version} preferred={mc?.notifyMethod ?? null} timeZone={s.timeZone} now={now} />}
-        <StartButton visitId={v.id} version={v.version} noticeLogged={noticeLogged} />
+        {!noticeLogged && mail && mc?.notifyMethod !== 'email' && !noticeMail && <EmailNoticeForm visitId={v.id} version={v.version} {...mail} timeZone={s.timeZone} now={now} />}
+        <StartButton
+          visitId={v.id}
+          version={v.version}
+          noticeLogged={noticeLogged}
+          waiting={unsent ? (unsent.status === 'failed' ? 'The e-mailed notice did not go: send it again under Notices, or phone them and log that notice.' : 'The e-mailed notice has not gone yet.') : null}
+        />
       </div>
     )
   if (v.status === 'in-progress')
@@ -263,10 +281,10 @@ function WorkArea({ loaderData: d, noticeLogged, formDetectors }: { loaderData: 
           </h2>
           <DetectorEntryForm visitId={v.id} version={v.version} detectors={formDetectors} delayPolicySeconds={d.field.delayPolicySeconds} />
         </section>
-        {latest && !latest.clearedAt && <AllClearForm visitId={v.id} version={v.version} timeZone={s.timeZone} now={now} />}
+        {latest && !latest.clearedAt && allClear}
       </div>
     )
-  if (v.status === 'done' && latest && !latest.clearedAt) return <AllClearForm visitId={v.id} version={v.version} timeZone={s.timeZone} now={now} />
+  if (v.status === 'done' && latest && !latest.clearedAt) return <div className="space-y-4">{allClear}</div>
   return null
 }
 
@@ -321,7 +339,23 @@ function MonitoringCard({ mc, account }: { mc: Data['monitoring']; account: stri
   )
 }
 
-function NoticeList({ notices, tz, now }: { notices: Data['notifications']['rows']; tz: string; now: string }) {
+function NoticeList({
+  notices,
+  emails,
+  visitId,
+  version,
+  mayRetry,
+  tz,
+  now,
+}: {
+  notices: Data['notifications']['rows']
+  emails: Data['emails']
+  visitId: number
+  version: number
+  mayRetry: boolean
+  tz: string
+  now: string
+}) {
   return (
     <section aria-labelledby="notices-h" className="rounded-md border border-line bg-panel p-4">
       <h2 id="notices-h" className="text-lg font-semibold">
@@ -360,6 +394,13 @@ function NoticeList({ notices, tz, now }: { notices: Data['notifications']['rows
             </li>
           ))}
         </ol>
+      )}
+      {emails.length > 0 && (
+        <div className="mt-3 space-y-2">
+          {emails.map((m) => (
+            <VisitEmailLine key={m.id} email={m} visitId={visitId} version={version} tz={tz} now={now} mayRetry={mayRetry} />
+          ))}
+        </div>
       )}
       <p className="mt-3 text-xs text-ink-faint">Times in site time ({tz.replace(/_/g, ' ')}).</p>
     </section>

@@ -5,6 +5,7 @@ import { notFound, recordId } from '~/.server/repos/record-id'
 import { visitRecord } from '~/.server/repos/visit'
 import { officeToday } from '~/.server/today'
 import { payloadOf, refusalResponse } from '~/.server/visits/refusal'
+import { applyEmailIntent, isEmailIntent } from '~/.server/visits/notice-email'
 import { applyVisitIntent } from '~/.server/visits/work'
 import type { RouteAccess } from '~/domain/permissions'
 import { visitIntent } from '~/domain/visit-forms'
@@ -26,6 +27,11 @@ export async function action({ request, params }: Route.ActionArgs) {
   const input = await readJsonOrForm(request, visitIntent, (form) => payloadOf(form) as Record<string, unknown>)
   const db = getDb()
   try {
+    if (isEmailIntent(input)) {
+      // A message the provider refused is not a refused request: it is logged and shown as failed, to retry.
+      const email = await applyEmailIntent(db, user, visitId, input, { today: officeToday() })
+      return Response.json({ ...visitRecord(db, visitId), email })
+    }
     applyVisitIntent(db, user, visitId, input, { today: officeToday() })
   } catch (error) {
     return refusalResponse(error)

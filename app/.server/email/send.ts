@@ -147,6 +147,19 @@ export async function sendMessage(db: Db, id: number, o: { now?: Date; force?: b
   return deliver(db, id, now)
 }
 
+/**
+ * Puts a failed message back in the queue for one more try, keeping its error until that try answers.
+ * Only a failed message: one queued, sending or sent is left alone (false).
+ */
+export function requeueFailed(db: Db, id: number): boolean {
+  const result = db
+    .update(emailOutbox)
+    .set({ status: 'queued', nextAttemptAt: null })
+    .where(and(eq(emailOutbox.id, id), eq(emailOutbox.status, 'failed')))
+    .run()
+  return result.changes === 1
+}
+
 /** Sends every message that is due, one after another. */
 export async function sendDue(db: Db, now = new Date()): Promise<Record<SendOutcome, number>> {
   const counts: Record<SendOutcome, number> = { sent: 0, retry: 0, failed: 0, skipped: 0 }

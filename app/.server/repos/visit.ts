@@ -1,8 +1,8 @@
 import { noticeColumns } from './notice-columns'
-import { asc, count, eq, sql } from 'drizzle-orm'
+import { asc, count, eq, inArray, sql } from 'drizzle-orm'
 import { alias } from 'drizzle-orm/sqlite-core'
 import type { Db } from '../db'
-import { attachments, customers, detectors, monitoringCompanies, notifications, readings, sites, units, users, visitDetectors, visits } from '../schema'
+import { attachments, customers, detectors, emailOutbox, monitoringCompanies, notifications, readings, sites, units, users, visitDetectors, visits } from '../schema'
 import { perDb } from './statements'
 
 const DETECTORS_CAP = 500
@@ -116,6 +116,26 @@ const statements = perDb((db: Db) => ({
     .orderBy(asc(readings.detectorId), asc(readings.kind), asc(readings.id))
     .limit(READINGS_CAP)
     .prepare(),
+  // The notice and all-clear sent by e-mail for this visit (at most one of each), with how they fared.
+  emails: db
+    .select({
+      id: emailOutbox.id,
+      kind: emailOutbox.kind,
+      to: emailOutbox.toAddress,
+      subject: emailOutbox.subject,
+      status: emailOutbox.status,
+      attempts: emailOutbox.attempts,
+      error: emailOutbox.error,
+      nextAttemptAt: emailOutbox.nextAttemptAt,
+      providerId: emailOutbox.providerId,
+      createdAt: emailOutbox.createdAt,
+      sentAt: emailOutbox.sentAt,
+    })
+    .from(emailOutbox)
+    // Found by their keys (notice:<visit>:<kind>), on the outbox's unique index.
+    .where(inArray(emailOutbox.idempotencyKey, [sql.placeholder('noticeKey'), sql.placeholder('allClearKey')]))
+    .orderBy(asc(emailOutbox.id))
+    .prepare(),
   attachments: db
     .select({
       id: attachments.id,
@@ -139,7 +159,7 @@ const statements = perDb((db: Db) => ({
  * A visit as its page and `/api/visits/:id` show it: the visit (window, times, version), its site,
  * customer and monitoring company (how it wants to be told), the technician, the detectors on it with
  * their tasks and what was recorded for each, the notices given for it with their all-clear, the
- * readings taken at it and its attachments.
+ * e-mails sent for them, the readings taken at it and its attachments.
  */
 export function visitRecord(db: Db, visitId: number, now = new Date()) {
   const s = statements(db)
@@ -160,6 +180,7 @@ export function visitRecord(db: Db, visitId: number, now = new Date()) {
     },
     notifications: { rows: notices, total: s.notificationCount.get(at)!.n },
     readings: s.readings.all(at),
+    emails: s.emails.all({ noticeKey: `notice:${visitId}:notice`, allClearKey: `notice:${visitId}:all-clear` }),
     attachments: s.attachments.all(at),
   }
 }

@@ -4,6 +4,7 @@ import type { VisitTask } from '~/domain/vocabulary'
 import { writeAudit } from '../audit'
 import { writeTx, type Db } from '../db'
 import { rederive } from '../derivation'
+import { enqueue, requeueFailed, type NewMessage } from '../email/send'
 import { listsChanged } from '../list-query'
 import { checkTechnician, checkWindow, checkWorkingDay } from './book'
 import { entryFromRow, eventDetail, eventKind, findingsOf, taskOutcomes } from './outcomes'
@@ -43,7 +44,13 @@ interface ItemRow {
 
 // Work on the visit itself is the technician's (their own visits) or the office's; changing the
 // booking is scheduling.
-const FIELD_INTENTS = new Set<VisitIntent['intent']>(['notify', 'start', 'record', 'complete', 'all-clear'])
+const FIELD_INTENTS = new Set<VisitIntent['intent']>(['notify', 'start', 'record', 'complete', 'all-clear', 'email-notice', 'email-all-clear', 'retry-email'])
+
+/** The outbox key of a visit's e-mail to its monitoring company: each kind goes once per visit. */
+export const visitEmailKey = (visitId: number, kind: 'notice' | 'all-clear') => `notice:${visitId}:${kind}`
+
+/** How a notice or all-clear sent through the outbox names its message on the visit's log. */
+export const messageRef = (outboxId: number) => `e-mail message ${outboxId}`
 
 function loadVisit(db: Db, visitId: number): VisitRow {
   const row = db.$client
@@ -112,6 +119,14 @@ export interface WorkContext {
   /** The office day the work is dated by and the derivation judges against. */
   today: string
   now?: Date
+  /** The rendered e-mail for 'email-notice' and 'email-all-clear' (rendering is async; the transaction is not). */
+  email?: NewMessage
+}
+
+/** What an e-mail intent left in the outbox: the message, and whether this call queued it. */
+export interface IntentResult {
+  outboxId?: number
+  queued?: boolean
 }
 
 /**
@@ -119,9 +134,10 @@ export interface WorkContext {
  * caller read (an older one is refused, never merged), makes the change, bumps the version and writes
  * the audit entry. Throws `VisitRefusal` for anything the caller can fix.
  */
-export function applyVisitIntent(db: Db, actor: Actor, visitId: number, input: VisitIntent, ctx: WorkContext): void {
+export function applyVisitIntent(db: Db, actor: Actor, visitId: number, input: VisitIntent, ctx: WorkContext): IntentResult {
   const now = (ctx.now ?? new Date()).toISOString()
   const q = db.$client
+  let result: IntentResult = {}
   writeTx(db, () => {
     const visit = loadVisit(db, visitId)
     checkAllowed(actor, visit, input.intent)
@@ -130,6 +146,11 @@ export function applyVisitIntent(db: Db, actor: Actor, visitId: number, input: V
     }
     const audit = (before: unknown, after: unknown) => writeAudit(db, { actorId: actor.id, action: `visit.${input.intent}`, entity: 'visit', entityId: visit.id, before, after })
     const bump = (set = '', ...values: unknown[]) => q.prepare(`update visits set ${set ? `${set}, ` : ''}version = version + 1 where id = ?`).run(...values, visit.id)
+    const outboxRow = (kind: 'notice' | 'all-clear') =>
+      q.prepare('select id, status, error, to_address as toAddress from email_outbox where idempotency_key = ?').get(visitEmailKey(visit.id, kind)) as
+        | { id: number; status: string; error: string | null; toAddress: string }
+        | undefined
+    const actorName = () => (q.prepare('select name from users where id = ?').get(actor.id) as { name: string } | undefined)?.name ?? `user ${actor.id}`
 
     switch (input.intent) {
       case 'notify': {
@@ -164,6 +185,17 @@ export function applyVisitIntent(db: Db, actor: Actor, visitId: number, input: V
           throw new VisitRefusal(
             409,
             `Log the notice to ${visit.company ?? 'the monitoring company'} before starting: the system must be placed in test, and site management told, before anyone works on a detector.`,
+          )
+        }
+        // A notice sent through the outbox counts once it has left; until then the company may not know.
+        const latest = q.prepare('select confirmation from notifications where visit_id = ? order by notified_at desc, id desc limit 1').get(visit.id) as { confirmation: string | null }
+        const mail = outboxRow('notice')
+        if (mail && latest.confirmation === messageRef(mail.id) && mail.status !== 'sent') {
+          throw new VisitRefusal(
+            409,
+            mail.status === 'failed'
+              ? `The e-mailed notice to ${visit.company ?? 'the monitoring company'} did not go (${mail.error ?? 'no reason given'}). Send it again, or phone them and log that notice, before starting.`
+              : `The e-mailed notice to ${visit.company ?? 'the monitoring company'} has not gone yet (${mail.status}). Wait until it shows as sent, or phone them and log that notice, before starting.`,
           )
         }
         bump("status = 'in-progress', started_at = ?", now)
@@ -204,6 +236,73 @@ export function applyVisitIntent(db: Db, actor: Actor, visitId: number, input: V
         audit({ clearedAt: latest.clearedAt }, { noticeId: latest.id, clearedAt: at, clearedWith: input.confirmedWith })
         return
       }
+      case 'email-notice': {
+        needStatus(visit, ['planned', 'notified', 'in-progress'], 'notified')
+        if (Date.parse(input.inTestUntil) <= Date.parse(input.inTestFrom)) throw new VisitRefusal(400, 'The in-test window must end after it starts.')
+        const message = emailFor(ctx, 'notice')
+        // Once per visit: a second send (another tab, a double tap) leaves the first message and its log.
+        const earlier = outboxRow('notice')
+        if (earlier) {
+          result = { outboxId: earlier.id, queued: false }
+          return
+        }
+        const { id } = enqueue(db, message)
+        const told = input.siteManagementTold ? input.siteContact || 'site management' : null
+        const noticeId = Number(
+          q
+            .prepare(
+              `insert into notifications (site_id, visit_id, monitoring_company_id, notified_at, notified_by, method, spoke_with, confirmation, in_test_from, in_test_until, site_contact_told)
+               values (?, ?, ?, ?, ?, 'email', ?, ?, ?, ?, ?)`,
+            )
+            .run(visit.siteId, visit.id, visit.companyId, now, actor.id, message.to, messageRef(id), input.inTestFrom, input.inTestUntil, told).lastInsertRowid,
+        )
+        q.prepare("insert into events (site_id, detector_id, occurred_at, kind, detail, user_id) values (?, null, ?, 'notice', ?, ?)").run(
+          visit.siteId,
+          now,
+          `Notice of work e-mailed to ${visit.company ?? 'the monitoring company'} (${message.to}) by ${actorName()}, ${messageRef(id)}; in test ${input.inTestFrom} to ${input.inTestUntil}; call back ${input.callBack}; ${told ? `site management told (${told})` : 'site management not told'}`,
+          actor.id,
+        )
+        if (visit.status === 'planned') bump("status = 'notified'")
+        else bump()
+        audit({ status: visit.status }, { status: visit.status === 'planned' ? 'notified' : visit.status, noticeId, outboxId: id })
+        result = { outboxId: id, queued: true }
+        return
+      }
+      case 'email-all-clear': {
+        needStatus(visit, ['in-progress', 'done'], 'cleared')
+        const message = emailFor(ctx, 'all-clear')
+        const earlier = outboxRow('all-clear')
+        if (earlier) {
+          result = { outboxId: earlier.id, queued: false }
+          return
+        }
+        const latest = q.prepare('select id, cleared_at as clearedAt from notifications where visit_id = ? order by notified_at desc, id desc limit 1').get(visit.id) as
+          | { id: number; clearedAt: string | null }
+          | undefined
+        if (!latest) throw new VisitRefusal(409, 'No notice is logged for this visit, so there is nothing to clear.')
+        if (latest.clearedAt) throw new VisitRefusal(409, 'The all-clear for this visit is already logged.')
+        const { id } = enqueue(db, message)
+        q.prepare('update notifications set cleared_at = ?, cleared_with = ?, cleared_by = ? where id = ?').run(now, `${message.to} (${messageRef(id)})`, actor.id, latest.id)
+        q.prepare("insert into events (site_id, detector_id, occurred_at, kind, detail, user_id) values (?, null, ?, 'notice', ?, ?)").run(
+          visit.siteId,
+          now,
+          `All clear e-mailed to ${visit.company ?? 'the monitoring company'} (${message.to}) by ${actorName()}, ${messageRef(id)}: work finished, system to be taken out of test`,
+          actor.id,
+        )
+        bump()
+        audit({ clearedAt: latest.clearedAt }, { noticeId: latest.id, clearedAt: now, outboxId: id })
+        result = { outboxId: id, queued: true }
+        return
+      }
+      case 'retry-email': {
+        const mail = outboxRow(input.kind)
+        if (!mail) throw new VisitRefusal(404, `No ${input.kind === 'notice' ? 'notice' : 'all-clear'} e-mail was sent for this visit.`)
+        if (!requeueFailed(db, mail.id)) throw new VisitRefusal(409, `That e-mail is ${mail.status}, not failed; only a failed one is sent again.`)
+        bump()
+        audit({ outboxId: mail.id, status: mail.status, error: mail.error }, { outboxId: mail.id, status: 'queued' })
+        result = { outboxId: mail.id, queued: true }
+        return
+      }
       case 'cancel': {
         needStatus(visit, ['planned', 'notified'], 'cancelled')
         bump("status = 'cancelled', cancelled_at = ?, cancel_reason = ?", now, input.reason)
@@ -238,6 +337,12 @@ export function applyVisitIntent(db: Db, actor: Actor, visitId: number, input: V
     }
   })
   listsChanged()
+  return result
+}
+
+function emailFor(ctx: WorkContext, kind: 'notice' | 'all-clear'): NewMessage {
+  if (ctx.email?.kind !== kind) throw new Error(`The ${kind} e-mail must be rendered before its intent is applied`)
+  return ctx.email
 }
 
 /**

@@ -100,21 +100,22 @@ export function NoticeForm({
   )
 }
 
-export function StartButton({ visitId, version, noticeLogged }: { visitId: number; version: number; noticeLogged: boolean }) {
+/** `waiting` says why a logged notice does not count yet (an e-mailed notice not sent). */
+export function StartButton({ visitId, version, noticeLogged, waiting = null }: { visitId: number; version: number; noticeLogged: boolean; waiting?: string | null }) {
   const intent = useVisitIntent(visitId)
   return (
     <div className="space-y-2">
       <button
         type="button"
         className={`${bigButton} w-full`}
-        disabled={!noticeLogged || intent.busy}
+        disabled={!noticeLogged || waiting !== null || intent.busy}
         aria-describedby="start-why"
         onClick={() => intent.send({ intent: 'start', version })}
       >
         {intent.busy ? 'Starting…' : 'Start work'}
       </button>
       <p id="start-why" className="text-sm text-ink-soft">
-        {noticeLogged ? 'The notice is logged: the system is in test.' : 'Start is locked until a notice to the monitoring company is logged.'}
+        {waiting ?? (noticeLogged ? 'The notice is logged: the system is in test.' : 'Start is locked until a notice to the monitoring company is logged.')}
       </p>
       {intent.error && <Alert>{intent.error.message}</Alert>}
     </div>
