@@ -389,6 +389,10 @@ const SENTENCES: Record<string, Sentence> = {
     return [c.actor, ' completed ', ...onRecords(c), ...(tally ? [`: ${tally}`] : [])]
   },
   'visit.all-clear': (c) => [c.actor, ' logged the all-clear for ', ...onRecords(c), ...(text(c.after.clearedWith) ? [`, confirmed with ${c.after.clearedWith}`] : [])],
+  'visit.email-notice': (c) => [c.actor, ' e-mailed the notice of work to the monitoring company for ', ...onRecords(c)],
+  'visit.email-all-clear': (c) => [c.actor, ' e-mailed the all-clear to the monitoring company for ', ...onRecords(c)],
+  'visit.retry-email': (c) => [c.actor, ' sent a failed e-mail to the monitoring company again for ', ...onRecords(c)],
+  'outbox.retry': (c) => [c.actor, ' sent failed e-mail message ', String(c.ids[0] ?? ''), ' again'],
   'visit.cancel': (c) => [c.actor, ' cancelled ', ...onRecords(c), ...(text(c.after.reason) ? [`: ${quoted(String(c.after.reason))}`] : [])],
   'visit.reschedule': (c) => [c.actor, ' moved ', ...c.n.record('visit', c.ids[0]), ...(dayOf(c.before.scheduledOn) && dayOf(c.after.scheduledOn) ? [` from ${dayOf(c.before.scheduledOn)} to ${dayOf(c.after.scheduledOn)}`] : [])],
   'visit.assign': (c) => (numeric(c.after.technicianId) ? [c.actor, ' assigned ', ...onRecords(c), ' to ', c.n.person(numeric(c.after.technicianId))] : [c.actor, ' took the technician off ', ...onRecords(c)]),

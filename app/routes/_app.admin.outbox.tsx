@@ -2,10 +2,11 @@ import { desc, eq } from 'drizzle-orm'
 import { data, Form, Link, useNavigation } from 'react-router'
 import { z } from 'zod'
 import { requireUser } from '~/.server/auth'
-import { getDb } from '~/.server/db'
+import { writeAudit } from '~/.server/audit'
+import { getDb, writeTx } from '~/.server/db'
 import { digestRecipients } from '~/.server/email/digest'
 import { digestMessage, queueDigest } from '~/.server/email/digest-message'
-import { sendMessage } from '~/.server/email/send'
+import { requeueFailed, sendMessage } from '~/.server/email/send'
 import { readFormData } from '~/.server/http'
 import { emailOutbox } from '~/.server/schema'
 import { officeToday } from '~/.server/today'
@@ -31,6 +32,7 @@ export async function loader({ request }: Route.LoaderArgs) {
     .select({
       id: emailOutbox.id,
       kind: emailOutbox.kind,
+      visitId: emailOutbox.visitId,
       to: emailOutbox.toAddress,
       subject: emailOutbox.subject,
       status: emailOutbox.status,
@@ -51,22 +53,40 @@ export async function loader({ request }: Route.LoaderArgs) {
   return { messages, open, recipients, preview: preview ? { userId: who!.userId, subject: preview.subject, html: preview.html, text: preview.text } : null }
 }
 
-const sendNow = z.object({ intent: z.literal('send-digest'), userId: z.coerce.number().int().positive() })
+const outboxAction = z.discriminatedUnion('intent', [
+  z.object({ intent: z.literal('send-digest'), userId: z.coerce.number().int().positive() }),
+  z.object({ intent: z.literal('retry'), id: z.coerce.number().int().positive() }),
+])
+
+const said = (outcome: Awaited<ReturnType<typeof sendMessage>>) =>
+  outcome === 'sent' ? 'sent' : outcome === 'retry' ? 'queued for a retry' : outcome === 'failed' ? 'not sent (failed)' : 'already on its way'
 
 export async function action({ request }: Route.ActionArgs) {
-  await requireUser(request, 'manage:settings')
-  const parsed = sendNow.safeParse(Object.fromEntries(await readFormData(request)))
+  const user = await requireUser(request, 'manage:settings')
+  const parsed = outboxAction.safeParse(Object.fromEntries(await readFormData(request)))
   if (!parsed.success) return data({ ok: false, message: parsed.error.issues[0]?.message ?? 'Check the fields' }, { status: 400 })
   const db = getDb()
+  if (parsed.data.intent === 'retry') {
+    const id = parsed.data.id
+    const requeued = writeTx(db, () => {
+      if (!requeueFailed(db, id)) return false
+      writeAudit(db, { actorId: user.id, action: 'outbox.retry', entity: 'email_outbox', entityId: id, before: { status: 'failed' }, after: { status: 'queued' } })
+      return true
+    })
+    if (!requeued) return data({ ok: false, message: `Message ${id} is not a failed message; only a failed one is sent again.` }, { status: 409 })
+    const outcome = await sendMessage(db, id, { force: true })
+    return { ok: outcome !== 'failed', message: `Message ${id} ${said(outcome)}.`, id }
+  }
   const r = digestRecipients(db).find((x) => x.userId === parsed.data.userId)
   if (!r) return data({ ok: false, message: 'That person does not receive the digest' }, { status: 400 })
   const today = officeToday()
   // This week's key: sending now counts as this week's digest, so the schedule will not send another.
   const { id, created } = await queueDigest(db, r, today)
   const outcome = await sendMessage(db, id, { force: true })
-  const said = outcome === 'sent' ? 'sent' : outcome === 'retry' ? 'queued for a retry' : outcome === 'failed' ? 'not sent (failed)' : 'already on its way'
-  return { ok: outcome !== 'failed', message: `${r.name}'s digest for this week ${created ? '' : '(already in the outbox) '}${said}.`, id }
+  return { ok: outcome !== 'failed', message: `${r.name}'s digest for this week ${created ? '' : '(already in the outbox) '}${said(outcome)}.`, id }
 }
+
+const KIND_WORDS: Record<string, string> = { digest: 'Weekly digest', notice: 'Notice of work', 'all-clear': 'All-clear' }
 
 const TONE: Record<OutboxStatus, string> = {
   queued: 'bg-soon-soft text-soon',
@@ -141,15 +161,34 @@ export default function Outbox({ loaderData, actionData }: Route.ComponentProps)
                   <Link to={`?message=${m.id}`} className="font-medium text-accent underline-offset-2 hover:underline">
                     {m.subject}
                   </Link>
-                  <span className="block text-xs text-ink-faint">
-                    {m.kind} to {m.to} · queued {m.createdAt.slice(0, 16).replace('T', ' ')}
+                  <span className="block text-xs break-words text-ink-faint">
+                    {KIND_WORDS[m.kind] ?? m.kind} to {m.to}
+                    {m.visitId ? (
+                      <>
+                        {' '}
+                        for{' '}
+                        <Link to={`/visits/${m.visitId}`} className="underline underline-offset-2">
+                          visit {m.visitId}
+                        </Link>
+                      </>
+                    ) : null}{' '}
+                    · queued {m.createdAt.slice(0, 16).replace('T', ' ')}
                     {m.sentAt ? ` · sent ${m.sentAt.slice(0, 16).replace('T', ' ')}` : ''}
                     {m.status === 'queued' && m.nextAttemptAt ? ` · next try ${m.nextAttemptAt.slice(0, 16).replace('T', ' ')}` : ''}
                   </span>
                   {m.error && <span className="block text-xs text-late">{m.error}</span>}
                 </span>
-                <span className="text-xs text-ink-soft">
+                <span className="flex items-center gap-2 text-xs text-ink-soft">
                   {m.attempts} {m.attempts === 1 ? 'try' : 'tries'}
+                  {m.status === 'failed' && (
+                    <Form method="post">
+                      <input type="hidden" name="intent" value="retry" />
+                      <input type="hidden" name="id" value={m.id} />
+                      <button className={quietButtonClass} disabled={busy} aria-label={`Send message ${m.id} again`}>
+                        Send again
+                      </button>
+                    </Form>
+                  )}
                 </span>
               </li>
             ))}

@@ -49,6 +49,31 @@ describe('the admin outbox page', () => {
     expect(shown).toContain('Detectors overdue')
   })
 
+  it('sends a failed message again from the list, once, and only a failed one', async () => {
+    const q = data.db.$client
+    const id = Number(
+      q
+        .prepare(
+          `insert into email_outbox (kind, idempotency_key, to_address, subject, html, text, status, attempts, error)
+           values ('notice', 'outbox-retry-test', 'dispatch@northwatch.test', 'Place in test: retry', '<p>Retry</p>', 'Retry', 'failed', 4, '503: provider down (after 4 tries)')`,
+        )
+        .run().lastInsertRowid,
+    )
+    const listed = await (await page('admin')).text()
+    expect(listed).toContain('503: provider down (after 4 tries)')
+    expect(listed).toContain(`Send message ${id} again`)
+    const retry = () =>
+      fetch(`${server.url}/admin/outbox`, {
+        method: 'POST',
+        body: new URLSearchParams({ intent: 'retry', id: String(id) }),
+        headers: { Cookie: cookie.admin, Origin: server.url, 'Content-Type': 'application/x-www-form-urlencoded' },
+      })
+    expect((await retry()).status).toBeLessThan(400)
+    expect(q.prepare('select status, attempts, provider_id as p from email_outbox where id = ?').get(id)).toMatchObject({ status: 'sent', attempts: 5, p: expect.stringMatching(/^fake-/) })
+    expect(q.prepare(`select count(*) from audit_log where action = 'outbox.retry' and entity_id = ?`).pluck().get(String(id))).toBe(1)
+    expect((await retry()).status).toBe(409)
+  })
+
   it('refuses a bad send with a 400 and a message', async () => {
     const body = new URLSearchParams({ intent: 'send-digest', userId: 'nobody' })
     const res = await fetch(`${server.url}/admin/outbox`, { method: 'POST', body, headers: { Cookie: cookie.admin, Origin: server.url, 'Content-Type': 'application/x-www-form-urlencoded' } })
