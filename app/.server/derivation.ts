@@ -25,6 +25,10 @@ export interface ArrangementFields {
   conductorAwg: number
   conductorStranded: boolean | number
   runFeet: number
+  /** The resistor's marked tolerance in percent; null means the usual 5 %. */
+  eolTolerancePct: number | null
+  /** The panel input's alarm threshold in ohms; null means the common-practice default in loop.ts. */
+  alarmThresholdOhms: number | null
 }
 
 /** The loop as recorded on the detector, read at the panel (where the fire alarm contractor measures). */
@@ -37,6 +41,9 @@ export function arrangementOf(d: ArrangementFields): Arrangement {
     supervisoryLabelledIn: d.supervisoryLabelledIn,
     conductor: { awg: d.conductorAwg as Awg, stranded: Boolean(d.conductorStranded), oneWayFeet: d.runFeet },
     measuredAt: 'panel',
+    // Left out when not recorded, so the engine's own defaults (5 %, 100 Ω) apply.
+    ...(d.eolTolerancePct !== null ? { tolerance: d.eolTolerancePct / 100 } : {}),
+    ...(d.alarmThresholdOhms !== null ? { maxLineOhms: d.alarmThresholdOhms } : {}),
   }
 }
 
@@ -50,6 +57,8 @@ export const arrangementColumns = {
   conductorAwg: detectors.conductorAwg,
   conductorStranded: detectors.conductorStranded,
   runFeet: detectors.runFeet,
+  eolTolerancePct: detectors.eolTolerancePct,
+  alarmThresholdOhms: detectors.alarmThresholdOhms,
 }
 
 const recordColumns = {

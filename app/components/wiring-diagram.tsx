@@ -1,5 +1,6 @@
 import { useEffect, useRef, useState } from 'react'
 import type { Labelling, Terminal } from '~/domain/contacts'
+import { correctTerminals } from '~/domain/loop'
 
 export interface WiringDiagramProps {
   shutdownInput: 'break-to-stop' | 'make-to-stop'
@@ -42,6 +43,47 @@ const TITLE = 'text-[15px]'
 const INK = 'var(--color-ink)'
 const HVAC = 'var(--color-accent)'
 const FAULT = 'var(--color-late)'
+const SHOULD = 'var(--color-ok)'
+// Where a wire belongs is drawn over a broad light band, so it never reads as the thin unit-side wiring.
+const HALO = 'var(--color-ok-soft)'
+
+/** One recorded connection that differs from a correct loop: where it is, where it belongs, in words. */
+interface Correction {
+  n: number
+  what: string
+  recorded: string
+  should: string
+}
+
+/** The recorded wiring against a correct supervised loop for this module's labelling. */
+export function wiringCorrections(p: Pick<WiringDiagramProps, 'alarmTerminal' | 'supervisoryTerminal' | 'eolPlacement' | 'supervisoryLabelledIn'>): Correction[] {
+  const correct = correctTerminals(p.supervisoryLabelledIn)
+  const out: Correction[] = []
+  if (p.alarmTerminal !== correct.alarmTerminal) {
+    out.push({ n: out.length + 1, what: 'Alarm conductor', recorded: `on alarm ${p.alarmTerminal}`, should: `on alarm ${correct.alarmTerminal}` })
+  }
+  if (p.eolPlacement === 'across-pair') {
+    out.push({
+      n: out.length + 1,
+      what: 'End-of-line resistor',
+      recorded: 'straight across the loop',
+      should: `in series through supervisory ${correct.supervisoryTerminal}, from supervisory C`,
+    })
+  } else if (p.supervisoryTerminal !== correct.supervisoryTerminal) {
+    out.push({ n: out.length + 1, what: 'Resistor lead', recorded: `on supervisory ${p.supervisoryTerminal}`, should: `on supervisory ${correct.supervisoryTerminal}` })
+  }
+  return out
+}
+
+/** A correction's mark beside a wire: ✗ and its number on the recorded one, ✓ and its number where it belongs. */
+function Mark({ x, y, n, kind }: { x: number; y: number; n: number; kind: 'recorded' | 'should' }) {
+  return (
+    <text x={x} y={y} className={`${LABEL} font-semibold`} fill={kind === 'recorded' ? FAULT : SHOULD}>
+      {kind === 'recorded' ? '✗' : '✓'}
+      {n}
+    </text>
+  )
+}
 
 function Terminals({ x, y, label, side }: { x: number; y: number; label: string; side: 'left' | 'right' }) {
   const text = side === 'left' ? x + 10 : x - 10
@@ -63,14 +105,15 @@ function Terminals({ x, y, label, side }: { x: number; y: number; label: string;
   )
 }
 
-function Resistor({ x1, x2, y, label, fault }: { x1: number; x2: number; y: number; label: string; fault: boolean }) {
+function Resistor({ x1, x2, y, label, fault, should = false, below = false }: { x1: number; x2: number; y: number; label: string; fault: boolean; should?: boolean; below?: boolean }) {
   const mid = (x1 + x2) / 2
   const zig = Array.from({ length: 7 }, (_, i) => `${mid - 18 + i * 6},${y + (i % 2 === 0 ? -6 : 6)}`).join(' ')
-  const stroke = fault ? FAULT : INK
+  const stroke = fault ? FAULT : should ? SHOULD : INK
   return (
     <g>
-      <polyline points={`${x1},${y} ${mid - 24},${y} ${zig} ${mid + 24},${y} ${x2},${y}`} fill="none" stroke={stroke} strokeWidth={1.8} strokeDasharray={fault ? '5 3' : undefined} />
-      <text x={mid} y={y - 12} textAnchor="middle" className={`fill-ink font-mono ${LABEL}`}>
+      {should && <polyline points={`${x1},${y} ${mid - 24},${y} ${zig} ${mid + 24},${y} ${x2},${y}`} fill="none" stroke={HALO} strokeWidth={9} strokeLinejoin="round" />}
+      <polyline points={`${x1},${y} ${mid - 24},${y} ${zig} ${mid + 24},${y} ${x2},${y}`} fill="none" stroke={stroke} strokeWidth={should ? 2.2 : 1.8} strokeDasharray={fault ? '5 3' : undefined} />
+      <text x={mid} y={below ? y + 21 : y - 12} textAnchor="middle" className={`fill-ink font-mono ${LABEL}`}>
         {label}
       </text>
     </g>
@@ -85,9 +128,25 @@ export function WiringDiagram(p: WiringDiagramProps) {
   const alarmY = ALARM_Y + ROW[p.alarmTerminal]
   const supY = SUP_Y + ROW[p.supervisoryTerminal]
   const through = p.eolPlacement === 'through-supervisory'
+  const correct = correctTerminals(p.supervisoryLabelledIn)
+  const corrections = wiringCorrections(p)
+  const fix = (what: string) => corrections.find((c) => c.what === what)
+  const alarmFix = fix('Alarm conductor')
+  const supFix = fix('Resistor lead')
+  const eolFix = fix('End-of-line resistor')
+  const shouldAlarmY = ALARM_Y + ROW[correct.alarmTerminal]
+  const shouldSupY = SUP_Y + ROW[correct.supervisoryTerminal]
   const line = (points: string, color: string, fault = false) => (
     <polyline points={points} fill="none" stroke={fault ? FAULT : color} strokeWidth={1.8} strokeDasharray={fault ? '5 3' : undefined} strokeLinejoin="round" />
   )
+  const shouldLine = (points: string) => (
+    <g>
+      <polyline points={points} fill="none" stroke={HALO} strokeWidth={9} strokeLinejoin="round" />
+      <polyline points={points} fill="none" stroke={SHOULD} strokeWidth={2.2} strokeLinejoin="round" />
+    </g>
+  )
+  // The alarm conductor hops over the + run: the two are not joined.
+  const alarmPath = (y: number) => `M${RIGHT + 5},${y} H${PLUS_X - 6} a6,6 0 0 1 12,0 H${MINUS_X}`
   const dot = (x: number, y: number) => <circle cx={x} cy={y} r={3} fill={INK} />
   const title = `Wiring plan: unit ${p.shutdownInput} input on auxiliary 1 ${auxTerminal}; alarm contact ${p.alarmTerminal} across the loop; ${
     through ? `end-of-line resistor through supervisory ${p.supervisoryTerminal}` : 'end-of-line resistor straight across the loop'
@@ -97,13 +156,16 @@ export function WiringDiagram(p: WiringDiagramProps) {
     p.faults.supervisory && 'supervisory terminal',
     p.faults.eol && 'end-of-line resistor',
   ].filter(Boolean)
+  const fullTitle = corrections.length
+    ? `${title} Differs from a correct loop: ${corrections.map((c) => `${c.what} as recorded ${c.recorded}, as it should be ${c.should}`).join('; ')}.`
+    : title
 
   return (
     // Beside the drawing where a desk has room for both; under it otherwise.
     <figure className="min-w-0 min-[1400px]:grid min-[1400px]:grid-cols-[minmax(0,auto)_minmax(11rem,1fr)] min-[1400px]:items-end min-[1400px]:gap-6">
       <ScrollBox label="Wiring drawing">
-        <svg viewBox={`0 0 ${W} ${H}`} width={W} height={H} role="img" aria-label={title} className="block max-w-none">
-          <title>{title}</title>
+        <svg viewBox={`0 0 ${W} ${H}`} width={W} height={H} role="img" aria-label={fullTitle} className="block max-w-none">
+          <title>{fullTitle}</title>
           {/* Unit controls */}
           <rect x={UNIT.x} y={UNIT.y} width={UNIT.w} height={UNIT.h} rx={6} fill="var(--color-sunken)" stroke="var(--color-line-strong)" />
           <text x={UNIT.x + 10} y={UNIT.y + 22} className={`fill-ink ${TITLE} font-semibold`}>
@@ -139,27 +201,52 @@ export function WiringDiagram(p: WiringDiagramProps) {
           {line(`${PANEL_X - 5},${PANEL_PLUS_Y} ${RIGHT + 5},${ALARM_Y}`, INK)}
           {line(`${PLUS_X},${ALARM_Y} ${PLUS_X},${through ? SUP_Y : ACROSS_Y}`, INK)}
           {dot(PLUS_X, PANEL_PLUS_Y)}
-          {/* The alarm conductor hops over the + run: the two are not joined. */}
           <path
-            d={`M${RIGHT + 5},${alarmY} H${PLUS_X - 6} a6,6 0 0 1 12,0 H${MINUS_X}`}
+            d={alarmPath(alarmY)}
             fill="none"
-            stroke={p.faults.alarm ? FAULT : INK}
+            stroke={p.faults.alarm || alarmFix ? FAULT : INK}
             strokeWidth={1.8}
-            strokeDasharray={p.faults.alarm ? '5 3' : undefined}
+            strokeDasharray={p.faults.alarm || alarmFix ? '5 3' : undefined}
           />
-          {line(`${MINUS_X},${alarmY} ${MINUS_X},${PANEL_MINUS_Y} ${PANEL_X - 5},${PANEL_MINUS_Y}`, INK)}
+          {line(`${MINUS_X},${alarmFix ? Math.min(alarmY, shouldAlarmY) : alarmY} ${MINUS_X},${PANEL_MINUS_Y} ${PANEL_X - 5},${PANEL_MINUS_Y}`, INK)}
+          {alarmFix && (
+            <>
+              <path d={alarmPath(shouldAlarmY)} fill="none" stroke={HALO} strokeWidth={9} />
+              <path d={alarmPath(shouldAlarmY)} fill="none" stroke={SHOULD} strokeWidth={2.2} />
+              {dot(MINUS_X, Math.max(alarmY, shouldAlarmY))}
+              <Mark x={RIGHT + 12} y={alarmY - 5} n={alarmFix.n} kind="recorded" />
+              <Mark x={RIGHT + 12} y={shouldAlarmY - 5} n={alarmFix.n} kind="should" />
+            </>
+          )}
           {through ? (
             <>
               {line(`${PLUS_X},${SUP_Y} ${RIGHT + 5},${SUP_Y}`, INK)}
-              {line(`${RIGHT + 5},${supY} ${RIGHT + 20},${supY}`, INK, p.faults.supervisory)}
-              <Resistor x1={RIGHT + 20} x2={MINUS_X} y={supY} label={kohm(p.eolOhms)} fault={p.faults.eol} />
+              {line(`${RIGHT + 5},${supY} ${RIGHT + 20},${supY}`, INK, p.faults.supervisory || Boolean(supFix))}
+              <Resistor x1={RIGHT + 20} x2={MINUS_X} y={supY} label={kohm(p.eolOhms)} fault={p.faults.eol} below={Boolean(supFix) && shouldSupY < supY} />
               {dot(MINUS_X, supY)}
+              {supFix && (
+                <>
+                  {shouldLine(`${RIGHT + 5},${shouldSupY} ${RIGHT + 20},${shouldSupY} ${RIGHT + 20},${supY}`)}
+                  <Mark x={RIGHT + 6} y={supY + (shouldSupY < supY ? 18 : -5)} n={supFix.n} kind="recorded" />
+                  <Mark x={RIGHT + 6} y={shouldSupY + (shouldSupY < supY ? -5 : 18)} n={supFix.n} kind="should" />
+                </>
+              )}
             </>
           ) : (
             <>
-              <Resistor x1={PLUS_X} x2={MINUS_X} y={ACROSS_Y} label={kohm(p.eolOhms)} fault={p.faults.eol} />
+              <Resistor x1={PLUS_X} x2={MINUS_X} y={ACROSS_Y} label={kohm(p.eolOhms)} fault={p.faults.eol || Boolean(eolFix)} />
               {dot(PLUS_X, ACROSS_Y)}
               {dot(MINUS_X, ACROSS_Y)}
+              {eolFix && (
+                <>
+                  <Mark x={PLUS_X + 8} y={ACROSS_Y + 19} n={eolFix.n} kind="recorded" />
+                  {shouldLine(`${PLUS_X},${ACROSS_Y} ${PLUS_X},${SUP_Y} ${RIGHT + 5},${SUP_Y}`)}
+                  {shouldLine(`${RIGHT + 5},${shouldSupY} ${RIGHT + 20},${shouldSupY}`)}
+                  <Resistor x1={RIGHT + 20} x2={MINUS_X} y={shouldSupY} label={kohm(p.eolOhms)} fault={false} should below />
+                  {dot(MINUS_X, shouldSupY)}
+                  <Mark x={RIGHT + 8} y={shouldSupY - 5} n={eolFix.n} kind="should" />
+                </>
+              )}
             </>
           )}
 
@@ -193,9 +280,31 @@ export function WiringDiagram(p: WiringDiagramProps) {
             <Swatch color={INK} /> Fire alarm loop (the fire alarm contractor&apos;s)
           </span>
           <span className="inline-flex items-center gap-1.5">
-            <Swatch color={FAULT} dashed /> Recorded connection that is wrong
+            <Swatch color={FAULT} dashed /> ✗ As recorded, and wrong
           </span>
+          {corrections.length > 0 && (
+            <span className="inline-flex items-center gap-1.5">
+              <Swatch color={SHOULD} halo /> ✓ As it should be
+            </span>
+          )}
         </span>
+        {corrections.length > 0 && (
+          <div className="text-sm text-ink">
+            <span className="font-semibold">Where each wire should go</span>
+            <ol className="mt-1 space-y-1">
+              {corrections.map((c) => (
+                <li key={c.n}>
+                  <span className="font-semibold">{c.n}.</span> {c.what}: as recorded {c.recorded} <span className="text-late">(✗{c.n})</span>; as it
+                  should be {c.should} <span className="text-ok">(✓{c.n})</span>.
+                </li>
+              ))}
+            </ol>
+            <span className="mt-1 block text-xs text-ink-soft">
+              These are fire alarm loop connections: the fire alarm contractor moves them. HVAC staff do not open the panel or cut alarm
+              wiring. If the readings show the loop is already right, correct the record instead.
+            </span>
+          </div>
+        )}
         <span className="block">* Supervisory marks shown as labelled on the module ({p.supervisoryLabelledIn}).</span>
         {faulty.length > 0 && <span className="block font-medium text-late">Drawn as wrong: {faulty.join(', ')}.</span>}
       </figcaption>
@@ -203,10 +312,11 @@ export function WiringDiagram(p: WiringDiagramProps) {
   )
 }
 
-function Swatch({ color, dashed = false }: { color: string; dashed?: boolean }) {
+function Swatch({ color, dashed = false, halo = false }: { color: string; dashed?: boolean; halo?: boolean }) {
   return (
-    <svg aria-hidden="true" width="22" height="8" className="shrink-0">
-      <line x1="1" y1="4" x2="21" y2="4" stroke={color} strokeWidth={2} strokeDasharray={dashed ? '5 3' : undefined} />
+    <svg aria-hidden="true" width="22" height="10" className="shrink-0">
+      {halo && <line x1="1" y1="5" x2="21" y2="5" stroke={HALO} strokeWidth={9} />}
+      <line x1="1" y1="5" x2="21" y2="5" stroke={color} strokeWidth={2} strokeDasharray={dashed ? '5 3' : undefined} />
     </svg>
   )
 }

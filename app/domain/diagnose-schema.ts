@@ -22,9 +22,21 @@ export const diagnoseRequest = z.object({
       oneWayFeet: z.number().nonnegative().max(20_000),
     }),
     measuredAt: z.enum(['panel', 'device']),
+    /** The resistor's tolerance as a fraction (0.05 = 5 %); the engine assumes 5 % without it. */
     tolerance: z.number().positive().max(0.5).optional(),
+    /** The panel input's alarm threshold, the most wire a closed contact may carry (default 100 Ω: common practice). */
     maxLineOhms: z.number().positive().max(10_000).optional(),
-  }),
+    /** The same two as a detector records them: tolerance in percent, threshold in ohms. */
+    eolTolerancePct: z.number().positive().max(50).optional(),
+    alarmThresholdOhms: z.number().positive().max(10_000).optional(),
+  })
+    .refine((a) => a.tolerance === undefined || a.eolTolerancePct === undefined, { message: 'Give the tolerance once: tolerance (a fraction) or eolTolerancePct (percent).', path: ['eolTolerancePct'] })
+    .refine((a) => a.maxLineOhms === undefined || a.alarmThresholdOhms === undefined, { message: 'Give the threshold once: maxLineOhms or alarmThresholdOhms.', path: ['alarmThresholdOhms'] })
+    .transform(({ eolTolerancePct, alarmThresholdOhms, ...a }) => ({
+      ...a,
+      ...(eolTolerancePct !== undefined ? { tolerance: eolTolerancePct / 100 } : {}),
+      ...(alarmThresholdOhms !== undefined ? { maxLineOhms: alarmThresholdOhms } : {}),
+    })),
   readings: z
     .object({ normal: reading, alarm: reading, trouble: reading, unpowered: reading })
     .partial()

@@ -75,6 +75,25 @@ describe('POST /api/diagnose', () => {
     expect(log).not.toMatch(/^\s+at /m)
   })
 
+  it('takes the tolerance and alarm threshold as a detector records them, optional and given once', async () => {
+    const { tolerance: _t, maxLineOhms: _m, ...bare } = arrangement
+    const readings = { normal: 15420, alarm: 6.4, trouble: 'open', unpowered: 'open' }
+    const asFraction = await (await post({ arrangement, readings })).json()
+    const asRecorded = await (await post({ arrangement: { ...bare, eolTolerancePct: 10, alarmThresholdOhms: 100 }, readings })).json()
+    expect(asRecorded).toEqual(asFraction)
+    // Without them the engine's defaults apply: a 5 % part (common practice) makes the window narrower.
+    const defaults = await (await post({ arrangement: bare, readings })).json()
+    expect(defaults.expected.normal.max).toBeLessThan(asFraction.expected.normal.max)
+    // A 16.2 kΩ reading is past a 5 % part of 15 kΩ but inside a 10 % one.
+    expect((await (await post({ arrangement: bare, readings: { ...readings, normal: 16_200 } })).json()).verdict).toBe('fail')
+    expect((await (await post({ arrangement: { ...bare, eolTolerancePct: 10 }, readings: { ...readings, normal: 16_200 } })).json()).verdict).toBe('pass')
+    // A threshold of 20 Ω: 25 Ω in alarm is no longer a short the panel accepts.
+    expect((await (await post({ arrangement: { ...bare, alarmThresholdOhms: 20 }, readings: { ...readings, alarm: 25 } })).json()).verdict).toBe('fail')
+    const twice = await post({ arrangement: { ...arrangement, eolTolerancePct: 10 }, readings })
+    expect(twice.status).toBe(400)
+    expect((await twice.json()).issues.map((i: { path: string }) => i.path)).toContain('arrangement.eolTolerancePct')
+  })
+
   it('refuses bad input with the issues', async () => {
     const bad = await post({ arrangement: { ...arrangement, eolOhms: -5, conductor: { awg: 20, stranded: true, oneWayFeet: 10 } }, readings: { normal: 'shorted' } })
     expect(bad.status).toBe(400)

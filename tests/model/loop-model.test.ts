@@ -130,4 +130,46 @@ describe('loop diagnosis against an independent circuit model', () => {
     expect(d.findings.map((f) => f.code)).toContain('eol-wrong-value')
     expect(d.findings[0].message).toContain('5.1 kΩ')
   })
+
+  it('judges the resistor by the tolerance recorded on the detector: a 10 % part 8 % high passes, a 5 % one fails', () => {
+    // 10 % and 5 % carbon-film parts are both in use for EOL resistors (common practice); 4.7 k + 8 % = 5,076 Ω.
+    const l: Loop = { eolOhms: 4700, gauge: 18, stranded: true, oneWayFeet: 200, supLabel: 'de-energized', measuredAt: 'panel', faults: ['eol-wrong-value'], wrongEolOhms: 5076 }
+    const readings = read(l) as Readings
+    expect(diagnose({ ...arrangementOf(l), tolerance: 0.1 }, readings).verdict).toBe('pass')
+    const fivePct = diagnose(arrangementOf(l), readings)
+    expect(fivePct.verdict).toBe('fail')
+    expect(fivePct.findings.map((f) => f.code)).toContain('eol-wrong-value')
+  })
+
+  it('judges the wire by the alarm threshold recorded for the panel input', () => {
+    // 9,000 ft of 18 AWG stranded: 2 × 9,000 × 7.95 / 1,000 = 143.1 Ω (NEC Chapter 9 Table 8), past the
+    // ~100 Ω common default (common practice) but inside a panel input that accepts 200 Ω.
+    const l: Loop = { eolOhms: 15_000, gauge: 18, stranded: true, oneWayFeet: 9_000, supLabel: 'de-energized', measuredAt: 'panel', faults: [] }
+    const readings = read(l) as Readings
+    const within = diagnose({ ...arrangementOf(l), maxLineOhms: 200 }, readings)
+    expect(within.verdict).toBe('pass')
+    expect(within.findings).toEqual([])
+    expect(diagnose(arrangementOf(l), readings).findings.map((f) => f.code)).toContain('line-resistance-high')
+    // A bad splice of 80 Ω more takes it past the 200 Ω threshold: named as such.
+    const spliced = read({ ...l, faults: ['series-resistance'], spliceOhms: 80 }) as Readings
+    expect(diagnose({ ...arrangementOf(l), maxLineOhms: 200 }, spliced).findings.map((f) => f.code)).toContain('line-resistance-high')
+  })
+
+  it('property: any single fault stays named whatever tolerance (1–10 %) and threshold (50–300 Ω) the detector records', () => {
+    fc.assert(
+      fc.property(
+        fc.constantFrom(4700, 15_000),
+        fc.constantFrom(...MODEL_FAULTS.filter((f) => !['eol-wrong-value', 'series-resistance', 'leakage'].includes(f))),
+        fc.constantFrom(0.01, 0.02, 0.05, 0.1),
+        fc.integer({ min: 50, max: 300 }),
+        (eolOhms, fault, tolerance, maxLineOhms) => {
+          const l: Loop = { eolOhms, gauge: 18, stranded: true, oneWayFeet: 250, supLabel: 'de-energized', measuredAt: 'panel', faults: [fault] }
+          const d = diagnose({ ...arrangementOf(l), tolerance, maxLineOhms }, read(l) as Readings)
+          expect(d.verdict).toBe('fail')
+          expect(d.findings.map((f) => f.code)).toContain(NAMED[fault])
+        },
+      ),
+      { numRuns: 200 },
+    )
+  })
 })
