@@ -71,7 +71,7 @@ export async function startServer(databasePath: string, extraEnv: Record<string,
     pid: child.pid as number,
     stop: async () => {
       await new Promise<void>((resolve) => {
-        if (child.exitCode !== null) return resolve()
+        if (child.exitCode !== null || child.signalCode !== null) return resolve()
         child.once('exit', () => resolve())
         child.kill('SIGTERM')
       })
