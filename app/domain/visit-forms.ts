@@ -52,8 +52,17 @@ export const detectorEntry = z.object({
   velocityFpm: z.number().min(0).max(20_000).optional(),
   sensitivityPctFt: z.number().min(0).max(20).optional(),
   delaySecondsFound: z.number().int().min(0).max(3_600).optional(),
+  /** The remote test station tripped the detector (asked at each functional test where one is fitted). */
   testStationWorked: z.boolean().optional(),
+  /** The station reset the detector afterwards. */
+  testStationReset: z.boolean().optional(),
   cleaned: z.boolean().optional(),
+  /** A module with two sensing heads: each tested and cleaned on its own. */
+  heads: z
+    .array(z.object({ head: z.number().int().min(1).max(2), tripped: z.boolean().optional(), cleaned: z.boolean().optional() }))
+    .max(2)
+    .refine((hs) => new Set(hs.map((h) => h.head)).size === hs.length, 'Enter each head once')
+    .optional(),
   headsFitted: z.number().int().min(0).max(4).optional(),
   notes: text(2_000).optional(),
   result: z.enum(['pass', 'fail', 'not-tested']),

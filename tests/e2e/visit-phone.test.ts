@@ -23,9 +23,11 @@ describe('a visit on a phone', () => {
         `select d.id, d.tag, d.site_id as siteId, s.name as siteName, m.notify_method as method
          from detectors d join sites s on s.id = d.site_id join monitoring_companies m on m.id = s.monitoring_company_id
          where d.loop_verdict is not 'fail' and d.alarm_terminal = 'NO' and d.eol_placement = 'through-supervisory'
+           and d.heads_fitted = 1 and d.test_station = 'none'
            and not exists (select 1 from visit_detectors vd join visits v on v.id = vd.visit_id
                            where vd.detector_id = d.id and v.status in ('planned', 'notified', 'in-progress'))
            and d.site_id = (select d2.site_id from detectors d2 where d2.loop_verdict is not 'fail' and d2.alarm_terminal = 'NO'
+                            and d2.eol_placement = 'through-supervisory' and d2.heads_fitted = 1 and d2.test_station = 'none'
                             group by d2.site_id having count(*) >= 2 order by d2.site_id limit 1)
          order by d.id limit 2`,
       )

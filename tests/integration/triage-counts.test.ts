@@ -106,7 +106,8 @@ describe('triage counts after the queue’s work', () => {
         entries: [
           { detectorId: passA, result: 'pass' },
           { detectorId: passB, result: 'pass' },
-          { detectorId: failing, result: 'fail', reason: 'No signal at the panel', functional: { signalAtPanel: 'nothing', unitShutDown: false, resetOk: true } },
+          // The station and each head answered, as a functional test asks where they are fitted (ignored where not).
+          { detectorId: failing, result: 'fail', reason: 'No signal at the panel', functional: { signalAtPanel: 'nothing', unitShutDown: false, resetOk: true }, testStationWorked: true, testStationReset: true, heads: [{ head: 1, tripped: true }, { head: 2, tripped: true }] },
         ],
       },
       'tech',

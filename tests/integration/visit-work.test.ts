@@ -20,12 +20,14 @@ describe('visit work: booking, notice, recording and completing', () => {
     server = await startServer(data.path)
     for (const who of ['lead', 'office', 'tech', 'manager']) cookie[who] = (await sessionCookieFor(data.db, userIdByEmail(data.db, `${who}@ductkeeper.test`))).cookie
     techId = userIdByEmail(data.db, 'tech@ductkeeper.test')
-    // A site with a monitoring company and at least six detectors on no open visit at all.
+    // A site with a monitoring company and at least six one-head detectors with no remote test station
+    // (those ask for more at a functional test: tests/integration/field-checks.test.ts) on no open visit at all.
     site = q()
       .prepare(
         `select s.id, s.name, s.region, m.name as company from sites s join monitoring_companies m on m.id = s.monitoring_company_id
          where (select count(*) from detectors d where d.site_id = s.id and not exists (
-           select 1 from visit_detectors vd join visits v on v.id = vd.visit_id where vd.detector_id = d.id and v.status in ('planned','notified','in-progress'))) >= 6
+           select 1 from visit_detectors vd join visits v on v.id = vd.visit_id where vd.detector_id = d.id and v.status in ('planned','notified','in-progress'))
+           and d.heads_fitted = 1 and d.test_station = 'none') >= 6
          order by s.id limit 1`,
       )
       .get() as typeof site
@@ -34,6 +36,7 @@ describe('visit work: booking, notice, recording and completing', () => {
         .prepare(
           `select d.id from detectors d where d.site_id = ? and not exists (
              select 1 from visit_detectors vd join visits v on v.id = vd.visit_id where vd.detector_id = d.id and v.status in ('planned','notified','in-progress'))
+             and d.heads_fitted = 1 and d.test_station = 'none'
            order by d.id limit 6`,
         )
         .all(site.id) as Array<{ id: number }>

@@ -46,4 +46,17 @@ describe('task outcomes of a detector entry', () => {
     expect(entryFromRow(row)).toEqual(saved)
     expect(entryFromRow({ ...row, result: 'pending' })).toBeNull()
   })
+
+  it('fails the station check on a station that did not trip or reset, and a functional test on a head that did not trip', () => {
+    const f = { signalAtPanel: 'alarm' as const, unitShutDown: true, resetOk: true }
+    expect(outcomes(['functional', 'test-station'], { result: 'fail', reason: 'Station not wired', functional: f, testStationWorked: true, testStationReset: false })).toEqual({ functional: 'pass', 'test-station': 'fail' })
+    expect(outcomes(['functional'], { result: 'fail', reason: 'Head 2 dead', functional: f, heads: [{ head: 1, tripped: true }, { head: 2, tripped: false }] })).toEqual({ functional: 'fail' })
+  })
+
+  it('on a two-head module counts the cleaning only when both heads were cleaned', () => {
+    const halfCleaned = entry({ cleaned: true, heads: [{ head: 1, cleaned: true }, { head: 2, cleaned: false }] })
+    expect(taskOutcomes(['visual', 'cleaning'], halfCleaned, 2).map((o) => o.task)).toEqual(['visual'])
+    const both = entry({ heads: [{ head: 1, cleaned: true }, { head: 2, cleaned: true }] })
+    expect(taskOutcomes(['visual', 'cleaning'], both, 2).map((o) => o.task)).toEqual(['visual', 'cleaning'])
+  })
 })

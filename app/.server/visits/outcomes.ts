@@ -1,3 +1,4 @@
+import { cleanedAll } from '~/domain/field-checks'
 import type { DetectorEntry } from '~/domain/visit-forms'
 import type { VisitTask } from '~/domain/vocabulary'
 
@@ -37,17 +38,19 @@ export interface TaskOutcome {
  * first test covered, so a failed detector always carries a failed task. A cleaning not done, and
  * every task of a detector not tested, write nothing.
  */
-export function taskOutcomes(tasks: readonly VisitTask[], entry: DetectorEntry): TaskOutcome[] {
+export function taskOutcomes(tasks: readonly VisitTask[], entry: DetectorEntry, headsFitted = 1): TaskOutcome[] {
   if (entry.result === 'not-tested') return []
   const f = entry.functional
-  const worked = tasks.filter((t) => !(t === 'cleaning' && entry.cleaned === false))
+  // On a two-head module the cleaning counts only when every head was cleaned.
+  const worked = tasks.filter((t) => !(t === 'cleaning' && cleanedAll(entry, headsFitted) === false))
   // A failed detector whose only task was a cleaning not done still needs its failure on record.
   const done = worked.length || entry.result === 'pass' ? worked : tasks.slice(0, 1)
   const failing = new Set<VisitTask>()
   if (entry.result === 'fail') {
     if (f && (f.signalAtPanel !== 'alarm' || !f.unitShutDown || !f.resetOk || f.detectorTripped === false)) failing.add('functional')
+    if (entry.heads?.some((h) => h.tripped === false)) failing.add('functional')
     if (f && !f.unitShutDown) failing.add('shutdown')
-    if (entry.testStationWorked === false) failing.add('test-station')
+    if (entry.testStationWorked === false || entry.testStationReset === false) failing.add('test-station')
     if (!done.some((t) => failing.has(t))) {
       const blamed = TEST_TASKS.find((t) => done.includes(t)) ?? done.find((t) => t !== 'cleaning') ?? done[0]
       if (blamed) failing.add(blamed)

@@ -8,6 +8,7 @@ import { enqueue, requeueFailed, type NewMessage } from '../email/send'
 import { listsChanged } from '../list-query'
 import { checkTechnician, checkWindow, checkWorkingDay } from './book'
 import { entryFromRow, eventDetail, eventKind, findingsOf, taskOutcomes } from './outcomes'
+import { entryRefusals, fieldChecks, tasksWithStation } from '~/domain/field-checks'
 import { VisitRefusal } from './refusal'
 
 export interface Actor {
@@ -35,6 +36,8 @@ interface VisitRow {
 interface ItemRow {
   detectorId: number
   tag: string
+  testStation: 'none' | 'key' | 'magnet'
+  headsFitted: number
   tasks: string
   result: string
   resultReason: string | null
@@ -69,7 +72,8 @@ function loadVisit(db: Db, visitId: number): VisitRow {
 function items(db: Db, visitId: number): ItemRow[] {
   return db.$client
     .prepare(
-      `select vd.detector_id as detectorId, d.tag, vd.tasks, vd.result, vd.result_reason as resultReason, vd.notes, vd.findings
+      `select vd.detector_id as detectorId, d.tag, d.test_station as testStation, d.heads_fitted as headsFitted, vd.tasks, vd.result,
+              vd.result_reason as resultReason, vd.notes, vd.findings
        from visit_detectors vd join detectors d on d.id = vd.detector_id where vd.visit_id = ? order by d.tag, d.id`,
     )
     .all(visitId) as ItemRow[]
@@ -99,6 +103,36 @@ function entriesOnVisit(list: ItemRow[], entries: DetectorEntry[]) {
     if (seen.has(e.detectorId)) throw new VisitRefusal(400, `Detector ${e.detectorId} is entered twice; send one entry per detector.`)
     seen.add(e.detectorId)
   }
+}
+
+/**
+ * Refuses entries that leave out a field check (the remote test station at a functional test, each head
+ * of a two-head module) or are marked as passed over a fault those checks found.
+ */
+function checkFieldWork(list: ItemRow[], entries: DetectorEntry[]) {
+  const byId = new Map(list.map((i) => [i.detectorId, i]))
+  const problems: string[] = []
+  const ids: number[] = []
+  for (const e of entries) {
+    const item = byId.get(e.detectorId)
+    if (!item) continue
+    const checks = fieldChecks({
+      testStation: item.testStation,
+      headsFitted: e.headsFitted ?? item.headsFitted,
+      notTested: e.result === 'not-tested',
+      functionalRecorded: e.functional !== undefined,
+      cleaned: e.cleaned,
+      testStationWorked: e.testStationWorked,
+      testStationReset: e.testStationReset,
+      heads: e.heads,
+    })
+    const refused = entryRefusals(checks, e.result)
+    if (refused.length) {
+      ids.push(e.detectorId)
+      problems.push(`${item.tag}: ${refused.join(' ')}`)
+    }
+  }
+  if (problems.length) throw new VisitRefusal(400, problems.join(' '), { detectorIds: ids })
 }
 
 const resultOf = (entry: DetectorEntry) => (entry.result === 'not-tested' ? 'skipped' : entry.result)
@@ -206,6 +240,7 @@ export function applyVisitIntent(db: Db, actor: Actor, visitId: number, input: V
         needStatus(visit, ['in-progress'], 'recorded (start it first)')
         const list = items(db, visit.id)
         entriesOnVisit(list, input.entries)
+        checkFieldWork(list, input.entries)
         const save = q.prepare('update visit_detectors set result = ?, result_reason = ?, findings = ?, notes = ? where visit_id = ? and detector_id = ?')
         for (const e of input.entries) save.run(resultOf(e), e.reason || null, JSON.stringify(findingsOf(e)), e.notes || null, visit.id, e.detectorId)
         bump()
@@ -354,6 +389,7 @@ function completeVisit(db: Db, actor: Actor, visit: VisitRow, given: DetectorEnt
   const q = db.$client
   const list = items(db, visit.id)
   entriesOnVisit(list, given)
+  checkFieldWork(list, given)
   const byId = new Map(given.map((e) => [e.detectorId, e]))
   const entries = list.map((item) => ({ item, entry: byId.get(item.detectorId) ?? entryFromRow(item) }))
   const missing = entries.filter((x) => x.entry === null).map((x) => x.item)
@@ -370,10 +406,11 @@ function completeVisit(db: Db, actor: Actor, visit: VisitRow, given: DetectorEnt
   const insEvent = q.prepare('insert into events (site_id, detector_id, occurred_at, kind, detail, user_id) values (?, ?, ?, ?, ?, ?)')
   const summary: Array<{ detectorId: number; result: string; tasks: Record<string, string> }> = []
   for (const { item, entry: e } of entries as Array<{ item: ItemRow; entry: DetectorEntry }>) {
-    const tasks = item.tasks.split(',').filter(Boolean) as VisitTask[]
+    // A fitted station operated with the functional test writes its own result.
+    const tasks = tasksWithStation(item.tasks.split(',').filter(Boolean) as VisitTask[], item.testStation, e.testStationWorked !== undefined)
     // A detector not tested keeps no readings or results from this visit; its reason says why.
     if (e.result !== 'not-tested') for (const r of readingRows(e)) insReading.run(e.detectorId, visit.id, now, r.kind, r.value, r.open ? 1 : 0, actor.id)
-    const outcomes = taskOutcomes(tasks, e)
+    const outcomes = taskOutcomes(tasks, e, e.headsFitted ?? item.headsFitted)
     for (const o of outcomes) insResult.run(e.detectorId, visit.id, o.task, today, o.outcome, o.value, actor.id)
     saveItem.run(resultOf(e), e.reason || null, JSON.stringify(findingsOf(e)), e.notes || null, now, visit.id, e.detectorId)
     insEvent.run(visit.siteId, e.detectorId, now, eventKind(outcomes), eventDetail(visit.id, outcomes, e), actor.id)

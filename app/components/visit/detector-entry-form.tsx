@@ -5,6 +5,7 @@ import { useState, useSyncExternalStore } from 'react'
 import { useRevalidator } from 'react-router'
 import { checkPressure } from '~/domain/airflow'
 import { delayLimitCaution } from '~/domain/delay-audit'
+import { fieldChecks } from '~/domain/field-checks'
 import { DETECTOR_STATES, type DetectorState } from '~/domain/contacts'
 import { diagnoseInterlock, type InterlockStyle } from '~/domain/interlock'
 import type { Arrangement } from '~/domain/loop'
@@ -162,6 +163,22 @@ function DetectorCard({ visitId, version, d, delayPolicySeconds }: { visitId: nu
   const pressureCheck = pressure === undefined ? null : checkPressure({ measuredInWc: pressure, listedMinInWc: d.pressure.min, listedMaxInWc: d.pressure.max })
   const velocity = num(draft.velocity)
   const delay = num(draft.delay)
+  const headCount = num(draft.heads) ?? d.headsFitted
+  const setHead = (head: number, patch: { tripped?: boolean; cleaned?: boolean }) =>
+    update({ perHead: { ...draft.perHead, [head]: { ...draft.perHead?.[head], ...patch } } })
+  // The same checks the server makes on saving; shown once the functional test is under way.
+  const checks =
+    draft.signalAtPanel === undefined && draft.unitShutDown === undefined
+      ? []
+      : fieldChecks({
+          testStation: d.testStation,
+          headsFitted: headCount,
+          notTested: draft.result === 'not-tested',
+          functionalRecorded: true,
+          testStationWorked: draft.testStationWorked,
+          testStationReset: draft.testStationReset,
+          heads: Object.entries(draft.perHead ?? {}).map(([head, h]) => ({ head: Number(head), ...h })),
+        }).filter((c) => !c.field.endsWith('cleaned'))
   const delayCaution = delayLimitCaution({ policySeconds: delayPolicySeconds, delaySeconds: delay ?? d.delaySeconds })
 
   async function onSave() {
@@ -207,6 +224,27 @@ function DetectorCard({ visitId, version, d, delayPolicySeconds }: { visitId: nu
         />
         <YesNo label="Unit shut down" value={draft.unitShutDown} onChange={(v) => update({ unitShutDown: v })} />
         <YesNo label="Reset OK" value={draft.resetOk} onChange={(v) => update({ resetOk: v })} />
+        {headCount >= 2 &&
+          Array.from({ length: headCount }, (_, n) => (
+            <YesNo key={n} label={`Head ${n + 1} tested on its own put the module into alarm`} value={draft.perHead?.[n + 1]?.tripped} onChange={(v) => setHead(n + 1, { tripped: v })} />
+          ))}
+        {d.testStation !== 'none' && (
+          <>
+            <YesNo label={`Remote test station (${d.testStation}) tripped the detector`} value={draft.testStationWorked} onChange={(v) => update({ testStationWorked: v })} />
+            {draft.testStationWorked === true && <YesNo label="The station reset it" value={draft.testStationReset} onChange={(v) => update({ testStationReset: v })} />}
+          </>
+        )}
+        {checks.map((c) =>
+          c.missing ? (
+            <p key={c.field} className="text-sm text-ink-soft">
+              {c.message}
+            </p>
+          ) : (
+            <Alert key={c.field} tone="warn">
+              {c.message}
+            </Alert>
+          ),
+        )}
       </section>
 
       <section aria-labelledby={`loop-${d.id}`} className="space-y-3">
@@ -309,7 +347,7 @@ function DetectorCard({ visitId, version, d, delayPolicySeconds }: { visitId: nu
 
       <section aria-labelledby={`more-${d.id}`} className="space-y-3">
         <h4 id={`more-${d.id}`} className="text-lg font-semibold">
-          Delay, test station, cleaning
+          Delay, cleaning, heads
         </h4>
         <label className={fieldLabel}>
           Delay as found (seconds)
@@ -321,10 +359,13 @@ function DetectorCard({ visitId, version, d, delayPolicySeconds }: { visitId: nu
           </span>
         </label>
         {delayCaution && <Alert tone="warn">{delayCaution}</Alert>}
-        {d.testStation !== 'none' && (
-          <YesNo label={`Remote test station (${d.testStation}) worked`} value={draft.testStationWorked} onChange={(v) => update({ testStationWorked: v })} />
+        {headCount >= 2 ? (
+          Array.from({ length: headCount }, (_, n) => (
+            <YesNo key={n} label={`Head ${n + 1} cleaned`} value={draft.perHead?.[n + 1]?.cleaned} onChange={(v) => setHead(n + 1, { cleaned: v })} />
+          ))
+        ) : (
+          <YesNo label="Cleaned" value={draft.cleaned} onChange={(v) => update({ cleaned: v })} />
         )}
-        <YesNo label="Cleaned" value={draft.cleaned} onChange={(v) => update({ cleaned: v })} />
         <label className={fieldLabel}>
           Sampling heads fitted
           <input className={bigInput} inputMode="numeric" value={draft.heads ?? ''} placeholder={String(d.headsFitted)} onChange={(e) => update({ heads: e.target.value })} />

@@ -17,7 +17,10 @@ export interface Draft {
   velocity?: string
   delay?: string
   testStationWorked?: boolean
+  testStationReset?: boolean
   cleaned?: boolean
+  /** Per sensing head on a two-head module, by head number. */
+  perHead?: Record<string, { tripped?: boolean; cleaned?: boolean }>
   heads?: string
   notes?: string
   result?: 'pass' | 'fail' | 'not-tested'
@@ -78,6 +81,12 @@ const defined = <T extends object>(o: T) => Object.fromEntries(Object.entries(o)
 export function toEntry(detectorId: number, d: Draft): { entry: DetectorEntry } | { error: string } {
   const loop = loopReadings(d)
   const volts = defined({ normal: num(d.inputNormal), alarm: num(d.inputAlarm) })
+  const heads = Object.entries(d.perHead ?? {})
+    .map(([head, h]) => defined({ head: Number(head), tripped: h.tripped, cleaned: h.cleaned }))
+    .filter((h) => h.tripped !== undefined || h.cleaned !== undefined)
+    .sort((a, b) => a.head - b.head)
+  // On a two-head module "cleaned" is every head cleaned; one head left is a cleaning not done.
+  const headsCleaned = heads.some((h) => h.cleaned !== undefined) ? (heads.some((h) => h.cleaned === false) ? false : heads.every((h) => h.cleaned === true) ? true : undefined) : undefined
   const candidate = defined({
     detectorId,
     functional:
@@ -90,7 +99,9 @@ export function toEntry(detectorId: number, d: Draft): { entry: DetectorEntry } 
     velocityFpm: num(d.velocity),
     delaySecondsFound: num(d.delay),
     testStationWorked: d.testStationWorked,
-    cleaned: d.cleaned,
+    testStationReset: d.testStationWorked === true ? d.testStationReset : undefined,
+    cleaned: headsCleaned ?? d.cleaned,
+    heads: heads.length ? heads : undefined,
     headsFitted: num(d.heads),
     notes: d.notes?.trim() || undefined,
     result: d.result,
