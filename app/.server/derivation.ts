@@ -6,11 +6,13 @@ import { and, asc, between, eq, gt, gte, inArray, lt, lte, sql, type SQL } from 
 import type { AnySQLiteColumn } from 'drizzle-orm/sqlite-core'
 import type { Awg } from '~/domain/conductors'
 import { addDays, daysBetween } from '~/domain/dates'
-import { deriveDetector, OVERDUE_STEP_DAYS, OVERDUE_STEPS, STORED_FACT_KEYS, TROUBLE_WINDOW_DAYS, type DetectorRecord, type History, type SitePolicy, type StoredFacts, type TaskResult } from '~/domain/derive'
+import { deriveDetector, STORED_FACT_KEYS, TROUBLE_WINDOW_DAYS, type DetectorRecord, type History, type SitePolicy, type StoredFacts, type TaskResult } from '~/domain/derive'
 import type { Arrangement, Readings } from '~/domain/loop'
 import type { Db } from './db'
 import { appState, detectorModels, detectors, events, readings, sites, taskResults } from './schema'
-import { DUE_SOON_DAYS } from '~/domain/schedule'
+import { DUE_SOON_DAYS, overdueAfter } from '~/domain/schedule'
+import { overduePoints } from '~/domain/triage'
+import { TASKS, type Task } from '~/domain/vocabulary'
 
 const LOOP_STATES = { 'loop-normal': 'normal', 'loop-alarm': 'alarm', 'loop-trouble': 'trouble', 'loop-unpowered': 'unpowered' } as const
 type LoopKind = keyof typeof LOOP_STATES
@@ -71,6 +73,7 @@ const recordColumns = {
   cleaningIntervalDays: detectors.cleaningIntervalDays,
   ...arrangementColumns,
   delayPolicySeconds: sites.delayPolicySeconds,
+  keepsNuisanceRecords: sites.keepsNuisanceRecords,
   // What is stored now, to compare with the derivation.
   lastVisualOn: detectors.lastVisualOn,
   lastFunctionalOn: detectors.lastFunctionalOn,
@@ -146,7 +149,7 @@ export function derivationInputs(db: Db, sel: Selection, today: string): Derivat
 
   const byId = new Map<number, DerivationInput>()
   for (const d of rows) {
-    const { id, delayPolicySeconds, ...rest } = d
+    const { id, delayPolicySeconds, keepsNuisanceRecords, ...rest } = d
     byId.set(id, {
       id,
       record: {
@@ -158,7 +161,7 @@ export function derivationInputs(db: Db, sel: Selection, today: string): Derivat
         cleaningIntervalDays: rest.cleaningIntervalDays,
         arrangement: arrangementOf(rest),
       },
-      policy: { delayPolicySeconds },
+      policy: { delayPolicySeconds, nuisanceRecordsKept: Boolean(keepsNuisanceRecords) },
       history: { results: [], loopReadings: {}, troubles: [] },
       stored: rest,
     })
@@ -249,9 +252,10 @@ export function rederiveFleet(db: Db, today: string): { checked: number; changed
 
 /**
  * The detectors whose stored facts can change when the office day moves from `from` to `to`, found on
- * indexes rather than by reading the fleet: the earliest due date crossing the due-soon or overdue
- * boundary, an overdue detector reaching its next month of lateness (its risk points grow), and a
- * trouble leaving the 30-day window. Any other fact changes only with a write, which re-derives then.
+ * indexes rather than by reading the fleet: the earliest due date reaching the due-soon window or its
+ * own day; among detectors already due or overdue, a task leaving its window or reaching its next
+ * step of lateness (its risk points grow); and a trouble leaving the 30-day window. Any other fact
+ * changes only with a write, which re-derives then.
  */
 export function dayTurnCandidates(db: Db, from: string, to: string): number[] {
   const ids = new Set<number>()
@@ -263,14 +267,11 @@ export function dayTurnCandidates(db: Db, from: string, to: string): number[] {
 export function dayTurnQueries(db: Db, from: string, to: string): Array<() => number[]> {
   const nextDue = detectors.nextDueOn
   const ranges: SQL[] = [
-    // Turning overdue: due on a day in [from, to).
-    and(gte(nextDue, from), lt(nextDue, to))!,
+    // Falling due (or, with no window, overdue the day after): due on a day in [from, to].
+    and(gte(nextDue, from), lte(nextDue, to))!,
     // Turning due soon: the planning window's far edge passed the due day.
     and(gt(nextDue, addDays(from, DUE_SOON_DAYS)), lte(nextDue, addDays(to, DUE_SOON_DAYS)))!,
   ]
-  for (let k = 1; k <= OVERDUE_STEPS; k++) {
-    ranges.push(and(gt(nextDue, addDays(from, -OVERDUE_STEP_DAYS * k)), lte(nextDue, addDays(to, -OVERDUE_STEP_DAYS * k)))!)
-  }
   // Each range on its own: SQLite's OR-of-ranges plan cost 100 ms at stress scale, the parts a few ms.
   const inRange = ranges.map((range) => () => db.select({ id: detectors.id }).from(detectors).where(range).all().map((r) => r.id))
   const ageing = () =>
@@ -286,7 +287,39 @@ export function dayTurnQueries(db: Db, from: string, to: string): Array<() => nu
     )
     .all()
     .flatMap((r) => (r.id === null ? [] : [r.id]))
-  return [...inRange, ageing]
+  // The lateness check runs JavaScript date arithmetic per row: in id slices, so no one query holds
+  // the event loop for long (a stress-scale fleet has tens of thousands overdue).
+  const late: Array<() => number[]> = []
+  const range = detectorIdRange(db)
+  if (range) {
+    for (let at = range.min; at <= range.max; at += LATE_SLICE) {
+      const ids = { fromId: at, toId: at + LATE_SLICE - 1 }
+      late.push(() => lateStepMoves(db, 'due', ids, from, to), () => lateStepMoves(db, 'overdue', ids, from, to))
+    }
+  }
+  return [...inRange, ...late, ageing]
+}
+
+/**
+ * Among detectors already due or overdue (one status at a time, a seek on the due index), those where
+ * some task's overdue points differ between `from` and `to`: it left its window, or its lateness
+ * reached its next step. Judged with the engine's own window and points, so it misses none.
+ */
+const LATE_SLICE = 5_000
+
+function lateStepMoves(db: Db, status: 'due' | 'overdue', ids: { fromId: number; toId: number }, from: string, to: string): number[] {
+  const rows = db
+    .select({ id: detectors.id, visual: detectors.nextVisualOn, functional: detectors.nextFunctionalOn, sensitivity: detectors.nextSensitivityOn, cleaning: detectors.nextCleaningOn })
+    .from(detectors)
+    .where(and(eq(detectors.dueStatus, status), between(detectors.id, ids.fromId, ids.toId)))
+    .all()
+  const moves = (task: Task, dueOn: string | null) => {
+    // Not yet due on `to`: no points either day (a text comparison spares the date arithmetic).
+    if (dueOn === null || dueOn >= to) return false
+    const end = overdueAfter(task, dueOn)
+    return overduePoints(task, daysBetween(end, from)) !== overduePoints(task, daysBetween(end, to))
+  }
+  return rows.filter((r) => TASKS.some((t) => moves(t, r[t]))).map((r) => r.id)
 }
 
 export interface TurnStats {

@@ -14,6 +14,8 @@ export type Tone = keyof typeof TONES
 const LABELS: Record<string, { tone: Tone; label: string }> = {
   ok: { tone: 'ok', label: 'Up to date' },
   'due-soon': { tone: 'soon', label: 'Due soon' },
+  // Past its nominal date, still inside the window the standard allows: the words tell it from "due soon".
+  due: { tone: 'soon', label: 'Due now' },
   overdue: { tone: 'late', label: 'Overdue' },
   normal: { tone: 'ok', label: 'Normal' },
   trouble: { tone: 'trouble', label: 'Trouble' },

@@ -1,7 +1,7 @@
 import fc from 'fast-check'
 import { describe, expect, it } from 'vitest'
 import { decodeReasons, deriveDetector, encodeReasons, recentTroubles, workFacts, type DetectorRecord, type TaskResult } from './derive'
-import type { Arrangement } from './loop'
+import type { Arrangement, Readings } from './loop'
 
 // A correctly wired tamper-circuit loop: resistor through the supervisory contact, alarm on NO
 // (the arrangement the trade describes; common practice). 18 AWG solid, 100 ft each way.
@@ -25,10 +25,15 @@ const record = (o: Partial<DetectorRecord> = {}): DetectorRecord => ({
   arrangement: goodLoop,
   ...o,
 })
-const policy = { delayPolicySeconds: 0 }
+const policy = { delayPolicySeconds: 0, nuisanceRecordsKept: true }
 const r = (task: TaskResult['task'], doneOn: string, outcome: TaskResult['outcome'] = 'pass'): TaskResult => ({ task, doneOn, outcome })
-const derive = (results: TaskResult[], today: string, o: Partial<DetectorRecord> = {}, troubles: string[] = []) =>
-  deriveDetector(record(o), policy, { results, loopReadings: {}, troubles }, today)
+const derive = (results: TaskResult[], today: string, o: Partial<DetectorRecord> = {}, troubles: string[] = [], loopReadings: Readings = {}) =>
+  deriveDetector(record(o), policy, { results, loopReadings, troubles }, today)
+
+// Readings of the good loop above, at the panel: 4,700 Ω plus 200 ft of 18 AWG solid at 7.77 Ω per
+// 1,000 ft (NEC Chapter 9 Table 8) = 4,701.6 Ω in normal; the alarm contact's short plus the same
+// 1.6 Ω; open in trouble and powered down, which is what proves supervision.
+const proven: Readings = { normal: 4_701.6, alarm: 1.6, trouble: 'open', unpowered: 'open' }
 
 describe('workFacts: the record follows its history', () => {
   it('takes the latest result of each task, whatever order the history comes in', () => {
@@ -74,12 +79,69 @@ describe('deriveDetector', () => {
     expect(derive([r('functional', '2026-01-10'), r('visual', '2026-01-10'), r('cleaning', '2026-01-10'), r('sensitivity', '2025-06-01')], '2026-06-20').stored.dueStatus).toBe('due-soon')
   })
 
-  it('scores an overdue detector with the overdue reason, its days counted from the earliest task', () => {
-    // Visual due 2026-07-10; on 2026-09-08 it is 60 days late: 10 points + 2 per whole month (product weights).
-    const d = derive([r('functional', '2026-01-10'), r('visual', '2026-01-10'), r('cleaning', '2026-01-10'), r('sensitivity', '2025-06-01')], '2026-09-08')
+  // Hand-worked: visual last done 2026-01-10 → nominal 2026-07-10; semiannual allows up to 8 months
+  // between inspections (NFPA 72 3.3 frequency definitions, 2016 and later; from memory), so the
+  // window runs to 2026-09-10. On 2026-09-08 it is due, not overdue; on 2026-11-09 it is 60 days past
+  // the window: 8 points for a visual check + 2 steps of 30 days × 2 = 12 (product weights).
+  it('a task past its nominal date is due inside the window, overdue after it, and the reason names it', () => {
+    const history = [r('functional', '2026-01-10'), r('visual', '2026-01-10'), r('cleaning', '2026-01-10'), r('sensitivity', '2025-06-01')]
+    const due = derive(history, '2026-09-08', {}, [], proven)
+    expect(due.stored.dueStatus).toBe('due')
+    expect(due.stored.riskReasons).toBe('')
+    expect(derive(history, '2026-09-10', {}, [], proven).stored.dueStatus).toBe('due')
+    expect(derive(history, '2026-09-11', {}, [], proven).stored.dueStatus).toBe('overdue')
+    const late = derive(history, '2026-11-09', {}, [], proven)
+    expect(late.stored.dueStatus).toBe('overdue')
+    expect(decodeReasons(late.stored.riskReasons)).toEqual(['overdue'])
+    expect(late.stored.riskScore).toBe(12)
+    expect(late.reasons[0].text).toBe('Visual inspection overdue by 60 days')
+  })
+
+  // Hand-worked: visual done 2026-01-10 (nominal 2026-07-10, window to 2026-09-10); kitchen cleaning
+  // done 2026-05-01, every 90 days (common practice) → 2026-07-30, no window. On 2026-08-15 the
+  // visual check is still inside its window but the cleaning is 16 days overdue: the detector is
+  // overdue though its earliest task is not, and the reason names the cleaning: 6 points.
+  it('the detector takes the worst status of its tasks, not the earliest task\'s', () => {
+    const d = derive([r('functional', '2026-01-10'), r('visual', '2026-01-10'), r('cleaning', '2026-05-01'), r('sensitivity', '2025-06-01')], '2026-08-15', { environment: 'kitchen' }, [], proven)
+    expect(d.stored.nextDueOn).toBe('2026-07-10')
     expect(d.stored.dueStatus).toBe('overdue')
-    expect(decodeReasons(d.stored.riskReasons)).toEqual(['overdue'])
-    expect(d.stored.riskScore).toBe(14)
+    expect(d.reasons).toEqual([{ code: 'overdue', points: 6, text: 'Cleaning overdue by 16 days' }])
+  })
+
+  it('ignores results dated before the detector was installed', () => {
+    // Installed 2026-03-01; a functional test on 2026-02-20 belongs to something else: the test is
+    // still owed from installation (due 2027-03-01), and its fail does not stand as the last result.
+    const d = derive([r('functional', '2026-02-20', 'fail'), r('visual', '2026-03-01')], '2026-04-01', { installedOn: '2026-03-01' }, [], proven)
+    expect(d.stored.lastFunctionalOn).toBeNull()
+    expect(d.stored.lastResult).toBeNull()
+    expect(d.stored.nextFunctionalOn).toBe('2027-03-01')
+    expect(d.stored.lastVisualOn).toBe('2026-03-01') // the installation day itself counts
+  })
+
+  it('the 5-year sensitivity interval only where the site keeps nuisance-alarm records', () => {
+    // Worked example (NFPA 72 14.4.5.3.1–.2, read, citing the 2010 edition): 2011, 2013, 2015 → 2020
+    // with records kept; without them every alternate year applies → 2017.
+    const history = [r('sensitivity', '2011-03-01'), r('sensitivity', '2013-03-01'), r('sensitivity', '2015-03-01')]
+    const kept = deriveDetector(record(), { delayPolicySeconds: 0, nuisanceRecordsKept: true }, { results: history, loopReadings: proven, troubles: [] }, '2016-01-01')
+    const notKept = deriveDetector(record(), { delayPolicySeconds: 0, nuisanceRecordsKept: false }, { results: history, loopReadings: proven, troubles: [] }, '2016-01-01')
+    expect(kept.stored.nextSensitivityOn).toBe('2020-03-01')
+    expect(notKept.stored.nextSensitivityOn).toBe('2017-03-01')
+    expect(notKept.schedule.find((t) => t.task === 'sensitivity')!.basis).toMatch(/no nuisance-alarm records/)
+  })
+
+  it('a miswire that failed the test and the readings counts once', () => {
+    // Alarm contact recorded on NC, and the functional test on it failed: one fault behind both.
+    const d = derive([r('functional', '2026-01-10', 'fail'), r('visual', '2026-01-10'), r('cleaning', '2026-01-10'), r('sensitivity', '2025-06-01')], '2026-02-01', { arrangement: { ...goodLoop, alarmTerminal: 'NC' } })
+    expect(decodeReasons(d.stored.riskReasons)).toEqual(['failed-diagnosis', 'failed-test'])
+    expect(d.stored.riskScore).toBe(25)
+  })
+
+  it('a loop with no reading in trouble or powered down has unproven supervision', () => {
+    const noProof = { normal: proven.normal, alarm: proven.alarm }
+    const d = derive([r('functional', '2026-01-10'), r('visual', '2026-01-10'), r('cleaning', '2026-01-10'), r('sensitivity', '2025-06-01')], '2026-02-01', {}, [], noProof)
+    expect(d.stored.loopVerdict).toBe('incomplete')
+    expect(d.reasons).toEqual([{ code: 'supervision-unproven', points: 8, text: expect.stringMatching(/never shown to report trouble/) }])
+    expect(derive([r('functional', '2026-01-10'), r('visual', '2026-01-10'), r('cleaning', '2026-01-10'), r('sensitivity', '2025-06-01')], '2026-02-01', {}, [], proven).stored.riskReasons).toBe('')
   })
 
   it('flags a recorded miswire from the record alone, with no readings taken', () => {
@@ -107,7 +169,7 @@ describe('deriveDetector', () => {
 
   it('audits the reporting delay against the site policy', () => {
     expect(derive([], '2026-01-01', { delaySeconds: null }).stored.delayAgreement).toBe('unknown')
-    expect(deriveDetector(record({ delaySeconds: 180 }), { delayPolicySeconds: 0 }, { results: [], loopReadings: {}, troubles: [] }, '2026-01-01').stored.delayAgreement).toBe('disagree')
+    expect(deriveDetector(record({ delaySeconds: 180 }), { delayPolicySeconds: 0, nuisanceRecordsKept: true }, { results: [], loopReadings: {}, troubles: [] }, '2026-01-01').stored.delayAgreement).toBe('disagree')
   })
 
   it('stores reason codes sorted and fenced by commas so one code filters with LIKE', () => {

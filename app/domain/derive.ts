@@ -2,10 +2,10 @@
 // work dates, due dates, due status, loop verdict, delay agreement, risk and its reasons) is worked
 // out here from the record, its site's policy, its history and the day. The seed, the daily refresh,
 // the detector page, Triage, every write and the database check all call this function.
-import { addDays, daysBetween, type IsoDate } from './dates'
+import { addDays, type IsoDate } from './dates'
 import { auditDelay, type DelayAuditResult } from './delay-audit'
 import { diagnose, type Arrangement, type Diagnosis, type Readings } from './loop'
-import { dueTasks, type TaskDue } from './schedule'
+import { dueTasks, summarizeTasks, type TaskDue } from './schedule'
 import { triage, type TriageReason } from './triage'
 import type {
   DelayAgreement,
@@ -36,8 +36,8 @@ export interface DetectorRecord {
 export interface SitePolicy {
   /** Reporting delay agreed with the monitoring company, in seconds. */
   delayPolicySeconds: number
-  /** Nuisance-alarm records kept: a condition of the 5-year sensitivity interval. */
-  nuisanceRecordsKept?: boolean
+  /** The site keeps nuisance-alarm records (`sites.keeps_nuisance_records`): a condition of the 5-year sensitivity interval. */
+  nuisanceRecordsKept: boolean
 }
 
 export interface TaskResult {
@@ -94,10 +94,14 @@ export interface Derivation {
 
 // The window for "repeated troubles": the last 30 days, today included (the product's own call).
 export const TROUBLE_WINDOW_DAYS = 30
-export { OVERDUE_STEP_DAYS, OVERDUE_STEPS } from './triage'
 
-/** The latest result of each task, and the streak and outcome the schedule and risk depend on. */
-export function workFacts(results: readonly TaskResult[]): WorkFacts {
+/**
+ * The latest result of each task, and the streak and outcome the schedule and risk depend on. A
+ * result dated before the detector was installed belongs to some other device (a typo, a swapped
+ * tag): it counts for nothing.
+ */
+export function workFacts(all: readonly TaskResult[], installedOn?: IsoDate): WorkFacts {
+  const results = installedOn ? all.filter((r) => r.doneOn >= installedOn) : all
   const latest = (task: Task) => {
     let on: IsoDate | null = null
     for (const r of results) if (r.task === task && (on === null || r.doneOn > on)) on = r.doneOn
@@ -154,7 +158,7 @@ export const decodeReasons = (stored: string) => stored.split(',').filter(Boolea
  * the office's day. Pure: the same inputs always give the same facts.
  */
 export function deriveDetector(record: DetectorRecord, policy: SitePolicy, history: History, today: IsoDate): Derivation {
-  const work = workFacts(history.results)
+  const work = workFacts(history.results, record.installedOn)
   const schedule = dueTasks(
     {
       installedOn: record.installedOn,
@@ -166,16 +170,17 @@ export function deriveDetector(record: DetectorRecord, policy: SitePolicy, histo
     today,
   )
   const dueOf = (task: Task) => schedule.find((t) => t.task === task)!.dueOn
-  const first = schedule[0]
+  const due = summarizeTasks(schedule)
   const loop = diagnose(record.arrangement, history.loopReadings)
   const delay = auditDelay({ delaySeconds: record.delaySeconds, policySeconds: policy.delayPolicySeconds })
   const troubles30d = recentTroubles(history.troubles, today)
   const { score, reasons } = triage({
     state: record.state,
-    dueStatus: first.status,
-    daysOverdue: Math.max(0, daysBetween(first.dueOn, today)),
+    overdue: schedule.filter((t) => t.status === 'overdue').map((t) => ({ task: t.task, days: t.daysOverdue })),
     lastResult: work.lastResult,
     diagnosisFailed: loop.verdict === 'fail',
+    // Supervision is proven only by a reading taken with the loop opened at the detector.
+    supervisionUnproven: history.loopReadings.trouble === undefined && history.loopReadings.unpowered === undefined,
     troubles30d,
     environment: record.environment,
     housing: record.housing,
@@ -189,8 +194,8 @@ export function deriveDetector(record: DetectorRecord, policy: SitePolicy, histo
       nextFunctionalOn: dueOf('functional'),
       nextSensitivityOn: dueOf('sensitivity'),
       nextCleaningOn: dueOf('cleaning'),
-      nextDueOn: first.dueOn,
-      dueStatus: first.status,
+      nextDueOn: due.nextDueOn,
+      dueStatus: due.dueStatus,
       loopVerdict: loop.verdict,
       loopFindings: findingCodes.join(','),
       delayAgreement: delay.agreement,

@@ -1,3 +1,4 @@
+import fc from 'fast-check'
 import { describe, expect, it } from 'vitest'
 import {
   CLEANING_INTERVAL_DAYS,
@@ -56,6 +57,15 @@ describe('nextSensitivityDue: the worked example', () => {
     expect(nextSensitivityDue({ ...tested, nuisanceRecordsKept: true }).dueOn).toBe('2020-05-11')
   })
 
+  it('without word of the records, the longer interval is not given, and the basis says which condition is missing', () => {
+    const tested = { ...base, lastSensitivityOn: '2015-05-11', sensitivityStreak: 3 }
+    const { nuisanceRecordsKept: _, ...unknown } = tested
+    expect(nextSensitivityDue(unknown).dueOn).toBe('2017-05-11')
+    expect(nextSensitivityDue({ ...tested, nuisanceRecordsKept: false }).basis).toMatch(/no nuisance-alarm records/)
+    // Two in range in a row are not enough, records or not: 2011 and 2013 → 2015 (the worked example).
+    expect(nextSensitivityDue({ ...tested, sensitivityStreak: 2 }).basis).toMatch(/2 of the 3 tests in range/)
+  })
+
   it('never tested: due 1 year after installation, clamped on 29 February', () => {
     expect(nextSensitivityDue({ ...base, installedOn: '2024-02-29' }).dueOn).toBe('2025-02-28')
   })
@@ -108,18 +118,65 @@ describe('dueTasks: intervals', () => {
 })
 
 describe('due status', () => {
-  it(`due soon within ${DUE_SOON_DAYS} days (common practice), overdue the day after the due date`, () => {
+  it(`due soon within ${DUE_SOON_DAYS} days (common practice); with no window, due on the day and overdue the day after`, () => {
     expect(DUE_SOON_DAYS).toBe(30)
     expect(statusFor('2026-04-10', '2026-03-10')).toBe('ok') // 31 days left
     expect(statusFor('2026-04-09', '2026-03-10')).toBe('due-soon') // 30 days left
-    expect(statusFor('2026-03-10', '2026-03-10')).toBe('due-soon') // due today
+    expect(statusFor('2026-03-11', '2026-03-10')).toBe('due-soon') // due tomorrow
+    expect(statusFor('2026-03-10', '2026-03-10')).toBe('due') // due today
     expect(statusFor('2026-03-09', '2026-03-10')).toBe('overdue')
+    expect(statusFor('2026-03-09', '2026-03-10', 'cleaning')).toBe('overdue')
+    expect(statusFor('2026-03-09', '2026-03-10', 'sensitivity')).toBe('overdue')
   })
 
-  it('daysOver counts days past due, negative while days are left', () => {
-    const input = { ...base, lastVisualOn: '2025-09-01' } // visual due 2026-03-01
-    expect(taskOf(input, 'visual', '2026-03-10')).toMatchObject({ status: 'overdue', daysOver: 9 })
-    expect(taskOf(input, 'visual', '2026-02-20')).toMatchObject({ status: 'due-soon', daysOver: -9 })
+  // Hand-worked from the frequency definitions (NFPA 72 3.3, 2016 and later; from memory): annual is
+  // 9 to 15 months apart, so a functional test last done 2025-01-20 is nominally due 2026-01-20 and
+  // still on time through 2026-04-20; semiannual is 4 to 8 months, so a visual check last done
+  // 2025-07-05 is nominally due 2026-01-05 and on time through 2026-03-05.
+  it('due inside the window the standard allows, overdue after it', () => {
+    const f = { ...base, lastFunctionalOn: '2025-01-20' }
+    expect(taskOf(f, 'functional', '2026-01-19')).toMatchObject({ status: 'due-soon', overdueAfter: '2026-04-20' })
+    expect(taskOf(f, 'functional', '2026-01-20')).toMatchObject({ status: 'due', daysOver: 0, daysOverdue: 0 })
+    expect(taskOf(f, 'functional', '2026-04-20')).toMatchObject({ status: 'due', daysOver: 90, daysOverdue: 0 })
+    expect(taskOf(f, 'functional', '2026-04-21')).toMatchObject({ status: 'overdue', daysOver: 91, daysOverdue: 1 })
+    const v = { ...base, lastVisualOn: '2025-07-05' }
+    expect(taskOf(v, 'visual', '2026-03-05')).toMatchObject({ status: 'due', overdueAfter: '2026-03-05' })
+    expect(taskOf(v, 'visual', '2026-03-06')).toMatchObject({ status: 'overdue', daysOverdue: 1 })
+    expect(taskOf(v, 'visual', '2026-03-06').windowBasis).toMatch(/4 to 8 months.*from memory/)
+    expect(taskOf(f, 'functional', '2026-03-06').windowBasis).toMatch(/9 to 15 months.*from memory/)
+    // No window for the sensitivity test or the cleaning interval.
+    expect(taskOf({ ...base, installedOn: '2025-03-01' }, 'sensitivity', '2026-03-02')).toMatchObject({ dueOn: '2026-03-01', status: 'overdue', daysOverdue: 1 })
+    expect(taskOf(base, 'cleaning', '2026-03-10').windowBasis).toMatch(/common practice/)
+  })
+
+  // An independent month count (year × 12 + month, day clamped to the month's length) against the
+  // engine's window: the last on-time day for an annual task is the nominal date plus 3 months.
+  const lastDay = (y: number, m: number) => new Date(Date.UTC(y, m, 0)).getUTCDate() // m is 1-based
+  const plusMonths = (iso: string, n: number) => {
+    const [y, m, d] = iso.split('-').map(Number)
+    const k = y * 12 + (m - 1) + n
+    const [yy, mm] = [Math.floor(k / 12), (k % 12) + 1]
+    return `${yy}-${String(mm).padStart(2, '0')}-${String(Math.min(d, lastDay(yy, mm))).padStart(2, '0')}`
+  }
+  it('the status never goes back as the days pass, and matches an independent month count', () => {
+    const day = fc.integer({ min: 0, max: 4000 }).map((n) => new Date(Date.UTC(2015, 0, 1) + n * 86_400_000).toISOString().slice(0, 10))
+    const rank = { ok: 0, 'due-soon': 1, due: 2, overdue: 3 }
+    fc.assert(
+      fc.property(day, fc.integer({ min: 0, max: 900 }), fc.integer({ min: 0, max: 400 }), (last, a, b) => {
+        const input = { ...base, installedOn: '2014-01-01', lastFunctionalOn: last, lastVisualOn: last }
+        const t1 = new Date(Date.parse(last) + a * 86_400_000).toISOString().slice(0, 10)
+        const t2 = new Date(Date.parse(t1) + b * 86_400_000).toISOString().slice(0, 10)
+        for (const [task, nominal, window] of [['functional', 12, 3], ['visual', 6, 2]] as const) {
+          const s1 = taskOf(input, task, t1)
+          const s2 = taskOf(input, task, t2)
+          expect(rank[s2.status]).toBeGreaterThanOrEqual(rank[s1.status])
+          const dueOn = plusMonths(last, nominal)
+          const end = plusMonths(dueOn, window)
+          expect(s1.dueOn).toBe(dueOn)
+          expect(s1.status).toBe(t1 > end ? 'overdue' : t1 >= dueOn ? 'due' : s1.status === 'ok' ? 'ok' : 'due-soon')
+        }
+      }),
+    )
   })
 
   it('dueTasks lists all four tasks, earliest first', () => {
@@ -130,7 +187,7 @@ describe('due status', () => {
 })
 
 describe('summarizeDue', () => {
-  it('picks the earliest task', () => {
+  it('the earliest nominal date, and the worst status of any task', () => {
     const input: ScheduleInput = {
       ...base,
       installedOn: '2020-01-01',
@@ -143,6 +200,10 @@ describe('summarizeDue', () => {
     }
     expect(summarizeDue(input, '2026-03-10')).toEqual({ nextDueOn: '2026-04-05', dueStatus: 'due-soon' })
     expect(summarizeDue({ ...input, lastCleanedOn: '2026-03-01' }, '2026-03-10')).toEqual({ nextDueOn: '2026-05-30', dueStatus: 'ok' })
-    expect(summarizeDue({ ...input, lastVisualOn: '2025-08-01' }, '2026-03-10')).toEqual({ nextDueOn: '2026-02-01', dueStatus: 'overdue' })
+    // Visual nominally 2026-02-01, inside its window to 2026-04-01: due, not overdue.
+    expect(summarizeDue({ ...input, lastVisualOn: '2025-08-01' }, '2026-03-10')).toEqual({ nextDueOn: '2026-02-01', dueStatus: 'due' })
+    expect(summarizeDue({ ...input, lastVisualOn: '2025-07-01' }, '2026-03-10')).toEqual({ nextDueOn: '2026-01-01', dueStatus: 'overdue' })
+    // The cleaning (no window) overdue while the earlier visual check is still inside its window.
+    expect(summarizeDue({ ...input, lastVisualOn: '2025-08-01', lastCleanedOn: '2025-11-05' }, '2026-03-10')).toEqual({ nextDueOn: '2026-02-01', dueStatus: 'overdue' })
   })
 })

@@ -1,13 +1,13 @@
 import fc from 'fast-check'
 import { describe, expect, it } from 'vitest'
-import { triage, type TriageInput } from './triage'
+import { OVERDUE_BASE, overduePoints, triage, type TriageInput } from './triage'
 
 const healthy: TriageInput = {
   state: 'normal',
-  dueStatus: 'ok',
-  daysOverdue: -40,
+  overdue: [],
   lastResult: 'pass',
   diagnosisFailed: false,
+  supervisionUnproven: false,
   troubles30d: 0,
   environment: 'clean',
   housing: 'standard',
@@ -19,7 +19,7 @@ const codes = (input: Partial<TriageInput>) => triage({ ...healthy, ...input }).
 describe('triage: each reason', () => {
   it('a detector with nothing wrong scores 0 with no reasons', () => {
     expect(triage(healthy)).toEqual({ score: 0, reasons: [] })
-    expect(triage({ ...healthy, lastResult: null, dueStatus: 'due-soon', troubles30d: 1 })).toEqual({ score: 0, reasons: [] })
+    expect(triage({ ...healthy, lastResult: null, troubles30d: 1 })).toEqual({ score: 0, reasons: [] })
   })
 
   it('live state at the panel', () => {
@@ -30,20 +30,62 @@ describe('triage: each reason', () => {
     expect(triage({ ...healthy, state: 'supervisory' }).reasons[0].text).toBe('Showing supervisory now')
   })
 
-  it('overdue: 10 points plus 2 a month, at most 30, only when the status is overdue', () => {
-    expect(codes({ dueStatus: 'overdue', daysOverdue: 1 })).toEqual([['overdue', 10]])
-    expect(codes({ dueStatus: 'overdue', daysOverdue: 29 })).toEqual([['overdue', 10]])
-    expect(codes({ dueStatus: 'overdue', daysOverdue: 60 })).toEqual([['overdue', 14]])
-    expect(codes({ dueStatus: 'overdue', daysOverdue: 300 })).toEqual([['overdue', 30]])
-    expect(codes({ dueStatus: 'overdue', daysOverdue: 3000 })).toEqual([['overdue', 30]])
-    expect(codes({ dueStatus: 'due-soon', daysOverdue: 5 })).toEqual([])
-    expect(triage({ ...healthy, dueStatus: 'overdue', daysOverdue: 1 }).reasons[0].text).toBe('Overdue by 1 day')
-    expect(triage({ ...healthy, dueStatus: 'overdue', daysOverdue: 45 }).reasons[0].text).toBe('Overdue by 45 days')
+  // Hand-worked: a functional test 1 day past its window starts at 20; 60 days past it has made two
+  // 30-day steps (+4) = 24; 300 days makes all ten fast steps (+20) = 40; 3,000 days adds
+  // floor((3000 − 300) / 90) = 30 slow points = 70. The cleaning interval, 45 days past: 6 + 2 = 8.
+  it('overdue: the task sets the start, 2 points a month for ten months, then 1 every 90 days without a cap', () => {
+    expect(codes({ overdue: [{ task: 'functional', days: 1 }] })).toEqual([['overdue', 20]])
+    expect(codes({ overdue: [{ task: 'functional', days: 29 }] })).toEqual([['overdue', 20]])
+    expect(codes({ overdue: [{ task: 'functional', days: 60 }] })).toEqual([['overdue', 24]])
+    expect(codes({ overdue: [{ task: 'functional', days: 300 }] })).toEqual([['overdue', 40]])
+    expect(codes({ overdue: [{ task: 'functional', days: 389 }] })).toEqual([['overdue', 40]])
+    expect(codes({ overdue: [{ task: 'functional', days: 390 }] })).toEqual([['overdue', 41]])
+    expect(codes({ overdue: [{ task: 'functional', days: 3000 }] })).toEqual([['overdue', 70]])
+    expect(codes({ overdue: [{ task: 'cleaning', days: 45 }] })).toEqual([['overdue', 8]])
+    expect(codes({ overdue: [{ task: 'visual', days: 1 }] })).toEqual([['overdue', 8]])
+    expect(codes({ overdue: [{ task: 'sensitivity', days: 1 }] })).toEqual([['overdue', 14]])
   })
 
-  it('failed test and failed diagnosis', () => {
+  it('the overdue reason names the task, weightiest first, and counts the weightiest once', () => {
+    expect(triage({ ...healthy, overdue: [{ task: 'visual', days: 1 }] }).reasons[0].text).toBe('Visual inspection overdue by 1 day')
+    const both = triage({ ...healthy, overdue: [{ task: 'cleaning', days: 200 }, { task: 'functional', days: 45 }] })
+    // Functional 45 days: 20 + 2 = 22. Cleaning 200 days: 6 + 2 × 6 = 18. The functional test leads.
+    expect(both.reasons).toEqual([{ code: 'overdue', points: 22, text: 'Functional test overdue by 45 days; also cleaning by 200 days' }])
+  })
+
+  it('an overdue functional test outweighs an overdue cleaning, sensitivity or visual check as late', () => {
+    fc.assert(
+      fc.property(fc.integer({ min: 1, max: 20_000 }), (days) => {
+        const p = (task: keyof typeof OVERDUE_BASE) => overduePoints(task, days)
+        expect(p('functional')).toBeGreaterThan(p('sensitivity'))
+        expect(p('sensitivity')).toBeGreaterThan(p('visual'))
+        expect(p('visual')).toBeGreaterThan(p('cleaning'))
+      }),
+    )
+  })
+
+  it('points never fall as lateness grows, and keep growing past ten months', () => {
+    fc.assert(
+      fc.property(fc.constantFrom('functional', 'sensitivity', 'visual', 'cleaning' as const), fc.integer({ min: 0, max: 20_000 }), fc.integer({ min: 0, max: 5_000 }), (task, days, more) => {
+        expect(overduePoints(task, days + more)).toBeGreaterThanOrEqual(overduePoints(task, days))
+        // Any 90 days past the tenth month add at least a point: no cap.
+        if (days >= 300) expect(overduePoints(task, days + 90)).toBeGreaterThan(overduePoints(task, days))
+      }),
+    )
+    expect(overduePoints('functional', 0)).toBe(0)
+  })
+
+  it('failed test and failed diagnosis: one miswire fails both, and counts once', () => {
     expect(codes({ lastResult: 'fail' })).toEqual([['failed-test', 25]])
     expect(codes({ diagnosisFailed: true })).toEqual([['failed-diagnosis', 25]])
+    // Both listed, so either filter finds it; the points are the failed test's alone.
+    expect(codes({ lastResult: 'fail', diagnosisFailed: true })).toEqual([['failed-test', 25], ['failed-diagnosis', 0]])
+    expect(triage({ ...healthy, lastResult: 'fail', diagnosisFailed: true }).score).toBe(25)
+  })
+
+  it('a loop never shown to report trouble counts; a failed diagnosis already covers it', () => {
+    expect(codes({ supervisionUnproven: true })).toEqual([['supervision-unproven', 8]])
+    expect(codes({ supervisionUnproven: true, diagnosisFailed: true })).toEqual([['failed-diagnosis', 25]])
   })
 
   it('repeated troubles: from 2 in 30 days, 5 points each, at most 20', () => {
@@ -71,8 +113,7 @@ describe('triage: score and order', () => {
     const r = triage({
       ...healthy,
       state: 'trouble',
-      dueStatus: 'overdue',
-      daysOverdue: 10,
+      overdue: [{ task: 'visual', days: 10 }],
       lastResult: 'fail',
       diagnosisFailed: true,
       troubles30d: 2,
@@ -80,24 +121,25 @@ describe('triage: score and order', () => {
       housing: 'standard',
       delayAgreement: 'disagree',
     })
+    // Visual 10 days past its window: 8. The miswire counts once: 25 for the failed test, 0 beside it.
     expect(r.reasons.map((x) => [x.code, x.points])).toEqual([
       ['in-trouble', 40],
-      ['failed-diagnosis', 25],
       ['failed-test', 25],
       ['delay-disagrees', 10],
       ['humid-unrated', 10],
-      ['overdue', 10],
       ['repeated-troubles', 10],
+      ['overdue', 8],
+      ['failed-diagnosis', 0],
     ])
-    expect(r.score).toBe(130)
+    expect(r.score).toBe(103)
   })
 
   const arbInput: fc.Arbitrary<TriageInput> = fc.record({
     state: fc.constantFrom('normal', 'alarm', 'trouble', 'supervisory', 'out-of-service'),
-    dueStatus: fc.constantFrom('ok', 'due-soon', 'overdue'),
-    daysOverdue: fc.integer({ min: -400, max: 4000 }),
+    overdue: fc.uniqueArray(fc.record({ task: fc.constantFrom('visual', 'functional', 'sensitivity', 'cleaning' as const), days: fc.integer({ min: 1, max: 4000 }) }), { selector: (t) => t.task, maxLength: 4 }),
     lastResult: fc.constantFrom('pass', 'fail', null),
     diagnosisFailed: fc.boolean(),
+    supervisionUnproven: fc.boolean(),
     troubles30d: fc.integer({ min: 0, max: 12 }),
     environment: fc.constantFrom('clean', 'dusty', 'kitchen', 'humid'),
     housing: fc.constantFrom('standard', 'nema4', 'nema4x'),
@@ -114,7 +156,8 @@ describe('triage: score and order', () => {
           const [a, b] = [reasons[i - 1], reasons[i]]
           expect(a.points > b.points || (a.points === b.points && a.code < b.code)).toBe(true)
         }
-        for (const r of reasons) expect(r.points).toBeGreaterThan(0)
+        // Only the wiring fault behind a failed test is listed without points (counted once, there).
+        for (const r of reasons) expect(r.points > 0 || (r.code === 'failed-diagnosis' && input.lastResult === 'fail')).toBe(true)
       }),
       { numRuns: 200 },
     )

@@ -1,17 +1,24 @@
 import type { DelayAgreement } from './delay-audit'
-import type { DueStatus, Environment } from './schedule'
-import type { ReasonCode } from './vocabulary'
+import { TASK_LABELS, type Environment } from './schedule'
+import type { ReasonCode, Task } from './vocabulary'
 
 export type TriageReasonCode = ReasonCode
 
+export interface OverdueTask {
+  task: Task
+  /** Days past the last day the standard's window allows (≥ 1 once overdue). */
+  days: number
+}
+
 export interface TriageInput {
   state: 'normal' | 'alarm' | 'trouble' | 'supervisory' | 'out-of-service'
-  dueStatus: DueStatus
-  /** Days the earliest task is past due (≤ 0 when not overdue). */
-  daysOverdue: number
+  /** Every task past its window; a task merely due (inside its window) is not a reason. */
+  overdue: readonly OverdueTask[]
   lastResult: 'pass' | 'fail' | null
   /** The last loop or interlock diagnosis failed. */
   diagnosisFailed: boolean
+  /** No loop reading ever showed the panel a trouble or a powered-down detector, and no fault explains why. */
+  supervisionUnproven: boolean
   troubles30d: number
   environment: Environment
   housing: 'standard' | 'nema4' | 'nema4x'
@@ -24,9 +31,24 @@ export interface TriageReason {
   text: string
 }
 
-// An overdue detector gains 2 points for each 30 days late, for up to 10 steps (30 points in all).
+// What each overdue task starts at: the functional test proves the detector stops the unit and
+// reaches the panel, so it weighs most; sensitivity next; the visual check and cleaning least.
+export const OVERDUE_BASE: Record<Task, number> = { functional: 20, sensitivity: 14, visual: 8, cleaning: 6 }
+// Then 2 points for each 30 days past the window for the first ten steps, and 1 point for each
+// further 90 days without end: a detector forgotten for years keeps climbing, slowly.
 export const OVERDUE_STEP_DAYS = 30
 export const OVERDUE_STEPS = 10
+export const OVERDUE_SLOW_STEP_DAYS = 90
+
+/** Points for one task this many days past its window. */
+export function overduePoints(task: Task, days: number): number {
+  if (days < 1) return 0
+  const early = Math.min(OVERDUE_STEPS, Math.floor(days / OVERDUE_STEP_DAYS))
+  const late = Math.max(0, Math.floor((days - OVERDUE_STEPS * OVERDUE_STEP_DAYS) / OVERDUE_SLOW_STEP_DAYS))
+  return OVERDUE_BASE[task] + 2 * early + late
+}
+
+const dayWord = (n: number) => `${n} day${n === 1 ? '' : 's'}`
 
 // Weights are the product's own call, set so that a live trouble outranks paperwork and an
 // unreported fault outranks a late test; each reason shows its points so the order explains itself.
@@ -37,12 +59,24 @@ export function triage(input: TriageInput): { score: number; reasons: TriageReas
   if (input.state === 'trouble') add('in-trouble', 40, 'In trouble at the panel now')
   if (input.state === 'alarm' || input.state === 'supervisory') add('in-alarm', 45, `Showing ${input.state} now`)
   if (input.state === 'out-of-service') add('out-of-service', 35, 'Out of service: the duct is not protected')
-  if (input.dueStatus === 'overdue') {
-    const months = Math.min(OVERDUE_STEPS, Math.max(0, Math.floor(input.daysOverdue / OVERDUE_STEP_DAYS)))
-    add('overdue', 10 + months * 2, `Overdue by ${input.daysOverdue} day${input.daysOverdue === 1 ? '' : 's'}`)
+  if (input.overdue.length > 0) {
+    // The weightiest task sets the points; the words name every overdue task, weightiest first.
+    const ranked = [...input.overdue]
+      .map((t) => ({ ...t, points: overduePoints(t.task, t.days) }))
+      .sort((a, b) => b.points - a.points || a.task.localeCompare(b.task))
+    const [head, ...rest] = ranked
+    const more = rest.map((t) => `${TASK_LABELS[t.task].toLowerCase()} by ${dayWord(t.days)}`).join(', ')
+    add('overdue', head.points, `${TASK_LABELS[head.task]} overdue by ${dayWord(head.days)}${more ? `; also ${more}` : ''}`)
   }
+  // A miswire fails the test and the readings alike: one fault, counted once (under the failed test),
+  // while both reasons stay listed so either filter finds the detector.
   if (input.lastResult === 'fail') add('failed-test', 25, 'Failed its last test')
-  if (input.diagnosisFailed) add('failed-diagnosis', 25, 'Last readings point at a wiring fault')
+  if (input.diagnosisFailed) {
+    if (input.lastResult === 'fail') add('failed-diagnosis', 0, 'Readings point at a wiring fault, likely why the test failed (counted once)')
+    else add('failed-diagnosis', 25, 'Last readings point at a wiring fault')
+  } else if (input.supervisionUnproven) {
+    add('supervision-unproven', 8, 'Loop never shown to report trouble: no reading with the detector in trouble or powered down')
+  }
   if (input.troubles30d >= 2) {
     add('repeated-troubles', Math.min(20, 5 * input.troubles30d), `${input.troubles30d} troubles in the last 30 days`)
   }

@@ -29,7 +29,8 @@ export const EOL_PLACEMENTS = ['through-supervisory', 'across-pair'] as const
 export const TERMINALS = ['NO', 'NC'] as const
 export const TEST_STATIONS = ['none', 'key', 'magnet'] as const
 
-export const DUE_STATUSES = ['ok', 'due-soon', 'overdue'] as const
+/** Up to date; due within 30 days; past its nominal date but inside the window the standard allows; past the window. */
+export const DUE_STATUSES = ['ok', 'due-soon', 'due', 'overdue'] as const
 export type DueStatus = (typeof DUE_STATUSES)[number]
 
 export const DELAY_AGREEMENTS = ['agree', 'disagree', 'unknown'] as const
@@ -92,5 +93,6 @@ export const REASON_CODES = [
   'humid-unrated',
   'delay-disagrees',
   'delay-unknown',
+  'supervision-unproven',
 ] as const
 export type ReasonCode = (typeof REASON_CODES)[number]

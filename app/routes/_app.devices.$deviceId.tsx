@@ -12,10 +12,11 @@ import { Caution } from '~/components/caution'
 import { EventTimeline } from '~/components/event-timeline'
 import { StateBadge } from '~/components/state-badge'
 import { WiringDiagram } from '~/components/wiring-diagram'
+import { DEFAULT_MAX_LINE_OHMS, DEFAULT_TOLERANCE } from '~/domain/loop'
 import { DETECTOR_STATES, STATE_LABELS } from '~/domain/contacts'
 import type { Expected, Reading } from '~/domain/loop'
 import type { RouteAccess } from '~/domain/permissions'
-import { TASK_LABELS } from '~/domain/schedule'
+import { TASK_LABELS, type TaskDue } from '~/domain/schedule'
 import { formatCount, formatDay } from '~/utils/format'
 import { siteDateTime } from '~/utils/time-format'
 import type { Route } from './+types/_app.devices.$deviceId'
@@ -45,6 +46,9 @@ const METHOD_WORDS = { phone: 'by phone', email: 'by e-mail', portal: 'through t
 const crumb = `${TAP} text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink`
 // Whole minutes and seconds, as the module's switches are read: 170 s is "2 min 50 s", never 2.83 min.
 const minSec = (s: number) => [Math.floor(s / 60) && `${Math.floor(s / 60)} min`, s % 60 && `${Math.round(s % 60)} s`].filter(Boolean).join(' ')
+/** A task's badge: the nominal date, or how it stands against the window the standard allows. */
+const dueWords = (t: TaskDue) =>
+  t.status === 'overdue' ? `Overdue ${t.daysOverdue} d (was due ${t.dueOn})` : t.status === 'due' ? `Due now, since ${t.dueOn}` : `Due ${t.dueOn}`
 const delayWords = (s: number | null) => (s === null ? 'not recorded' : s === 0 ? 'report at once' : `${minSec(s)} delay`)
 
 function fits(e: Expected, r: Reading | undefined): boolean | null {
@@ -79,7 +83,7 @@ export default function Device({ loaderData }: Route.ComponentProps) {
           <h1 className="font-mono text-2xl font-semibold break-all">{d.tag}</h1>
           <div role="group" aria-label="State" data-first="state" className="flex flex-wrap items-center gap-2">
             <StateBadge value={d.state} />
-            <StateBadge value={r.schedule[0].status} />
+            <StateBadge value={r.stored.dueStatus} />
             <StateBadge value={r.loop.verdict} label={`Loop: ${r.loop.verdict}`} />
           </div>
           <span className="text-sm text-ink-soft">
@@ -108,9 +112,12 @@ export default function Device({ loaderData }: Route.ComponentProps) {
               <li key={t.task}>
                 <div className="flex flex-wrap items-center justify-between gap-x-2 gap-y-1">
                   <span className="font-medium">{TASK_LABELS[t.task]}</span>
-                  <StateBadge value={t.status} label={`${t.status === 'overdue' ? 'Overdue' : 'Due'} ${t.dueOn}`} />
+                  <StateBadge value={t.status} label={dueWords(t)} />
                 </div>
                 <div className="text-xs text-ink-faint">{t.basis}</div>
+                <div className="text-xs text-ink-faint">
+                  {t.overdueAfter === t.dueOn ? 'Overdue the day after' : `Overdue after ${t.overdueAfter}`}: {t.windowBasis}
+                </div>
               </li>
             ))}
           </ul>
@@ -310,7 +317,11 @@ export default function Device({ loaderData }: Route.ComponentProps) {
               </Fact>
               <Fact label="Installed">{formatDay(d.installedOn)}</Fact>
               <Fact label="End-of-line">
-                {ohms(d.eolOhms)}, {d.eolPlacement === 'through-supervisory' ? 'through supervisory' : 'across the pair'}
+                {ohms(d.eolOhms)} ±{d.eolTolerancePct ?? DEFAULT_TOLERANCE * 100} %{d.eolTolerancePct === null && ' (usual part, assumed)'},{' '}
+                {d.eolPlacement === 'through-supervisory' ? 'through supervisory' : 'across the pair'}
+              </Fact>
+              <Fact label="Panel alarm threshold">
+                {d.alarmThresholdOhms === null ? `not recorded: ${DEFAULT_MAX_LINE_OHMS} Ω assumed (common practice)` : ohms(d.alarmThresholdOhms)}
               </Fact>
               <Fact label="Conductor">
                 {d.conductorAwg} AWG {d.conductorStranded ? 'stranded' : 'solid'}, {formatCount(d.runFeet)} ft one way ({ohms(r.loop.lineOhms)} loop)

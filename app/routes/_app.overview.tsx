@@ -136,6 +136,7 @@ export default function Overview({ loaderData }: Route.ComponentProps) {
             </h2>
             <ul className="mt-3 space-y-2 text-sm">
               <Row label={<StateBadge value="overdue" />} value={f.overdue} href="/devices?due=overdue" />
+              <Row label={<StateBadge value="due" label="Due, inside the allowed window" />} value={f.dueNow} href="/devices?due=due" />
               <Row label={<StateBadge value="due-soon" label="Due within 30 days" />} value={f.dueSoon} href="/devices?due=due-soon" />
               <Row label={<StateBadge value="disagree" label="Delay differs from policy" />} value={f.delayDisagrees} href="/devices?delay=disagree" />
             </ul>

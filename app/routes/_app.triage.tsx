@@ -55,6 +55,7 @@ const REASON_LABELS: Record<string, string> = {
   'humid-unrated': 'Humid, unrated housing',
   'delay-disagrees': 'Delay differs from policy',
   'delay-unknown': 'Delay not recorded',
+  'supervision-unproven': 'Supervision unproven',
 }
 
 const columns: ColumnDef<TriageRow>[] = [

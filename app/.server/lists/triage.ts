@@ -1,6 +1,7 @@
-import { eq, isNotNull, isNull, like, ne, or, sql } from 'drizzle-orm'
+import { and, count, eq, isNotNull, isNull, like, ne, or, sql } from 'drizzle-orm'
 import { z } from 'zod'
-import { daysBetween } from '~/domain/dates'
+import { decodeReasons } from '~/domain/derive'
+import { overdueTasks } from '~/domain/schedule'
 import { triage, type TriageReason } from '~/domain/triage'
 import { REASON_CODES, type ReasonCode } from '~/domain/vocabulary'
 import type { Db } from '../db'
@@ -27,6 +28,12 @@ const select = {
   lastResult: detectors.lastResult,
   troubles30d: detectors.troubles30d,
   acknowledgedAt: detectors.acknowledgedAt,
+  // Each task's nominal date and the reasons stored, so the words shown are the derivation's own.
+  nextVisualOn: detectors.nextVisualOn,
+  nextFunctionalOn: detectors.nextFunctionalOn,
+  nextSensitivityOn: detectors.nextSensitivityOn,
+  nextCleaningOn: detectors.nextCleaningOn,
+  riskReasons: detectors.riskReasons,
   assignee: orNull(users.name),
   // The technician's own words on the latest failed visit result, while the last test stands failed:
   // the office's follow-up. Correlated, but read only for the rows of the window on screen.
@@ -46,6 +53,13 @@ const keptReasons = perDb((db) =>
     .prepare(),
 )
 
+/**
+ * Open detectors carrying one reason, counted: for a code the kept totals have no row for yet (a row
+ * per code is added by migration; until then the triggers have nothing to keep it in).
+ */
+const countOpen = (db: Db, code: ReasonCode) =>
+  db.select({ n: count() }).from(detectors).where(and(ne(detectors.riskReasons, ''), isNull(detectors.acknowledgedAt), hasReason(code))).get()?.n ?? 0
+
 /** The queue as a list spec (the CSV export walks it too). */
 export const triageSpec: ListSpec<TriageQuery, typeof select> = {
   ...deviceList,
@@ -54,7 +68,10 @@ export const triageSpec: ListSpec<TriageQuery, typeof select> = {
   // The plain open queue, whole or by one reason, is a kept total: no count over the open detectors.
   keptTotal(f) {
     if (f.q || f.assignedTo || f.customer || f.acknowledged !== 'hide' || (f.reason?.length ?? 0) > 1) return null
-    return (db) => keptReasons(db).get({ code: f.reason?.[0] ?? 'open' })?.n ?? 0
+    return (db) => {
+      const kept = keptReasons(db).get({ code: f.reason?.[0] ?? 'open' })
+      return kept ? kept.n : f.reason?.[0] ? countOpen(db, f.reason[0]) : 0
+    }
   },
   where: (f) => [
     // Open means the derivation gave the detector a reason; the same test the kept counts use.
@@ -77,10 +94,11 @@ export function triageList(db: Db, query: TriageQuery, today: string): ListResul
       ...r,
       reasons: triage({
         state: r.state,
-        dueStatus: r.due,
-        daysOverdue: r.nextDueOn ? Math.max(0, daysBetween(r.nextDueOn, today)) : 0,
+        overdue: overdueTasks({ visual: r.nextVisualOn, functional: r.nextFunctionalOn, sensitivity: r.nextSensitivityOn, cleaning: r.nextCleaningOn }, today),
         lastResult: r.lastResult,
         diagnosisFailed: r.loop === 'fail',
+        // Which readings exist is not on the row; the stored code says what the derivation found.
+        supervisionUnproven: decodeReasons(r.riskReasons).includes('supervision-unproven'),
         troubles30d: r.troubles30d,
         environment: r.environment,
         housing: r.housing,
@@ -92,7 +110,9 @@ export function triageList(db: Db, query: TriageQuery, today: string): ListResul
 
 /** How many open (unacknowledged) detectors carry each reason, from the totals the triggers keep. */
 export function reasonCounts(db: Db): Record<ReasonCode | 'open', number> {
-  const counts = Object.fromEntries(['open', ...REASON_CODES].map((c) => [c, 0])) as Record<ReasonCode | 'open', number>
+  const counts = Object.fromEntries(['open', ...REASON_CODES].map((c) => [c, -1])) as Record<ReasonCode | 'open', number>
   for (const row of db.select().from(reasonCountsTable).all()) counts[row.code as ReasonCode | 'open'] = row.n
+  for (const code of REASON_CODES) if (counts[code] < 0) counts[code] = countOpen(db, code)
+  if (counts.open < 0) counts.open = 0
   return counts
 }

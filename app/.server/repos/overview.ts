@@ -7,6 +7,7 @@ import { countWhere, perDb } from './statements'
 
 const overdue = eq(detectors.dueStatus, 'overdue')
 const dueSoon = eq(detectors.dueStatus, 'due-soon')
+const dueNow = eq(detectors.dueStatus, 'due')
 const inTrouble = eq(detectors.state, 'trouble')
 const outOfService = eq(detectors.state, 'out-of-service')
 const delayDisagrees = eq(detectors.delayAgreement, 'disagree')
@@ -26,6 +27,7 @@ const statements = perDb((db: Db) => {
     totals: db.select({ name: tableCounts.name, rows: tableCounts.rows }).from(tableCounts).prepare(),
     overdue: countOf(overdue),
     dueSoon: countOf(dueSoon),
+    dueNow: countOf(dueNow),
     inTrouble: countOf(inTrouble),
     outOfService: countOf(outOfService),
     delayDisagrees: countOf(delayDisagrees),
@@ -101,6 +103,7 @@ export function overviewFigures(db: Db, today: IsoDate) {
     events: total('events'),
     overdue: s.overdue.get()!.n,
     dueSoon: s.dueSoon.get()!.n,
+    dueNow: s.dueNow.get()!.n,
     inTrouble: s.inTrouble.get()!.n,
     outOfService: s.outOfService.get()!.n,
     delayDisagrees: s.delayDisagrees.get()!.n,

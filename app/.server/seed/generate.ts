@@ -94,7 +94,7 @@ export function seed(sqlite: Database.Database, scale: Scale, today: IsoDate): S
   const insMonitor = ins('monitoring_companies', ['id', 'name', 'phone', 'email', 'notify_method', 'notify_lead_minutes', 'hours', 'created_at'])
   const insModel = ins('detector_models', ['id', 'name', 'supervisory_labelled_in', 'aux_contacts', 'standby_va', 'alarm_va', 'velocity_min_fpm', 'velocity_max_fpm', 'pressure_min_in_wc', 'pressure_max_in_wc', 'sensitivity_low_pct_ft', 'sensitivity_high_pct_ft'])
   const insCustomer = ins('customers', ['id', 'name', 'kind', 'contact_name', 'contact_email', 'contact_phone', 'created_at'])
-  const insSite = ins('sites', ['id', 'customer_id', 'name', 'street', 'city', 'region', 'postal_code', 'time_zone', 'jurisdiction', 'ahj_name', 'ahj_contact', 'code_basis', 'monitoring_company_id', 'monitoring_account', 'delay_policy_seconds', 'access_notes', 'created_at'])
+  const insSite = ins('sites', ['id', 'customer_id', 'name', 'street', 'city', 'region', 'postal_code', 'time_zone', 'jurisdiction', 'ahj_name', 'ahj_contact', 'code_basis', 'monitoring_company_id', 'monitoring_account', 'delay_policy_seconds', 'keeps_nuisance_records', 'access_notes', 'created_at'])
   const insUnit = ins('units', ['id', 'site_id', 'tag', 'kind', 'location', 'shutdown_input', 'supply_cfm', 'return_cfm', 'duct_shape', 'duct_width_in', 'duct_height_in', 'duct_diameter_in', 'storeys_served', 'shared_plenum', 'area_detection', 'transformer_va', 'created_at'])
   const detectorCols = ['id', 'unit_id', 'site_id', 'customer_id', 'model_id', 'tag', 'serial', 'position', 'heads_fitted', 'housing', 'environment', 'delay_seconds', 'delay_observed_on', 'installed_on', 'eol_ohms', 'eol_placement', 'alarm_terminal', 'supervisory_terminal', 'conductor_awg', 'conductor_stranded', 'run_feet', 'test_station', 'test_station_feet', 'velocity_min_fpm', 'velocity_max_fpm', 'pressure_min_in_wc', 'pressure_max_in_wc', 'state', 'last_visual_on', 'last_functional_on', 'last_sensitivity_on', 'sensitivity_streak', 'last_cleaned_on', 'last_result', 'next_visual_on', 'next_functional_on', 'next_sensitivity_on', 'next_cleaning_on', 'next_due_on', 'due_status', 'delay_agreement', 'risk_score', 'risk_reasons', 'troubles_30d', 'loop_verdict', 'loop_findings', 'updated_at']
   const insDetector = ins('detectors', detectorCols)
@@ -203,6 +203,8 @@ export function seed(sqlite: Database.Database, scale: Scale, today: IsoDate): S
       siteId++
       const monitor = ((siteId * 7) % MONITORING_COMPANIES.length) + 1
       const policy = DELAY_POLICIES[(monitor + siteId) % DELAY_POLICIES.length]
+      // Two sites in three keep a nuisance-alarm log (by id, so the random draws stay as they were).
+      const keepsRecords = siteId % 3 !== 0
       const suffix = r.pick(SITE_SUFFIX[c.kind])
       const tail = `${place.city}${suffix ? ` ${suffix}` : ''}`
       let streetName = `${r.pick(STREETS)} ${r.pick(STREET_KINDS)}`
@@ -215,7 +217,7 @@ export function seed(sqlite: Database.Database, scale: Scale, today: IsoDate): S
       siteNames.add(siteName)
       regionsUsed.add(place.region)
       const codeBasis = CITIES.indexOf(place) % 3 === 0 ? 'nfpa90a' : 'imc'
-      insSite.run(siteId, c.id, siteName, street, place.city, place.region, `${place.zip}${String(r.int(100, 999))}`, place.tz, `City of ${place.city}`, `${place.city} Fire Prevention Bureau`, `fireprevention@${place.city.toLowerCase().replace(/[^a-z]+/g, '')}.test`, codeBasis, monitor, `AC-${String(100000 + siteId * 37).slice(-6)}`, policy, r.chance(0.4) ? r.pick(['Roof hatch key at front desk.', 'Ladder on site; call manager on arrival.', 'After 14:00 only: kitchen busy at lunch.', 'Escort required in patient areas.']) : null, now)
+      insSite.run(siteId, c.id, siteName, street, place.city, place.region, `${place.zip}${String(r.int(100, 999))}`, place.tz, `City of ${place.city}`, `${place.city} Fire Prevention Bureau`, `fireprevention@${place.city.toLowerCase().replace(/[^a-z]+/g, '')}.test`, codeBasis, monitor, `AC-${String(100000 + siteId * 37).slice(-6)}`, policy, keepsRecords ? 1 : 0, r.chance(0.4) ? r.pick(['Roof hatch key at front desk.', 'Ladder on site; call manager on arrival.', 'After 14:00 only: kitchen busy at lunch.', 'Escort required in patient areas.']) : null, now)
       counts.sites++
       const siteVisits = writeSiteHistory(siteId, monitor, c.kind, place.region)
 
@@ -251,7 +253,7 @@ export function seed(sqlite: Database.Database, scale: Scale, today: IsoDate): S
         for (const position of positions) {
           if (detectorId >= cfg.detectors) break
           detectorId++
-          writeDetector(detectorId, { siteId, unitId, customerId: c.id, kind: c.kind, position, monitor, policy, unitTag, visits: siteVisits })
+          writeDetector(detectorId, { siteId, unitId, customerId: c.id, kind: c.kind, position, monitor, policy, keepsRecords, unitTag, visits: siteVisits })
         }
       }
       writePlannedVisit(siteId, place.region)
@@ -315,7 +317,7 @@ export function seed(sqlite: Database.Database, scale: Scale, today: IsoDate): S
 
   function writeDetector(
     id: number,
-    o: { siteId: number; unitId: number; customerId: number; kind: string; position: 'supply' | 'return'; monitor: number; policy: number; unitTag: string; visits: SiteVisit[] },
+    o: { siteId: number; unitId: number; customerId: number; kind: string; position: 'supply' | 'return'; monitor: number; policy: number; keepsRecords: boolean; unitTag: string; visits: SiteVisit[] },
   ) {
     const env: Environment =
       o.kind === 'restaurant' && r.chance(0.45)
@@ -365,10 +367,10 @@ export function seed(sqlite: Database.Database, scale: Scale, today: IsoDate): S
     const visitsDone: Array<{ visit: SiteVisit; tasks: Task[]; failed: boolean }> = []
     for (const v of worked) {
       if (!v.written) writeVisit(v)
-      const facts = workFacts(results)
+      const facts = workFacts(results, installedOn)
       const tasks: Task[] = ['visual']
       if (v.kind === 'test') tasks.push('functional')
-      const sensitivityDue = nextSensitivityDue({ installedOn, environment: env, ...facts }).dueOn
+      const sensitivityDue = nextSensitivityDue({ installedOn, environment: env, ...facts, nuisanceRecordsKept: o.keepsRecords }).dueOn
       if (v.kind === 'test' && sensitivityDue <= addDays(v.on, 60)) tasks.push('sensitivity')
       if (v.kind === 'test' || !facts.lastCleanedOn || addDays(facts.lastCleanedOn, cleaningDays) <= addDays(v.on, 45)) tasks.push('cleaning')
       let failed = false
@@ -393,7 +395,7 @@ export function seed(sqlite: Database.Database, scale: Scale, today: IsoDate): S
     if (state === 'trouble' && troubles30 === 0) recentTroubleTimes.push(`${addDays(today, -r.int(0, 6))}T${String(r.int(10, 23))}:${String(r.int(10, 59))}:00.000Z`)
     const derived = deriveDetector(
       { installedOn, environment: env, housing, state, delaySeconds: delay, cleaningIntervalDays: null, arrangement: recorded },
-      { delayPolicySeconds: o.policy },
+      { delayPolicySeconds: o.policy, nuisanceRecordsKept: o.keepsRecords },
       { results, loopReadings: readings ?? {}, troubles: recentTroubleTimes },
       today,
     ).stored
