@@ -141,6 +141,16 @@ describe('IMC return risers', () => {
     expect(r.installed).toBe(true)
     expect(r.reason).toMatch(/2 of 4 storeys/)
   })
+
+  it('counts a detector recorded at every storey as present, and none recorded as missing', () => {
+    // IMC 606.2.3: a detector at each story, upstream of the riser connection
+    const fitted = (perStoreyReturns: number | undefined) =>
+      item(base({ returnCfm: 20000, storeysServed: 4, installed: { supply: false, return: true, perStoreyReturns } }), 'return-each-storey').status
+    expect(fitted(4)).toBe('present')
+    expect(fitted(5)).toBe('present')
+    expect(fitted(undefined)).toBe('missing')
+    expect(fitted(0)).toBe('missing')
+  })
 })
 
 describe('NFPA 90A', () => {

@@ -42,11 +42,21 @@ const FINDING_LABELS: Record<string, string> = {
   unitShutDown: 'Unit shut down on alarm',
   resetOk: 'Detector reset',
   delaySecondsFound: 'Delay as found (s)',
-  testStationWorked: 'Remote test station worked',
+  testStationWorked: 'Remote test station tripped the detector',
+  testStationReset: 'Remote test station reset it',
+  heads: 'Each head',
   headsFitted: 'Heads fitted',
   cleaned: 'Cleaned',
 }
 const findingsShape = z.record(z.string(), z.unknown())
+
+const yesNo = (b: unknown) => (b === true ? 'yes' : b === false ? 'no' : 'not recorded')
+/** A two-head module's results, head by head, in words. */
+const headWords = (heads: unknown[]) =>
+  heads
+    .map((h) => h as { head?: number; tripped?: boolean; cleaned?: boolean })
+    .map((h) => `Head ${h.head}: alarm on test ${yesNo(h.tripped)}, cleaned ${yesNo(h.cleaned)}`)
+    .join('; ')
 
 function findingRows(raw: unknown): Array<{ label: string; value: string }> {
   const parsed = findingsShape.safeParse(raw)
@@ -55,7 +65,7 @@ function findingRows(raw: unknown): Array<{ label: string; value: string }> {
     .filter(([, v]) => v !== null && v !== undefined && v !== '')
     .map(([k, v]) => ({
       label: FINDING_LABELS[k] ?? k.replace(/([A-Z])/g, ' $1').replace(/^./, (c) => c.toUpperCase()),
-      value: typeof v === 'boolean' ? (v ? 'Yes' : 'No') : typeof v === 'object' ? JSON.stringify(v) : String(v),
+      value: k === 'heads' && Array.isArray(v) ? headWords(v) : typeof v === 'boolean' ? (v ? 'Yes' : 'No') : typeof v === 'object' ? JSON.stringify(v) : String(v),
     }))
 }
 

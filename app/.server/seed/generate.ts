@@ -26,6 +26,7 @@ import {
 import { withBulkLoad } from './bulk'
 import type { Awg } from '~/domain/conductors'
 import { correctTerminals, expectedReadings, type Arrangement, type Reading, type Readings } from '~/domain/loop'
+import { detectorRequirements } from '~/domain/requirements'
 
 export type Scale = 'small' | 'demo' | 'stress'
 
@@ -95,7 +96,7 @@ export function seed(sqlite: Database.Database, scale: Scale, today: IsoDate): S
   const insModel = ins('detector_models', ['id', 'name', 'supervisory_labelled_in', 'aux_contacts', 'standby_va', 'alarm_va', 'velocity_min_fpm', 'velocity_max_fpm', 'pressure_min_in_wc', 'pressure_max_in_wc', 'sensitivity_low_pct_ft', 'sensitivity_high_pct_ft'])
   const insCustomer = ins('customers', ['id', 'name', 'kind', 'contact_name', 'contact_email', 'contact_phone', 'created_at'])
   const insSite = ins('sites', ['id', 'customer_id', 'name', 'street', 'city', 'region', 'postal_code', 'time_zone', 'jurisdiction', 'ahj_name', 'ahj_contact', 'code_basis', 'monitoring_company_id', 'monitoring_account', 'delay_policy_seconds', 'keeps_nuisance_records', 'access_notes', 'created_at'])
-  const insUnit = ins('units', ['id', 'site_id', 'tag', 'kind', 'location', 'shutdown_input', 'supply_cfm', 'return_cfm', 'duct_shape', 'duct_width_in', 'duct_height_in', 'duct_diameter_in', 'storeys_served', 'shared_plenum', 'area_detection', 'transformer_va', 'created_at'])
+  const insUnit = ins('units', ['id', 'site_id', 'tag', 'kind', 'location', 'shutdown_input', 'supply_cfm', 'return_cfm', 'duct_shape', 'duct_width_in', 'duct_height_in', 'duct_diameter_in', 'storeys_served', 'storey_return_detectors', 'shared_plenum', 'area_detection', 'transformer_va', 'created_at'])
   const detectorCols = ['id', 'unit_id', 'site_id', 'customer_id', 'model_id', 'tag', 'serial', 'position', 'heads_fitted', 'housing', 'environment', 'delay_seconds', 'delay_observed_on', 'installed_on', 'eol_ohms', 'eol_placement', 'alarm_terminal', 'supervisory_terminal', 'conductor_awg', 'conductor_stranded', 'run_feet', 'test_station', 'test_station_feet', 'velocity_min_fpm', 'velocity_max_fpm', 'pressure_min_in_wc', 'pressure_max_in_wc', 'state', 'last_visual_on', 'last_functional_on', 'last_sensitivity_on', 'sensitivity_streak', 'last_cleaned_on', 'last_result', 'next_visual_on', 'next_functional_on', 'next_sensitivity_on', 'next_cleaning_on', 'next_due_on', 'due_status', 'delay_agreement', 'risk_score', 'risk_reasons', 'troubles_30d', 'loop_verdict', 'loop_findings', 'updated_at']
   const insDetector = ins('detectors', detectorCols)
   const insEvent = ins('events', ['site_id', 'detector_id', 'occurred_at', 'kind', 'detail', 'user_id'])
@@ -246,7 +247,16 @@ export function seed(sqlite: Database.Database, scale: Scale, today: IsoDate): S
         const diameter = Math.max(8, Math.round(Math.sqrt((areaIn2 * 4) / Math.PI)))
         const storeys = c.kind === 'office' && kind === 'ahu' ? r.int(1, 6) : 1
         const location = c.kind === 'restaurant' && kind === 'rtu' && r.chance(0.3) ? 'Roof over dining room' : r.pick(UNIT_LOCATIONS[kind])
-        insUnit.run(unitId, siteId, unitTag, kind, location, r.chance(0.7) ? 'break-to-stop' : 'make-to-stop', supply, ret, round ? 'round' : 'rectangular', round ? null : width, round ? null : height, round ? diameter : null, storeys, r.chance(0.1) ? 1 : 0, r.chance(0.15) ? 1 : 0, r.pick([40, 40, 40, 50, 75]), now)
+        // Drawn in the order the row lists them, so the random sequence is the one it always was.
+        const shutdownInput = r.chance(0.7) ? 'break-to-stop' : 'make-to-stop'
+        const sharedPlenum = r.chance(0.1)
+        const areaDetection = r.chance(0.15)
+        const transformerVa = r.pick([40, 40, 40, 50, 75])
+        // A riser that needs a detector at each storey has one at each, recorded on the unit: the demo's
+        // multi-storey air handlers are meant to meet their code basis.
+        const perStorey = detectorRequirements({ codeBasis, supplyCfm: supply, returnCfm: ret, storeysServed: storeys, sharedPlenum, areaDetection, installed: { supply: false, return: false } })
+          .items.some((i) => i.location === 'return-each-storey' && i.required)
+        insUnit.run(unitId, siteId, unitTag, kind, location, shutdownInput, supply, ret, round ? 'round' : 'rectangular', round ? null : width, round ? null : height, round ? diameter : null, storeys, perStorey ? storeys : null, sharedPlenum ? 1 : 0, areaDetection ? 1 : 0, transformerVa, now)
         counts.units++
 
         const positions: Array<'supply' | 'return'> = kind === 'mau' ? ['supply'] : r.chance(0.55) ? ['supply', 'return'] : [r.chance(0.6) ? 'supply' : 'return']
