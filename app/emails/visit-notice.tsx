@@ -74,7 +74,7 @@ export default function VisitNoticeEmail({ facts: f }: { facts: VisitEmailFacts 
                 Our technician will test duct smoke detectors at this site from <strong>{f.window.from}</strong> until <strong>{f.window.until}</strong>. Test trips
                 will send alarm, supervisory and trouble signals from this account during that window. Please place the account in test for the window and
                 confirm by calling{' '}
-                <Link className="dk-link" href={tel} style={{ color: C.accent, fontWeight: 700 }}>
+                <Link className="dk-link" href={tel} style={{ color: C.accent, fontWeight: 700, whiteSpace: 'nowrap' }}>
                   {f.callBack}
                 </Link>{' '}
                 or replying to this message.
@@ -83,7 +83,7 @@ export default function VisitNoticeEmail({ facts: f }: { facts: VisitEmailFacts 
               <>
                 The work under our notice for {f.window.from} to {f.window.until} is finished{f.finishedAt ? ` (${f.finishedAt})` : ''}. Please take the account
                 out of test and check that it shows normal. If any signal from this site does not restore, call{' '}
-                <Link className="dk-link" href={tel} style={{ color: C.accent, fontWeight: 700 }}>
+                <Link className="dk-link" href={tel} style={{ color: C.accent, fontWeight: 700, whiteSpace: 'nowrap' }}>
                   {f.callBack}
                 </Link>{' '}
                 before closing the test.

@@ -86,6 +86,11 @@ export async function action({ request }: Route.ActionArgs) {
   return { ok: outcome !== 'failed', message: `${r.name}'s digest for this week ${created ? '' : '(already in the outbox) '}${said(outcome)}.`, id }
 }
 
+// A link that looks like the button beside it, as tall on a touch screen as every button there.
+const previewClass = 'inline-flex min-h-8 items-center rounded-sm border border-line-strong px-3 text-sm text-ink hover:bg-sunken touch:min-h-11'
+/** Instants as stored (UTC), read at a glance: "2026-06-15 14:05 UTC". */
+const utc = (iso: string) => `${iso.slice(0, 16).replace('T', ' ')} UTC`
+
 const KIND_WORDS: Record<string, string> = { digest: 'Weekly digest', notice: 'Notice of work', 'all-clear': 'All-clear' }
 
 const TONE: Record<OutboxStatus, string> = {
@@ -116,13 +121,13 @@ export default function Outbox({ loaderData, actionData }: Route.ComponentProps)
                 {!r.enabled && <span className="ml-2 rounded-sm bg-idle-soft px-1.5 text-xs text-idle">switched off</span>}
               </span>
               <span className="flex gap-2">
-                <Link className={quietButtonClass} to={`?preview=${r.userId}`}>
+                <Link className={previewClass} to={`?preview=${r.userId}`}>
                   Preview
                 </Link>
                 <Form method="post">
                   <input type="hidden" name="intent" value="send-digest" />
                   <input type="hidden" name="userId" value={r.userId} />
-                  <button className={buttonClass} disabled={busy}>
+                  <button className={`${buttonClass} min-h-8`} disabled={busy}>
                     Send now
                   </button>
                 </Form>
@@ -172,9 +177,9 @@ export default function Outbox({ loaderData, actionData }: Route.ComponentProps)
                         </Link>
                       </>
                     ) : null}{' '}
-                    · queued {m.createdAt.slice(0, 16).replace('T', ' ')}
-                    {m.sentAt ? ` · sent ${m.sentAt.slice(0, 16).replace('T', ' ')}` : ''}
-                    {m.status === 'queued' && m.nextAttemptAt ? ` · next try ${m.nextAttemptAt.slice(0, 16).replace('T', ' ')}` : ''}
+                    · queued {utc(m.createdAt)}
+                    {m.sentAt ? ` · sent ${utc(m.sentAt)}` : ''}
+                    {m.status === 'queued' && m.nextAttemptAt ? ` · next try ${utc(m.nextAttemptAt)}` : ''}
                   </span>
                   {m.error && <span className="block text-xs text-late">{m.error}</span>}
                 </span>

@@ -23,8 +23,13 @@ function settingsOf(userId: number) {
 
 export async function loader({ request }: Route.LoaderArgs) {
   const me = await requireUser(request, 'receive:digest')
-  const customers = getDb().$client.prepare('select id, name from customers order by name').all() as { id: number; name: string }[]
-  return { settings: settingsOf(me.id), customers }
+  const c = getDb().$client
+  const customers = c.prepare('select id, name from customers order by name').all() as { id: number; name: string }[]
+  // This person's latest digest, found on the outbox's key index (digest:<user>:<ISO week>).
+  const last = c
+    .prepare(`select subject, status, sent_at as sentAt from email_outbox where idempotency_key > ? and idempotency_key < ? order by idempotency_key desc limit 1`)
+    .get(`digest:${me.id}:`, `digest:${me.id};`) as { subject: string; status: string; sentAt: string | null } | undefined
+  return { settings: settingsOf(me.id), customers, email: me.email, last: last ?? null }
 }
 
 const settingsForm = z.object({
@@ -60,14 +65,25 @@ export async function action({ request }: Route.ActionArgs) {
 
 export default function Settings({ loaderData, actionData }: Route.ComponentProps) {
   const busy = useNavigation().state !== 'idle'
-  const { settings, customers } = loaderData
+  const { settings, customers, email, last } = loaderData
   return (
     <div className="mx-auto max-w-3xl">
       <PageHeader title="Settings">Your weekly digest</PageHeader>
       {actionData?.message && <Notice tone={actionData.ok ? 'ok' : 'error'}>{actionData.message}</Notice>}
       <Form method="post" className="my-4 space-y-4 rounded-md border border-line bg-panel p-4">
+        <div className="space-y-1 text-sm text-ink-soft">
+          <p>
+            Sent to <span className="font-medium break-all text-ink">{email}</span>: what is overdue, falling due, in trouble, failed or disagreeing, and the
+            week&apos;s visits, each with how it changed since your digest the week before.
+          </p>
+          <p>
+            {last
+              ? `Latest: ${last.subject} (${last.status}${last.sentAt ? `, ${last.sentAt.slice(0, 16).replace('T', ' ')} UTC` : ''}).`
+              : 'No digest has been sent to you yet.'}
+          </p>
+        </div>
         <label className="flex items-center gap-2 text-sm font-medium">
-          <input type="checkbox" name="enabled" defaultChecked={settings.enabled} className="size-4" /> Send me the weekly digest
+          <input type="checkbox" name="enabled" defaultChecked={settings.enabled} className="size-4 accent-accent" /> Send me the weekly digest
         </label>
         <div className="grid gap-4 sm:grid-cols-2">
           <Field label="Day">
@@ -95,7 +111,7 @@ export default function Settings({ loaderData, actionData }: Route.ComponentProp
           <div className="mt-2 grid max-h-72 gap-1 overflow-auto rounded-sm border border-line p-2 sm:grid-cols-2">
             {customers.map((c) => (
               <label key={c.id} className="flex items-center gap-2 py-1 text-sm">
-                <input type="checkbox" name="customerIds" value={c.id} defaultChecked={settings.customerIds.includes(c.id)} className="size-4" /> {c.name}
+                <input type="checkbox" name="customerIds" value={c.id} defaultChecked={settings.customerIds.includes(c.id)} className="size-4 accent-accent" /> {c.name}
               </label>
             ))}
           </div>

@@ -262,7 +262,8 @@ function WorkArea({ loaderData: d, noticeLogged, formDetectors }: { loaderData: 
     return (
       <div className="space-y-4">
         {!noticeLogged && mail && mc?.notifyMethod === 'email' && <EmailNoticeForm visitId={v.id} version={v.version} {...mail} timeZone={s.timeZone} now={now} />}
-        {!noticeLogged && <NoticeForm visitId={v.id} version={v.version} preferred={mc?.notifyMethod ?? null} timeZone={s.timeZone} now={now} />}
+        {/* An e-mailed notice that has not gone leaves the phone open: a notice logged by phone then counts. */}
+        {(!noticeLogged || unsent) && <NoticeForm visitId={v.id} version={v.version} preferred={mc?.notifyMethod ?? null} timeZone={s.timeZone} now={now} />}
         {!noticeLogged && mail && mc?.notifyMethod !== 'email' && !noticeMail && <EmailNoticeForm visitId={v.id} version={v.version} {...mail} timeZone={s.timeZone} now={now} />}
         <StartButton
           visitId={v.id}
@@ -368,11 +369,19 @@ function NoticeList({
           {notices.map((n) => (
             <li key={n.id} className="space-y-0.5 text-sm">
               <div className="text-base">
-                {METHOD_WORDS[n.method]} · spoke with <span className="font-medium">{n.spokeWith}</span>
+                {n.method === 'email' ? (
+                  <>
+                    {METHOD_WORDS.email} to <span className="font-medium break-words">{n.spokeWith}</span>
+                  </>
+                ) : (
+                  <>
+                    {METHOD_WORDS[n.method]} · spoke with <span className="font-medium">{n.spokeWith}</span>
+                  </>
+                )}
                 {n.confirmation && (
                   <>
                     {' '}
-                    · conf. <span className="font-mono">{n.confirmation}</span>
+                    · {n.confirmation.startsWith('e-mail message ') ? n.confirmation : <>conf. <span className="font-mono">{n.confirmation}</span></>}
                   </>
                 )}
               </div>
@@ -384,7 +393,11 @@ function NoticeList({
               </div>
               <div>
                 {n.clearedAt ? (
-                  <StateBadge value="done" label={`All-clear ${siteClock(n.clearedAt, tz, now)}${n.clearedWith ? ` with ${n.clearedWith}` : ''}`} />
+                  <>
+                    <StateBadge value="done" label={`All-clear ${siteClock(n.clearedAt, tz, now)}`} />
+                    {/* An e-mailed all-clear names an address and its message: long, so it wraps beside the badge. */}
+                    {n.clearedWith && <span className="ml-1.5 break-words">with {n.clearedWith}</span>}
+                  </>
                 ) : n.inTestUntil > now ? (
                   <StateBadge value="in-progress" label="In test now" />
                 ) : (

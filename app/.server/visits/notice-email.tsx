@@ -1,7 +1,7 @@
 import { render } from '@react-email/render'
 import VisitNoticeEmail, { visitEmailSubject, type VisitEmailFacts } from '~/emails/visit-notice'
 import type { VisitIntent } from '~/domain/visit-forms'
-import { siteDateTime } from '~/utils/time-format'
+import { siteDateTime, siteDay, siteTime } from '~/utils/time-format'
 import type { Db } from '../db'
 import { sendMessage, type NewMessage, type SendOutcome } from '../email/send'
 import { VisitRefusal } from './refusal'
@@ -44,17 +44,19 @@ function facts(db: Db, actor: Actor, visitId: number, input: Extract<EmailIntent
   if (!head.companyEmail) throw new VisitRefusal(409, `${head.company} has no e-mail address on record: phone them and log the notice.`)
   const sender = (q.prepare('select name from users where id = ?').get(actor.id) as { name: string } | undefined)?.name ?? 'Ductkeeper'
   const at = (iso: string) => siteDateTime(iso, head.timeZone)
+  // A window within one day names the day once: "15 Jun 2026, 08:00 PDT to 12:00 PDT".
+  const span = (from: string, until: string) => ({ from: at(from), until: siteDay(from, head.timeZone) === siteDay(until, head.timeZone) ? siteTime(until, head.timeZone) : at(until) })
   let window: { from: string; until: string }
   let siteContactTold: string | null = null
   if (input.intent === 'email-notice') {
-    window = { from: at(input.inTestFrom), until: at(input.inTestUntil) }
+    window = span(input.inTestFrom, input.inTestUntil)
     siteContactTold = input.siteManagementTold ? input.siteContact || 'site management' : null
   } else {
     const latest = q
       .prepare('select in_test_from as f, in_test_until as u from notifications where visit_id = ? order by notified_at desc, id desc limit 1')
       .get(visitId) as { f: string; u: string } | undefined
     if (!latest) throw new VisitRefusal(409, 'No notice is logged for this visit, so there is nothing to clear.')
-    window = { from: at(latest.f), until: at(latest.u) }
+    window = span(latest.f, latest.u)
   }
   const detectors = q
     .prepare(

@@ -56,7 +56,7 @@ export function EmailNoticeForm({ visitId, version, company, to, timeZone, now }
         E-mail the notice
       </h2>
       <p className="text-sm text-ink-soft">
-        Sends {company} (<span className="break-all">{to}</span>) the site, account, address, detectors, test window, technician and your call-back number, and logs
+        Sends {company} (<span className="break-words">{to}</span>) the site, account, address, detectors, test window, technician and your call-back number, and logs
         it as this visit&apos;s notice. Wait for their confirmation before tripping anything.
       </p>
       <div className="grid gap-3 sm:grid-cols-2">
@@ -71,7 +71,7 @@ export function EmailNoticeForm({ visitId, version, company, to, timeZone, now }
       </div>
       <p className="-mt-2 text-sm text-ink-soft">Site time ({timeZone.replace(/_/g, ' ')}).</p>
       <CallBackField value={callBack} onChange={setCallBack} />
-      <YesNo label="Site management told" value={told} onChange={setTold} />
+      <YesNo label="Has site management been told?" value={told} onChange={setTold} />
       {told && (
         <label className={fieldLabel}>
           Who at the site
@@ -104,7 +104,7 @@ export function EmailAllClearForm({ visitId, version, company, to }: { visitId: 
         E-mail the all-clear
       </h2>
       <p className="text-sm text-ink-soft">
-        Tells {company} (<span className="break-all">{to}</span>) the work is finished and asks them to take the system out of test and check it shows normal.
+        Tells {company} (<span className="break-words">{to}</span>) the work is finished and asks them to take the system out of test and check it shows normal.
       </p>
       <CallBackField value={callBack} onChange={setCallBack} />
       {problem && <Alert>{problem}</Alert>}
@@ -141,7 +141,7 @@ export function VisitEmailLine({ email: m, visitId, version, tz, now, mayRetry }
       <div className="flex flex-wrap items-center gap-x-2 gap-y-1">
         <span className="font-medium">{what} e-mail</span>
         <StateBadge value={STATUS_TONE[m.status]} label={STATUS_WORDS[m.status]} />
-        <span className="min-w-0 break-all text-ink-soft">to {m.to}</span>
+        <span className="min-w-0 break-words text-ink-soft">to {m.to}</span>
       </div>
       <div className="text-ink-soft">
         Message {m.id}
@@ -149,7 +149,7 @@ export function VisitEmailLine({ email: m, visitId, version, tz, now, mayRetry }
         {m.providerId && (
           <>
             {' '}
-            · provider id <span className="font-mono break-all">{m.providerId}</span>
+            · provider id <span className="font-mono break-words">{m.providerId}</span>
           </>
         )}
         {m.status === 'queued' && m.nextAttemptAt ? ` · next try ${siteClock(m.nextAttemptAt, tz, now)}` : ''}
