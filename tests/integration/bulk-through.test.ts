@@ -205,10 +205,10 @@ describe('bulk actions on a selection of sites, customers or events', () => {
     const customer = ids('select customer_id as id from detectors group by customer_id order by count(*) desc limit 1')
     const techs = ids("select id from users where role = 'technician' and active = 1 order by id")
     const input = { from: '2026-06-16', to: '2026-07-31', dueBy: '2026-12-31', technicianIds: techs }
-    const preview = (await post<Preview & { changes: Array<{ to: { detectors: number } }> }>('cleaning-cycle', { preview: true, list: 'customers', ids: customer, ...input }, 'office')).body
+    const preview = (await post<Preview>('cleaning-cycle', { preview: true, list: 'customers', ids: customer, ...input }, 'office')).body
     expect(preview.through).toMatchObject({ list: 'customers', records: 1 })
     expect(preview.changeCount).toBeGreaterThan(0)
-    const planned = preview.changes.reduce((n, c) => n + c.to.detectors, 0)
+    const planned = preview.changes.reduce((n, c) => n + Number(c.to.detectors), 0)
     const due = (q().prepare(`select count(*) n from detectors where customer_id = ? and next_cleaning_on <= '2026-12-31'`).get(customer[0]) as { n: number }).n
     expect(planned + preview.refusedCount).toBe(due)
     const visitsBefore = ids('select id from visits order by id')

@@ -118,10 +118,10 @@ export function ActionFields(p: { action: string; value: Record<string, unknown>
             after notifying it and site management. HVAC staff never alter the fire alarm panel.
           </p>
           <div className="flex flex-wrap items-end gap-3">
-            <Field label="Do">
-              <select autoFocus className={inputClass} value={String(v.do)} onChange={(e) => p.onChange({ do: e.target.value })}>
-                <option value="correction-visits">Book correction visits for settings that disagree</option>
-                <option value="verify">Mark agreeing settings verified today</option>
+            <Field label="What to do">
+              <select autoFocus className={`${inputClass} max-w-full`} value={String(v.do)} onChange={(e) => p.onChange({ do: e.target.value })}>
+                <option value="correction-visits">Book correction visits (settings that disagree)</option>
+                <option value="verify">Mark agreeing settings verified</option>
               </select>
             </Field>
             {v.do === 'correction-visits' && (

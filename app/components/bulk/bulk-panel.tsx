@@ -149,7 +149,11 @@ export function BulkPanel(p: {
           </button>
           {!finished && (
             <button ref={applyButton} type="submit" className={buttonClass} disabled={busy || (phase === 'previewed' && preview?.changeCount === 0)}>
-              {phase === 'previewed' ? `Apply to ${formatCount(preview?.changeCount ?? 0)}` : 'Preview'}
+              {phase === 'previewed' && preview
+                ? booksVisits(preview)
+                  ? `Book ${count(preview.changeCount, ['visit', 'visits'])}`
+                  : `Apply to ${formatCount(preview.changeCount)}`
+                : 'Preview'}
             </button>
           )}
         </footer>
@@ -173,13 +177,20 @@ function ThroughLine({ through }: { through: NonNullable<PreviewAnswer['through'
   )
 }
 
+/** Whether the preview books visits (delay corrections, cleaning cycles) rather than changing the selected records. */
+export const booksVisits = (preview: PreviewAnswer) => preview.changes.some((c) => c.create !== undefined)
+
 function PreviewView({ preview }: { preview: PreviewAnswer }) {
   const x = preview.extra
+  const books = booksVisits(preview)
   return (
     <section aria-label="Preview" className="flex flex-col gap-3 text-sm">
       {preview.through && <ThroughLine through={preview.through} />}
       <p className="font-medium">
-        {preview.summary}. {formatCount(preview.changeCount)} of {formatCount(preview.selected)} selected will change
+        {preview.summary}.{' '}
+        {books
+          ? `${count(preview.changeCount, ['visit', 'visits'])} to book for the ${count(preview.selected, ['selected detector', 'selected detectors'])}`
+          : `${formatCount(preview.changeCount)} of ${formatCount(preview.selected)} selected will change`}
         {preview.refusedCount > 0 && `; ${formatCount(preview.refusedCount)} refused`}. Nothing has changed yet.
       </p>
       {x?.audit && (
@@ -211,15 +222,15 @@ function PreviewView({ preview }: { preview: PreviewAnswer }) {
           <thead className="text-ink-soft">
             <tr>
               <th className="py-1 pr-3 font-medium">Record</th>
-              <th className="py-1 pr-3 font-medium">From</th>
-              <th className="py-1 font-medium">To</th>
+              {!books && <th className="py-1 pr-3 font-medium">From</th>}
+              <th className="py-1 font-medium">{books ? 'Visit' : 'To'}</th>
             </tr>
           </thead>
           <tbody>
             {preview.changes.map((c) => (
               <tr key={c.id} className="border-t border-line/60">
                 <td className="py-1 pr-3">{c.label}</td>
-                <td className="py-1 pr-3 font-mono text-ink-soft">{show(c.from)}</td>
+                {!books && <td className="py-1 pr-3 font-mono text-ink-soft">{show(c.from)}</td>}
                 <td className="py-1 font-mono">{show(c.to)}</td>
               </tr>
             ))}

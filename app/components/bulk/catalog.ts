@@ -50,7 +50,7 @@ export interface PreviewAnswer {
   summary: string
   changeCount: number
   refusedCount: number
-  changes: Array<{ id: number; label: string; from: Record<string, unknown>; to: Record<string, unknown> }>
+  changes: Array<{ entity: 'visit' | 'detector'; id: number; label: string; from: Record<string, unknown>; to: Record<string, unknown>; create?: unknown }>
   refused: Array<{ id: number; label: string; reason: string }>
   extra?: {
     dayLoads?: DayLoad[]
