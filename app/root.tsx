@@ -2,8 +2,9 @@ import { isRouteErrorResponse, Links, Meta, Outlet, Scripts, ScrollRestoration }
 import type { Route } from './+types/root'
 import './app.css'
 import { apiHeaders } from '~/.server/http'
+import { databaseUnavailable } from '~/.server/unavailable'
 
-export const middleware: Route.MiddlewareFunction[] = [apiHeaders]
+export const middleware: Route.MiddlewareFunction[] = [apiHeaders, databaseUnavailable]
 
 export const meta: Route.MetaFunction = () => [{ title: 'Ductkeeper' }]
 

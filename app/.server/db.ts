@@ -13,14 +13,19 @@ const migrationsFolder = resolve(process.env.MIGRATIONS_PATH ?? 'drizzle')
 export function createDb(path: string, { runMigrations = true } = {}): Db {
   if (path !== ':memory:') ownerOnly(path)
   const sqlite = new Database(path)
-  sqlite.pragma('journal_mode = WAL')
-  sqlite.pragma('foreign_keys = ON')
-  sqlite.pragma('busy_timeout = 5000')
-  // WAL makes NORMAL durable against application crashes; only power loss can drop the last commit.
-  sqlite.pragma('synchronous = NORMAL')
-  const db = drizzle(sqlite, { schema }) as Db
-  if (runMigrations) migrate(db, { migrationsFolder })
-  return db
+  try {
+    sqlite.pragma('journal_mode = WAL')
+    sqlite.pragma('foreign_keys = ON')
+    sqlite.pragma('busy_timeout = 5000')
+    // WAL makes NORMAL durable against application crashes; only power loss can drop the last commit.
+    sqlite.pragma('synchronous = NORMAL')
+    const db = drizzle(sqlite, { schema }) as Db
+    if (runMigrations) migrate(db, { migrationsFolder })
+    return db
+  } catch (error) {
+    sqlite.close() // a file that cannot be set up is tried again later; no handle is left behind
+    throw error
+  }
 }
 
 /**
@@ -53,8 +58,48 @@ export function writeTx<T>(db: Db | Database.Database, fn: () => T): T {
 
 const globalForDb = globalThis as unknown as { __ductkeeperDb?: Db }
 
-/** The process-wide database, opened on first use (dev-safe: survives module reloads). */
+/**
+ * What is wrong with the database, in words an operator can act on, when `error` is SQLite saying it
+ * cannot be opened or written (read-only, disk full, not there, lock held); null for any other error.
+ */
+export function databaseProblem(error: unknown): string | null {
+  const code = String((error as { code?: unknown } | null)?.code ?? '')
+  if (error instanceof DatabaseUnavailable) return error.problem
+  if (code.startsWith('SQLITE_READONLY')) return 'The database is read-only: check the owner and permissions of the file and its folder, and that the disk is mounted for writing.'
+  if (code === 'SQLITE_FULL' || code === 'SQLITE_IOERR_WRITE') return 'The disk holding the database is full: free space, then try again.'
+  if (code.startsWith('SQLITE_CANTOPEN')) return 'The database file cannot be opened: check DATABASE_PATH and the permissions of its folder.'
+  if (code.startsWith('SQLITE_BUSY')) return 'Another writer is holding the database lock.'
+  return null
+}
+
+/** The database could not be opened; said once in the log, answered 503 to requests until it can. */
+export class DatabaseUnavailable extends Error {
+  constructor(readonly problem: string, options?: { cause: unknown }) {
+    super(problem, options)
+    this.name = 'DatabaseUnavailable'
+  }
+}
+
+let lastOpenProblem: string | null = null
+
+/**
+ * The process-wide database, opened on first use (dev-safe: survives module reloads). A database
+ * that cannot be opened (read-only, disk full) is tried again on the next call, so the server
+ * carries on once it is fixed instead of exiting and being restarted in a loop.
+ */
 export function getDb(): Db {
-  globalForDb.__ductkeeperDb ??= createDb(process.env.DATABASE_PATH ?? 'data/ductkeeper.db')
-  return globalForDb.__ductkeeperDb
+  if (globalForDb.__ductkeeperDb) return globalForDb.__ductkeeperDb
+  const path = process.env.DATABASE_PATH ?? 'data/ductkeeper.db'
+  try {
+    globalForDb.__ductkeeperDb = createDb(path)
+    if (lastOpenProblem) console.warn(`The database at ${path} opens again.`)
+    lastOpenProblem = null
+    return globalForDb.__ductkeeperDb
+  } catch (error) {
+    const problem = databaseProblem(error)
+    if (!problem) throw error
+    if (problem !== lastOpenProblem) console.error(`The database at ${path} cannot be used: ${problem} (${String((error as { code?: unknown }).code)})`)
+    lastOpenProblem = problem
+    throw new DatabaseUnavailable(problem, { cause: error })
+  }
 }

@@ -1,5 +1,7 @@
+import { statfsSync } from 'node:fs'
+import { dirname } from 'node:path'
 import type { RouteAccess } from '~/domain/permissions'
-import { getDb } from '~/.server/db'
+import { databaseProblem, getDb } from '~/.server/db'
 
 export const handle = { access: { loader: 'public' } satisfies RouteAccess }
 
@@ -9,6 +11,20 @@ const PROBE_WAIT_MS = 1_000
 
 const noStore = { 'Cache-Control': 'no-store' }
 
+// Below this a write that grows the WAL by a few pages (a bulk change, an import) can fail midway
+// (it is rolled back whole, but refused). A megabyte is a few hundred pages.
+const MIN_FREE_BYTES = 1024 * 1024
+
+function freeBytes(path: string): number | null {
+  if (!path || path === ':memory:') return null
+  try {
+    const s = statfsSync(dirname(path))
+    return s.bavail * s.bsize
+  } catch {
+    return null
+  }
+}
+
 /**
  * Up means writable, not just readable: the probe takes the write lock and rewrites the header's
  * user_version to itself, then rolls back, so nothing is ever changed.
@@ -17,8 +33,8 @@ export function loader() {
   let sqlite: ReturnType<typeof getDb>['$client']
   try {
     sqlite = getDb().$client
-  } catch {
-    return Response.json({ ok: false, error: 'The database could not be opened.' }, { status: 503, headers: noStore })
+  } catch (error) {
+    return Response.json({ ok: false, error: databaseProblem(error) ?? 'The database could not be opened.' }, { status: 503, headers: noStore })
   }
   const wait = sqlite.pragma('busy_timeout', { simple: true }) as number
   sqlite.pragma(`busy_timeout = ${PROBE_WAIT_MS}`)
@@ -29,6 +45,11 @@ export function loader() {
       sqlite.pragma(`user_version = ${version}`)
     } finally {
       sqlite.exec('rollback')
+    }
+    // The probe writes nothing to the disk, so a full disk is seen from the folder's free space.
+    const free = freeBytes(sqlite.name)
+    if (free !== null && free < MIN_FREE_BYTES) {
+      return Response.json({ ok: false, error: 'The disk holding the database is full.', code: 'SQLITE_FULL' }, { status: 503, headers: noStore })
     }
     return Response.json({ ok: true }, { headers: noStore })
   } catch (error) {
