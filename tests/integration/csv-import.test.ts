@@ -89,7 +89,12 @@ const INVENTORY_COLUMNS = [
   'unit', 'unitKind', 'shutdownInput', 'supplyCfm', 'returnCfm', 'ductShape', 'tag', 'serial', 'model', 'position', 'housing', 'environment', 'installedOn',
   'eolOhms', 'eolPlacement', 'alarmTerminal', 'supervisoryTerminal', 'conductorAwg', 'conductorStranded', 'runFeet',
 ]
-const pick = (records: Array<Record<string, string>>, columns: string[]) => records.map((r) => columns.map((c) => r[c]))
+// Rows in the order of their place (site, unit, tag): the export's own order after the tag breaks ties
+// on derived facts (risk), which a record with no history does not share with the original.
+const pick = (records: Array<Record<string, string>>, columns: string[]) =>
+  records
+    .map((r) => columns.map((c) => r[c]))
+    .sort((a, b) => { const key = (x: string[]) => [columns.indexOf('site'), columns.indexOf('unit'), columns.indexOf('tag')].map((i) => x[i]).join('\u0000'); return key(a) < key(b) ? -1 : key(a) > key(b) ? 1 : 0 })
 
 describe('inventory import', () => {
   let customerId = 0

@@ -1,6 +1,6 @@
-import { stringify } from 'csv-stringify/sync'
 import { beforeAll, describe, expect, it } from 'vitest'
 import { DEMO_EMAIL, useSeededServer } from '#tests/setup/fixture'
+import { inventoryFile } from '#tests/setup/inventory-file'
 import { sessionCookieFor, userIdByEmail } from '#tests/setup/sessions'
 
 // 50,000 detectors in one file: 1,000 sites of 10 units with 5 detectors each, for a new customer.
@@ -19,49 +19,7 @@ beforeAll(async () => {
   model = (db.$client.prepare('select name from detector_models order by id limit 1').get() as { name: string }).name
 })
 
-function inventory(): string {
-  const rows: Array<Record<string, string | number>> = []
-  for (let s = 1; s <= SITES; s++) {
-    for (let u = 1; u <= UNITS; u++) {
-      for (let d = 1; d <= PER_UNIT; d++) {
-        rows.push({
-          customer: 'Fernbrook Family Diners',
-          customerKind: 'restaurant',
-          site: `Fernbrook ${s}`,
-          street: `${100 + s} Alder Way`,
-          city: 'Millbrook',
-          region: 'US-OR',
-          postalCode: '97000',
-          timeZone: 'America/Los_Angeles',
-          jurisdiction: 'Millbrook',
-          ahjName: 'Millbrook Fire Marshal',
-          codeBasis: 'imc',
-          unit: `RTU-${u}`,
-          unitKind: 'rtu',
-          shutdownInput: 'break-to-stop',
-          supplyCfm: 4000,
-          returnCfm: 3600,
-          ductShape: 'rectangular',
-          tag: `RTU-${u}-${d}`,
-          serial: `FB${s}-${u}-${d}`,
-          model,
-          position: d % 2 ? 'supply' : 'return',
-          housing: 'standard',
-          environment: d === 5 ? 'kitchen' : 'clean',
-          installedOn: '2024-03-01',
-          eolOhms: 15000,
-          eolPlacement: 'through-supervisory',
-          alarmTerminal: 'NO',
-          supervisoryTerminal: 'NC',
-          conductorAwg: 18,
-          conductorStranded: 'yes',
-          runFeet: 120,
-        })
-      }
-    }
-  }
-  return stringify(rows, { header: true })
-}
+const inventory = () => inventoryFile({ customer: 'Fernbrook Family Diners', model, sites: SITES, units: UNITS, perUnit: PER_UNIT })
 
 describe('a 50,000-row inventory file', () => {
   it('uploads, checks and imports in measured time, and a second import changes nothing', async () => {

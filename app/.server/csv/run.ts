@@ -5,7 +5,19 @@ import { writeTx, type Db } from '../db'
 import { listsChanged } from '../list-query'
 import { importMappings } from '../schema'
 import { applyEvents, planEvents, type EventCounts } from './events'
-import { applyInventory, planInventory, type InventoryCounts } from './inventory'
+import {
+  applyInventory,
+  deriveNewDetectors,
+  deriveNewDetectorsNow,
+  planInventory,
+  planInventoryInTurns,
+  planStillHolds,
+  stageNewRecords,
+  stageNewRecordsNow,
+  type InventoryCounts,
+  type InventoryPlan,
+  type Staged,
+} from './inventory'
 import { columnNames, parseRows, type Problem } from './parse-rows'
 import type { StoredImport } from './store'
 
@@ -78,30 +90,58 @@ function report(kind: ImportKind, mapping: Mapping, parseProblems: Problem[], pl
 export async function checkImport(db: Db, meta: StoredImport, path: string, mapping: Mapping, onProgress?: (rows: number) => void | Promise<void>): Promise<ImportReport> {
   const p = await parsed(meta, path, mapping, onProgress)
   remember(db, meta.kind, meta.source, mapping)
-  return report(meta.kind, mapping, p.problems, plan(db, meta, p))
+  const skipped = new Set(p.problems.map((x) => x.row)).size
+  const planned = p.kind === 'inventory' ? { kind: 'inventory' as const, plan: await planInventoryInTurns(db, p.rows, skipped) } : plan(db, meta, p)
+  return report(meta.kind, mapping, p.problems, planned)
 }
 
 /**
- * Writes every sound row in one IMMEDIATE transaction, or nothing: the file is read first, then the
- * plan is made again inside the transaction, against the records as they are at that moment, and
- * applied with one audit entry. Rows with problems are left out, as the check reported.
+ * Writes every sound row in one IMMEDIATE transaction, or nothing. Everything that can be done
+ * before is done before, handing the event loop back as it goes: the file read and checked, the plan
+ * made against the records as they stand, each new detector's facts derived. The transaction then
+ * checks that the records the plan rests on are as they were (else it plans again, inside), writes
+ * with prepared statements, and adds the one audit entry. Rows with problems are left out, as the
+ * check reported. Event files are planned inside the transaction, against the events of that moment.
  */
 export async function commitImport(db: Db, meta: StoredImport, path: string, mapping: Mapping, actorId: number, today: string): Promise<ImportReport> {
   const p = await parsed(meta, path, mapping)
-  const result = writeTx(db, () => {
-    const planned = plan(db, meta, p)
-    if (planned.kind === 'inventory') applyInventory(db, planned.plan, today)
-    else applyEvents(db, planned.plan, today)
-    remember(db, meta.kind, meta.source, mapping)
-    writeAudit(db, {
-      actorId,
-      action: meta.kind === 'inventory' ? 'import.inventory' : 'import.events',
-      entity: 'import',
-      entityId: meta.id,
-      after: { source: meta.source, file: meta.fileName, ...planned.plan.counts },
+  const skipped = new Set(p.problems.map((x) => x.row)).size
+  let ahead: { plan: InventoryPlan; staged: Staged } | null = null
+  try {
+    if (p.kind === 'inventory') {
+      const inventory = await planInventoryInTurns(db, p.rows, skipped)
+      await deriveNewDetectors(inventory, today)
+      ahead = { plan: inventory, staged: await stageNewRecords(db, inventory, meta.id) }
+    }
+    const result = writeTx(db, () => {
+      let planned: ReturnType<typeof plan>
+      if (ahead) {
+        if (!planStillHolds(db, ahead.plan)) {
+          // Records changed since the plan was made: plan, derive and stage again, inside.
+          ahead.staged.drop()
+          const inventory = planInventory(db, p.rows as Parameters<typeof planInventory>[1], skipped)
+          deriveNewDetectorsNow(inventory, today)
+          ahead = { plan: inventory, staged: stageNewRecordsNow(db, inventory, meta.id) }
+        }
+        applyInventory(db, ahead.plan, ahead.staged, today)
+        planned = { kind: 'inventory', plan: ahead.plan }
+      } else {
+        planned = plan(db, meta, p)
+        if (planned.kind === 'events') applyEvents(db, planned.plan, today)
+      }
+      remember(db, meta.kind, meta.source, mapping)
+      writeAudit(db, {
+        actorId,
+        action: meta.kind === 'inventory' ? 'import.inventory' : 'import.events',
+        entity: 'import',
+        entityId: meta.id,
+        after: { source: meta.source, file: meta.fileName, ...planned.plan.counts },
+      })
+      return report(meta.kind, mapping, p.problems, planned)
     })
-    return report(meta.kind, mapping, p.problems, planned)
-  })
-  listsChanged()
-  return result
+    listsChanged()
+    return result
+  } finally {
+    ahead?.staged.drop()
+  }
 }
