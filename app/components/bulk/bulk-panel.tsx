@@ -189,8 +189,10 @@ function PreviewView({ preview }: { preview: PreviewAnswer }) {
       <p className="font-medium">
         {preview.summary}.{' '}
         {books
-          ? `${count(preview.changeCount, ['visit', 'visits'])} to book for the ${count(preview.selected, ['selected detector', 'selected detectors'])}`
-          : `${formatCount(preview.changeCount)} of ${formatCount(preview.selected)} selected will change`}
+          ? `${count(preview.changeCount, ['visit', 'visits'])} to book for the ${count(preview.selected, preview.through ? ['detector', 'detectors'] : ['selected detector', 'selected detectors'])}`
+          : preview.through
+            ? `${formatCount(preview.changeCount)} of the ${count(preview.selected, ['detector', 'detectors'])} will change`
+            : `${formatCount(preview.changeCount)} of ${formatCount(preview.selected)} selected will change`}
         {preview.refusedCount > 0 && `; ${formatCount(preview.refusedCount)} refused`}. Nothing has changed yet.
       </p>
       {x?.audit && (
