@@ -1,4 +1,4 @@
-import { and, asc, count, desc, eq, getTableName, inArray, sql, type SQL } from 'drizzle-orm'
+import { and, asc, Column, count, desc, eq, getTableName, inArray, is, sql, type SQL } from 'drizzle-orm'
 import type { SelectResultFields } from 'drizzle-orm/query-builders/select.types'
 import { alias, QueryBuilder, SQLiteSyncDialect, type SelectedFields, type SQLiteColumn, type SQLiteSelect, type SQLiteTable } from 'drizzle-orm/sqlite-core'
 import { z } from 'zod'
@@ -24,6 +24,19 @@ export interface ListSpec<F, S extends SelectedFields = SelectedFields> {
   /** Sort key (the column id the UI shows) → column or expression. */
   sorts: Record<string, SQLiteColumn | SQL>
   defaultSort: { key: string; dir: 'asc' | 'desc' }
+  /**
+   * Joins the id walk needs for sort keys on another table's column: inner joins on NOT NULL keys,
+   * so SQLite may start from that table's index (a left join fixes the listed table as the outer
+   * loop and sorts every row). Other walks join nothing.
+   */
+  sortJoins?: Partial<Record<string, (query: ListSelect) => ListSelect>>
+  /**
+   * Sort keys no index serves (a count per row, a name on a nullable key): SQLite computes and sorts
+   * every matching row. Offered only while the filters leave at most `COSTLY_SORT_ROWS`.
+   */
+  costlySorts?: readonly string[]
+  /** Facts about the filters that need the database (whether a word is broad), added before the query is built. */
+  refine?: (db: Db, filters: F) => F
   /** A kept total for some filtered views (a reader of a counter table), or null to count. */
   keptTotal?: (filters: F) => ((db: Db) => number) | null
   /**
@@ -112,16 +125,22 @@ let writeVersion = 0
 export function listsChanged() {
   writeVersion++
   totals.clear()
+  anchorsByList.clear()
 }
 
-/** Turns free text into an FTS5 prefix query: each word must match the start of a token. */
+/**
+ * Turns free text into an FTS5 query: each word must match the start of a token, and a word of one
+ * character a whole token (the S of RTU-1-S). The index keeps prefixes of two and three characters
+ * (drizzle/0001_search_and_counts.sql); a one-character prefix has none, and would merge the lists
+ * of every token starting with it (60–150 ms over the fleet's words, for a match no one wants).
+ */
 export function ftsQuery(text: string): string | null {
   const words = text
     .toLowerCase()
     .split(/[^\p{L}\p{N}]+/u)
     .filter(Boolean)
     .slice(0, 8)
-  return words.length ? words.map((w) => `"${w}"*`).join(' ') : null
+  return words.length ? words.map((w) => ([...w].length === 1 ? `"${w}"` : `"${w}"*`)).join(' ') : null
 }
 
 // search_index rowids are id * 4 + kind (drizzle/0001_search_and_counts.sql).
@@ -145,6 +164,18 @@ export function ftsKindRows(kind: FtsKind): string {
 export function ftsIds(kind: FtsKind, match: string, limit?: number): SQL {
   const first = limit === undefined ? undefined : sql` limit ${limit}`
   return sql`(select rowid / 4 from search_index where search_index match ${match} and ${sql.raw(ftsKindRows(kind))}${first})`
+}
+
+// A word matching more detectors than this matches a large share of them: its rows are found sooner
+// by walking the list's order and testing each against the matches than by fetching every match and
+// sorting them.
+const BROAD_MATCHES = 1000
+
+/** Whether `q` matches so many records of a kind that its list is best walked in the list's order. */
+export function wordIsBroad(db: Db, kind: FtsKind, q: string | undefined): boolean {
+  const fts = q ? ftsQuery(q) : null
+  if (!fts) return false
+  return db.get<{ n: number }>(sql`select count(*) as n from ${ftsIds(kind, fts, BROAD_MATCHES + 1)}`).n > BROAD_MATCHES
 }
 
 type Paging = { q?: string; sort?: string; dir?: 'asc' | 'desc'; offset: number; limit: number }
@@ -174,7 +205,7 @@ function parameterized(text: string, values: unknown[]): SQL | null {
 }
 
 type PageStatement = { all: (values: Record<string, unknown>) => unknown[] }
-// Per database and list: the prepared page statements by sort, direction and filter text.
+// Per database and list: the prepared page statements by sort, direction, anchor and filter text.
 const pageStatements = perDb(() => new WeakMap<object, Map<string, PageStatement>>())
 const MAX_STATEMENTS = 200
 
@@ -185,32 +216,140 @@ export function listOrder(spec: Pick<ListSpec<never>, 'sorts' | 'defaultSort'>, 
   return { key, dir }
 }
 
-export function runList<F extends Paging, S extends SelectedFields>(db: Db, spec: ListSpec<F, S>, params: F): ListResult<ListRow<S>> {
-  const { table } = spec
+/**
+ * The expressions a list is ordered by: the sort key, then the id, so paging is stable. An index on
+ * the key's column alone holds exactly this order (SQLite ends every index with the rowid).
+ */
+export function orderTerms(spec: Pick<ListSpec<never>, 'sorts' | 'table'>, key: string): Array<SQLiteColumn | SQL> {
+  return [spec.sorts[key], spec.table.id]
+}
+
+/** `ORDER BY` for a list's key and direction (the CSV export walks the same order). */
+export function orderBy(spec: Pick<ListSpec<never>, 'sorts' | 'table'>, key: string, dir: 'asc' | 'desc') {
+  const by = dir === 'asc' ? asc : desc
+  return orderTerms(spec, key).map((term) => by(term))
+}
+
+// Anchors: the sort values of rows already served, by their place in the list, per list, filter and
+// sort. A page next to one is read from it by its sort values (keyset paging: an index seek, then
+// the page) instead of walking every row before it; a page nearer the end than the start is walked
+// from the end. So scrolling on through a deep list, or jumping to its end, costs what the first
+// page does. Kept on the same terms as totals: dropped on any write here, and after 30 s.
+interface Anchors {
+  at: number
+  version: number
+  rows: Map<number, unknown[]>
+}
+const anchorsByList = new Map<string, Anchors>()
+const MAX_ANCHOR_LISTS = 200
+const MAX_ANCHORS = 5_000
+
+/** Where a page is read from: the list's start or end, or just past a served row. */
+interface Walk {
+  /** Walks the list's order backwards (the page's rows are then put back in order). */
+  reversed: boolean
+  /** Rows to skip from where the walk starts. */
+  skip: number
+  /** The sort values of the row the walk starts after, if from an anchor. */
+  after: unknown[] | null
+}
+
+/**
+ * The cheapest walk to rows [offset, offset + limit): from the start, from the end (when the total is
+ * known exactly), or on from the nearest anchor on either side.
+ */
+function chooseWalk(offset: number, limit: number, total: number | null, anchors: Map<number, unknown[]> | undefined): Walk {
+  let best: Walk & { cost: number } = { reversed: false, skip: offset, after: null, cost: offset }
+  if (total !== null) {
+    const fromEnd = Math.max(0, total - offset - limit)
+    if (fromEnd < best.cost) best = { reversed: true, skip: fromEnd, after: null, cost: fromEnd }
+  }
+  for (const [at, values] of anchors ?? []) {
+    if (at < offset && offset - at - 1 < best.cost) best = { reversed: false, skip: offset - at - 1, after: values, cost: offset - at - 1 }
+    if (at >= offset + limit && at - offset - limit < best.cost) best = { reversed: true, skip: at - offset - limit, after: values, cost: at - offset - limit }
+  }
+  return best
+}
+
+/** Whether SQLite can seek to an anchor of this order: every term a column the walk reads, none null where it matters. */
+function anchorable(spec: Pick<ListSpec<never>, 'table'>, terms: Array<SQLiteColumn | SQL>) {
+  // A term on a joined table would make SQLite choose its plan across both tables, badly; an
+  // expression (a count) has no index to seek in; a nullable column sorts its nulls apart.
+  return terms.every((t) => is(t, Column) && t.table === spec.table && t.notNull)
+}
+
+/** Rows a sort without an index may order: computed and sorted whole, in about 10 ms. */
+export const COSTLY_SORT_ROWS = 5_000
+
+function filtersOf<F>(spec: ListSpec<F>, params: F) {
   const conditions = spec.where(params).filter((c) => c !== undefined)
   const where = conditions.length ? and(...conditions) : undefined
-  const filter = where ? dialect.sqlToQuery(where) : { sql: '', params: [] }
+  return { where, filter: where ? dialect.sqlToQuery(where) : { sql: '', params: [] as unknown[] } }
+}
+
+/** The sort keys a list offers with these filters: every indexed one, the rest only over few rows. */
+export function offeredSorts<F extends Paging>(db: Db, spec: ListSpec<F>, query: F): string[] {
+  const params = spec.refine ? spec.refine(db, query) : query
+  const { where, filter } = filtersOf(spec, params)
+  const few = () => listTotal(db, spec, params, where, filter).total <= COSTLY_SORT_ROWS
+  let small: boolean | undefined
+  return Object.keys(spec.sorts).filter((k) => !spec.costlySorts?.includes(k) || (small ??= few()))
+}
+
+export function runList<F extends Paging, S extends SelectedFields>(db: Db, spec: ListSpec<F, S>, query: F): ListResult<ListRow<S>> {
+  const { table } = spec
+  const params = spec.refine ? spec.refine(db, query) : query
+  const { where, filter } = filtersOf(spec, params)
   const { key, dir } = listOrder(spec, params)
+  const { total, totalCapped } = listTotal(db, spec, params, where, filter)
+  if (spec.costlySorts?.includes(key) && (totalCapped || total > COSTLY_SORT_ROWS)) {
+    throw Response.json(
+      { error: 'Invalid query', issues: [{ path: 'sort', message: `Sorting by ${key} needs filters that leave at most ${COSTLY_SORT_ROWS.toLocaleString('en-US')} rows; this view has ${total.toLocaleString('en-US')}.` }] },
+      { status: 400 },
+    )
+  }
+
+  const terms = orderTerms(spec, key)
+  const placeholders = spec.placeholders?.(params) ?? {}
+  const listKey = `${getTableName(table)}|${key} ${dir}|${filter.sql}|${JSON.stringify(filter.params)}|${JSON.stringify(placeholders)}`
+  const canAnchor = anchorable(spec, terms)
+  let anchors = canAnchor ? anchorsByList.get(listKey) : undefined
+  if (anchors && (anchors.version !== writeVersion || Date.now() - anchors.at > TOTAL_TTL_MS)) {
+    anchorsByList.delete(listKey)
+    anchors = undefined
+  }
+
+  const limit = totalCapped ? params.limit : Math.max(0, Math.min(params.limit, total - params.offset))
+  if (limit === 0) return { rows: [], total, offset: params.offset, limit: params.limit, totalCapped }
+  const walk = chooseWalk(params.offset, limit, totalCapped ? null : total, anchors?.rows)
+  // The direction SQLite walks in: the list's, or the other way for a walk from the end.
+  const walkDir = walk.reversed === (dir === 'asc') ? 'desc' : 'asc'
 
   const lists = pageStatements(db)
   const statements = lists.get(spec) ?? new Map<string, PageStatement>()
   lists.set(spec, statements)
-  const shape = `${key} ${dir} ${filter.sql}`
+  const shape = `${key} ${walkDir} ${walk.after ? 'after' : 'start'} ${filter.sql}`
   let statement = statements.get(shape)
   if (!statement) {
     const shared = where && parameterized(filter.sql, filter.params)
-    const by = dir === 'asc' ? asc : desc
-    // The id breaks ties so paging is stable.
-    const order = [by(spec.sorts[key]), by(table.id)]
+    // Past an anchor: a row value comparison that SQLite answers with a seek in the (key, …, id) index.
+    const after = walk.after
+      ? sql`(${sql.join(terms, sql`, `)}) ${sql.raw(walkDir === 'asc' ? '>' : '<')} (${sql.join(
+          terms.map((_, i) => sql.placeholder(`a${i}`)),
+          sql`, `,
+        )})`
+      : undefined
+    const order = orderBy(spec, key, walkDir)
+    const join = spec.sortJoins?.[key] ?? ((q: ListSelect) => q)
     // Page over ids first (an index walk), then fetch the full rows for just that window.
-    const window = spec
-      .from(db.select({ id: table.id }).from(table).$dynamic())
-      .where(shared ?? where)
+    const window = join(db.select({ id: table.id }).from(table).$dynamic())
+      .where(and(shared ?? where, after))
       .orderBy(...order)
       .limit(sql.placeholder('limit'))
       .offset(sql.placeholder('offset'))
     // Widened to any selection for the join function; the rows are typed from `spec.select` below.
-    const selection: SelectedFields = spec.select
+    // The order's terms come back too (unmapped, as stored), to anchor later pages on.
+    const selection: SelectedFields = { ...spec.select, ...Object.fromEntries(terms.map((t, i) => [`__order${i}`, sql`${t}`])) }
     statement = spec.from(db.select(selection).from(table).$dynamic()).where(inArray(table.id, window)).orderBy(...order).prepare()
     if (shared !== null) {
       // Every distinct filter shape adds one: keep the newest couple of hundred.
@@ -218,10 +357,35 @@ export function runList<F extends Paging, S extends SelectedFields>(db: Db, spec
       statements.set(shape, statement)
     }
   }
-  const values: Record<string, unknown> = { ...spec.placeholders?.(params), limit: params.limit, offset: params.offset }
+  const values: Record<string, unknown> = { ...placeholders, limit, offset: walk.skip }
   filter.params.forEach((value, i) => (values[`w${i}`] = value))
-  const rows = statement.all(values) as ListRow<S>[]
+  walk.after?.forEach((value, i) => (values[`a${i}`] = value))
+  const found = statement.all(values) as Array<Record<string, unknown>>
+  if (walk.reversed) found.reverse()
 
+  const rows = found.map((row) => {
+    const out: Record<string, unknown> = {}
+    for (const k in row) if (!k.startsWith('__order')) out[k] = row[k]
+    return out as ListRow<S>
+  })
+  if (canAnchor && found.length) {
+    if (!anchors) {
+      if (anchorsByList.size >= MAX_ANCHOR_LISTS) anchorsByList.delete(anchorsByList.keys().next().value as string)
+      anchors = { at: Date.now(), version: writeVersion, rows: new Map() }
+      anchorsByList.set(listKey, anchors)
+    }
+    if (anchors.rows.size < MAX_ANCHORS) {
+      const valuesOf = (row: Record<string, unknown>) => terms.map((_, i) => row[`__order${i}`])
+      anchors.rows.set(params.offset, valuesOf(found[0]))
+      anchors.rows.set(params.offset + found.length - 1, valuesOf(found[found.length - 1]))
+    }
+  }
+  return { rows, total, offset: params.offset, limit: params.limit, totalCapped }
+}
+
+/** The list's total: kept, counted up to a cap, or counted (and kept a while). */
+function listTotal<F extends Paging>(db: Db, spec: ListSpec<F>, params: F, where: SQL | undefined, filter: { sql: string; params: unknown[] }) {
+  const { table } = spec
   let total: number
   let totalCapped = false
   const kept = spec.keptTotal?.(params)
@@ -230,17 +394,22 @@ export function runList<F extends Paging, S extends SelectedFields>(db: Db, spec
     total = keptRows(db).get({ name: getTableName(table) })?.rows ?? 0
   } else if (kept) {
     total = kept(db)
-  } else if (cap !== null) {
-    // Counts the first cap + 1 matches only: a few ms however many there are.
-    const first = db.select({ one: sql`1` }).from(table).where(where).limit(cap + 1).as('first')
-    const n = db.select({ n: count() }).from(first).get()?.n ?? 0
-    totalCapped = n > cap
-    total = Math.min(n, cap)
   } else {
-    const cacheKey = `${getTableName(table)}|${filter.sql}|${JSON.stringify(filter.params)}`
+    const cacheKey = `${getTableName(table)}|${cap}|${filter.sql}|${JSON.stringify(filter.params)}`
     const hit = totals.get(cacheKey)
     if (hit && hit.version === writeVersion && Date.now() - hit.at < TOTAL_TTL_MS) {
       total = hit.total
+      totalCapped = cap !== null && total > cap
+      total = Math.min(total, cap ?? total)
+    } else if (cap !== null) {
+      // Counts the first cap + 1 matches only (tens of ms for a broad word over millions of events;
+      // kept as a total is, since every page of the search would count them again).
+      const first = db.select({ one: sql`1` }).from(table).where(where).limit(cap + 1).as('first')
+      const n = db.select({ n: count() }).from(first).get()?.n ?? 0
+      if (totals.size >= MAX_CACHED) totals.delete(totals.keys().next().value as string)
+      totals.set(cacheKey, { total: n, at: Date.now(), version: writeVersion })
+      totalCapped = n > cap
+      total = Math.min(n, cap)
     } else {
       // Counted over the listed table alone, as the filters read only its columns (and subqueries),
       // and a left join on a key adds no rows. SQLite keeps left joins in an aggregate, where each
@@ -251,18 +420,31 @@ export function runList<F extends Paging, S extends SelectedFields>(db: Db, spec
       totals.set(cacheKey, { total, at: Date.now(), version: writeVersion })
     }
   }
-  return { rows, total, offset: params.offset, limit: params.limit, totalCapped }
+  return { total, totalCapped }
+}
+
+function rawQuery(request: Request) {
+  const raw: Record<string, string | string[]> = {}
+  for (const [k, v] of new URL(request.url).searchParams) {
+    const prev = raw[k]
+    raw[k] = prev === undefined ? v : Array.isArray(prev) ? [...prev, v] : [prev, v]
+  }
+  return raw
+}
+
+/**
+ * The sort keys a list page offers for the filters in its address (`offeredSorts`); with filters the
+ * list route would refuse, the indexed ones alone.
+ */
+export function pageSorts<S extends z.ZodType, F extends Paging>(db: Db, spec: ListSpec<F>, schema: S, request: Request, extra: Partial<F> = {}): string[] {
+  const parsed = schema.safeParse(rawQuery(request))
+  if (!parsed.success) return Object.keys(spec.sorts).filter((k) => !spec.costlySorts?.includes(k))
+  return offeredSorts(db, spec, { ...(parsed.data as F), ...extra })
 }
 
 /** Parses a list route's query string: 400 with the issues on anything it does not accept. */
 export function parseQuery<S extends z.ZodType>(schema: S, request: Request): z.infer<S> {
-  const url = new URL(request.url)
-  const raw: Record<string, string | string[]> = {}
-  for (const [k, v] of url.searchParams) {
-    const prev = raw[k]
-    raw[k] = prev === undefined ? v : Array.isArray(prev) ? [...prev, v] : [prev, v]
-  }
-  const parsed = schema.safeParse(raw)
+  const parsed = schema.safeParse(rawQuery(request))
   if (!parsed.success) {
     throw Response.json(
       { error: 'Invalid query', issues: parsed.error.issues.map((i) => ({ path: i.path.join('.'), message: i.message })) },

@@ -20,6 +20,7 @@ import {
   OUTCOMES,
   POSITIONS,
   READING_KINDS,
+  REASON_CODES,
   SHUTDOWN_INPUTS,
   VISIT_TASKS,
   TERMINALS,
@@ -63,7 +64,9 @@ export const customers = sqliteTable(
     version: integer('version').notNull().default(1),
     createdAt: createdAt(),
   },
-  (t) => [index('customers_name_idx').on(t.name)],
+  // A list sorted by a column walks its index (column, then the rowid: the list's tie-break); a
+  // list filtered by one and in its own order walks (column, own order). So here and below.
+  (t) => [index('customers_name_idx').on(t.name), index('customers_kind_idx').on(t.kind), index('customers_kind_name_idx').on(t.kind, t.name)],
 )
 
 export const sites = sqliteTable(
@@ -98,6 +101,13 @@ export const sites = sqliteTable(
     index('sites_customer_idx').on(t.customerId, t.name),
     index('sites_region_idx').on(t.region),
     index('sites_monitoring_idx').on(t.monitoringCompanyId),
+    // Each list order an index walk, as is a page of visits, detectors or units sorted by their
+    // site's name or town.
+    index('sites_name_idx').on(t.name),
+    index('sites_city_idx').on(t.city),
+    index('sites_code_basis_idx').on(t.codeBasis),
+    index('sites_code_basis_name_idx').on(t.codeBasis, t.name),
+    index('sites_delay_policy_idx').on(t.delayPolicySeconds),
   ],
 )
 
@@ -127,7 +137,7 @@ export const units = sqliteTable(
     version: integer('version').notNull().default(1),
     createdAt: createdAt(),
   },
-  (t) => [index('units_site_idx').on(t.siteId, t.tag)],
+  (t) => [index('units_site_idx').on(t.siteId, t.tag), index('units_tag_idx').on(t.tag)],
 )
 
 // A listing: what one make of module is rated for. Values are set per model by the office from the
@@ -234,17 +244,44 @@ export const detectors = sqliteTable(
     index('detectors_unit_idx').on(t.unitId),
     index('detectors_site_idx').on(t.siteId, t.tag),
     index('detectors_customer_idx').on(t.customerId),
+    // The Detectors list sorted by a column walks that column's index (then the rowid, the list's
+    // tie-break); filtered by one, in its own order (risk), it walks (column, risk score).
     index('detectors_state_idx').on(t.state, t.riskScore),
+    index('detectors_state_sort_idx').on(t.state),
     index('detectors_due_idx').on(t.dueStatus, t.nextDueOn),
+    index('detectors_due_sort_idx').on(t.dueStatus),
+    index('detectors_due_risk_idx').on(t.dueStatus, t.riskScore),
     index('detectors_next_due_idx').on(t.nextDueOn),
     index('detectors_risk_idx').on(t.riskScore),
     index('detectors_env_idx').on(t.environment, t.housing),
+    index('detectors_env_sort_idx').on(t.environment),
+    index('detectors_env_risk_idx').on(t.environment, t.riskScore),
+    index('detectors_housing_risk_idx').on(t.housing, t.riskScore),
     index('detectors_delay_idx').on(t.delayAgreement),
+    index('detectors_delay_risk_idx').on(t.delayAgreement, t.riskScore),
+    index('detectors_loop_idx').on(t.loopVerdict),
+    index('detectors_loop_risk_idx').on(t.loopVerdict, t.riskScore),
+    index('detectors_position_idx').on(t.position),
+    index('detectors_last_functional_idx').on(t.lastFunctionalOn),
+    index('detectors_installed_idx').on(t.installedOn),
     index('detectors_tag_idx').on(t.tag),
     index('detectors_assigned_idx').on(t.assignedTo),
     // Per-customer and per-site overdue and trouble counts, which the lists sort on.
     index('detectors_customer_due_idx').on(t.customerId, t.dueStatus, t.state),
+    index('detectors_customer_state_idx').on(t.customerId, t.state),
     index('detectors_site_due_idx').on(t.siteId, t.dueStatus),
+    // Triage by one reason: the open detectors holding it, by score. Matched by the queue's own
+    // `like` on the stored codes (app/.server/lists/triage.ts), written with the code as a literal.
+    // Triage's open queue in each order its page offers: a walk that never steps over a closed one.
+    index('detectors_open_risk_idx').on(t.riskScore).where(sql.raw(`risk_reasons <> ''`)),
+    index('detectors_open_state_idx').on(t.state).where(sql.raw(`risk_reasons <> ''`)),
+    index('detectors_open_due_idx').on(t.dueStatus).where(sql.raw(`risk_reasons <> ''`)),
+    index('detectors_open_tag_idx').on(t.tag).where(sql.raw(`risk_reasons <> ''`)),
+    ...REASON_CODES.map((code) =>
+      index(`detectors_reason_${code.replaceAll('-', '_')}_idx`)
+        .on(t.riskScore)
+        .where(sql.raw(`risk_reasons like '%,${code},%'`)),
+    ),
   ],
 )
 
@@ -299,6 +336,11 @@ export const visits = sqliteTable(
     index('visits_site_idx').on(t.siteId, t.scheduledOn),
     index('visits_date_idx').on(t.scheduledOn, t.status),
     index('visits_tech_idx').on(t.technicianId, t.scheduledOn),
+    // Sorted by kind or status: (column, rowid); filtered by one, in the list's own order (the day).
+    index('visits_kind_idx').on(t.kind),
+    index('visits_kind_day_idx').on(t.kind, t.scheduledOn),
+    index('visits_status_idx').on(t.status),
+    index('visits_status_day_idx').on(t.status, t.scheduledOn),
   ],
 )
 

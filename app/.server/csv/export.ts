@@ -1,12 +1,12 @@
 import Database from 'better-sqlite3'
 import { stringify } from 'csv-stringify'
-import { and, asc, Column, desc, eq, fillPlaceholders, is, SQL } from 'drizzle-orm'
+import { and, Column, eq, fillPlaceholders, is, SQL } from 'drizzle-orm'
 import type { SelectedFields } from 'drizzle-orm/sqlite-core'
 import { Readable } from 'node:stream'
 import type { ReadableStream as WebStream } from 'node:stream/web'
 import { z } from 'zod'
 import type { Db } from '../db'
-import { listOrder, parseQuery, type ListSpec } from '../list-query'
+import { listOrder, orderBy, parseQuery, type ListSpec } from '../list-query'
 import { customerList, customerQuery } from '../lists/customers'
 import { deviceList, deviceQuery } from '../lists/devices'
 import { eventList, eventQuery, searchIsBroad } from '../lists/events'
@@ -117,15 +117,14 @@ function decoderOf(field: unknown): (v: unknown) => unknown {
  * conditions and order, without the page window.
  */
 function fullStatement(db: Db, list: ExportList, params: Record<string, unknown>) {
-  const spec = list.spec as ListSpec<Record<string, unknown>>
+  const spec = list.spec as unknown as ListSpec<Record<string, unknown>>
   const conditions = spec.where(params).filter((c) => c !== undefined)
   const { key, dir } = listOrder(spec, params as { sort?: string; dir?: 'asc' | 'desc' })
-  const by = dir === 'asc' ? asc : desc
   const selection: SelectedFields = spec.select
   const query = spec
     .from(db.select(selection).from(spec.table).$dynamic())
     .where(conditions.length ? and(...conditions) : undefined)
-    .orderBy(by(spec.sorts[key]), by(spec.table.id))
+    .orderBy(...orderBy(spec, key, dir))
     .toSQL()
   return { sql: query.sql, params: fillPlaceholders(query.params, spec.placeholders?.(params) ?? {}), columns: Object.keys(spec.select), decoders: Object.values(spec.select).map(decoderOf) }
 }

@@ -1,8 +1,8 @@
-import { eq, gte, inArray, lte, type SQL } from 'drizzle-orm'
+import { eq, gte, inArray, lte, sql, type SQL } from 'drizzle-orm'
 import { z } from 'zod'
 import { DETECTOR_STATES, DUE_STATUSES, ENVIRONMENTS, HOUSINGS, DELAY_AGREEMENTS, LOOP_VERDICTS, POSITIONS } from '~/domain/vocabulary'
 import { customers, detectors, sites, units } from '../schema'
-import { ftsIds, ftsQuery, idParam, inList, isoDate, multi, pagingSchema, type ListRow, type ListSpec } from '../list-query'
+import { ftsIds, ftsQuery, idParam, inList, isoDate, multi, pagingSchema, wordIsBroad, type ListRow, type ListSpec } from '../list-query'
 
 const select = {
   id: detectors.id,
@@ -48,14 +48,21 @@ export const deviceQuery = pagingSchema(Object.keys(SORTS) as [keyof typeof SORT
   installedTo: isoDate.optional(),
   minRisk: z.coerce.number().int().min(0).optional(),
 })
-export type DeviceQuery = z.infer<typeof deviceQuery>
+// `broad` is set from the database (`wordIsBroad`), never taken from the client.
+export type DeviceQuery = z.infer<typeof deviceQuery> & { broad?: boolean }
 
 export type DeviceListRow = ListRow<typeof select>
 
-/** Detectors whose words (tag, serial, site, unit…) start with those of `q`. */
-export function detectorSearch(q: string | undefined): SQL | undefined {
+/**
+ * Detectors whose words (tag, serial, site, unit…) start with those of `q`. A broad word (most of the
+ * fleet's detectors hold "rtu") is tested row by row along the list's order: the unary plus keeps
+ * SQLite from fetching every match first and sorting them (180 ms, against 20 ms for the walk).
+ */
+export function detectorSearch(q: string | undefined, broad = false): SQL | undefined {
   const fts = q ? ftsQuery(q) : null
-  return fts ? inArray(detectors.id, ftsIds('detector', fts)) : undefined
+  if (!fts) return undefined
+  // Raw SQL for the unary plus, which the builder has no word for.
+  return broad ? sql`+${detectors.id} in ${ftsIds('detector', fts)}` : inArray(detectors.id, ftsIds('detector', fts))
 }
 
 export const deviceList: ListSpec<DeviceQuery, typeof select> = {
@@ -70,8 +77,14 @@ export const deviceList: ListSpec<DeviceQuery, typeof select> = {
   select,
   sorts: SORTS,
   defaultSort: { key: 'risk', dir: 'desc' },
+  sortJoins: {
+    site: (q) => q.innerJoin(sites, eq(sites.id, detectors.siteId)),
+    customer: (q) => q.innerJoin(customers, eq(customers.id, detectors.customerId)),
+    unit: (q) => q.innerJoin(units, eq(units.id, detectors.unitId)),
+  },
+  refine: (db, f) => ({ ...f, broad: wordIsBroad(db, 'detector', f.q) }),
   where: (f) => [
-    detectorSearch(f.q),
+    detectorSearch(f.q, f.broad),
     inList(detectors.state, f.state),
     inList(detectors.dueStatus, f.due),
     inList(detectors.environment, f.environment),

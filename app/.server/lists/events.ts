@@ -91,6 +91,12 @@ export const eventList: ListSpec<EventQuery, typeof select> = {
   select,
   sorts: SORTS,
   defaultSort: { key: 'occurredAt', dir: 'desc' },
+  // Within one site or detector only (eventQuery): a few hundred rows, sorted whole.
+  sortJoins: {
+    detector: (q) => q.leftJoin(detectors, eq(detectors.id, events.detectorId)),
+    site: (q) => q.leftJoin(sites, eq(sites.id, events.siteId)),
+    by: (q) => q.leftJoin(users, eq(users.id, events.userId)),
+  },
   countCap: (f) => (f.broad ? BROAD_COUNT_CAP : null),
   where(f) {
     const fts = f.q ? ftsQuery(f.q) : null

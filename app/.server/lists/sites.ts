@@ -82,6 +82,13 @@ export const siteList: ListSpec<SiteQuery, typeof select> = {
   select,
   sorts: SORTS,
   defaultSort: { key: 'name', dir: 'asc' },
+  sortJoins: {
+    customer: (q) => q.innerJoin(customers, eq(customers.id, sites.customerId)),
+    monitoring: (q) => q.leftJoin(monitoringCompanies, eq(monitoringCompanies.id, sites.monitoringCompanyId)),
+  },
+  // Counted per site: over a customer's sites, not all of them.
+  // The monitoring company is a name on a nullable key: every site is sorted by it.
+  costlySorts: ['units', 'detectors', 'overdue', 'nextVisitOn', 'monitoring'],
   placeholders: (f) => ({ today: f.today }),
   where(f) {
     const fts = f.q ? ftsQuery(f.q) : null

@@ -1,4 +1,4 @@
-import { and, count, eq, isNotNull, isNull, like, ne, or, sql } from 'drizzle-orm'
+import { and, count, eq, isNotNull, isNull, ne, or, sql } from 'drizzle-orm'
 import { z } from 'zod'
 import { decodeReasons } from '~/domain/derive'
 import { overdueTasks } from '~/domain/schedule'
@@ -7,13 +7,15 @@ import { REASON_CODES, type ReasonCode } from '~/domain/vocabulary'
 import type { Db } from '../db'
 import { detectors, reasonCounts as reasonCountsTable, users } from '../schema'
 import { perDb } from '../repos/statements'
-import { idParam, multi, orNull, pagingSchema, runList, type ListResult, type ListRow, type ListSpec } from '../list-query'
+import { idParam, multi, orNull, pagingSchema, runList, type ListResult, type ListRow, type ListSpec, wordIsBroad } from '../list-query'
 import { detectorSearch, deviceList } from './devices'
 
 export { REASON_CODES }
 
-// Each reason filters on the codes the derivation stored (',a,b,'), never on a restated rule.
-const hasReason = (code: ReasonCode) => like(detectors.riskReasons, `%,${code},%`)
+// Each reason filters on the codes the derivation stored (',a,b,'), never on a restated rule. The
+// pattern is written as a literal (a code from REASON_CODES, checked by the query schema) so that
+// SQLite matches it to that reason's partial index (detectors_reason_*_idx in the schema).
+const hasReason = (code: ReasonCode) => sql`${detectors.riskReasons} like ${sql.raw(`'%,${code},%'`)}`
 
 export const triageQuery = pagingSchema(Object.keys(deviceList.sorts) as [string, ...string[]]).extend({
   reason: multi(REASON_CODES),
@@ -21,7 +23,8 @@ export const triageQuery = pagingSchema(Object.keys(deviceList.sorts) as [string
   assignedTo: idParam.optional(),
   customer: idParam.optional(),
 })
-export type TriageQuery = z.infer<typeof triageQuery>
+// `broad` is set from the database (`wordIsBroad`), never taken from the client.
+export type TriageQuery = z.infer<typeof triageQuery> & { broad?: boolean }
 
 const select = {
   ...deviceList.select,
@@ -65,6 +68,10 @@ export const triageSpec: ListSpec<TriageQuery, typeof select> = {
   ...deviceList,
   from: (q) => deviceList.from(q).leftJoin(users, eq(users.id, detectors.assignedTo)),
   select,
+  refine: (db, f) => ({ ...f, broad: wordIsBroad(db, 'detector', f.q) }),
+  // The page offers risk, tag, site, state and due, each an index walk over the open queue (and
+  // customer, a walk by name); the other detector orders only over a few thousand rows.
+  costlySorts: ['unit', 'position', 'nextDueOn', 'environment', 'housing', 'delay', 'loop', 'lastFunctionalOn', 'installedOn'],
   // The plain open queue, whole or by one reason, is a kept total: no count over the open detectors.
   keptTotal(f) {
     if (f.q || f.assignedTo || f.customer || f.acknowledged !== 'hide' || (f.reason?.length ?? 0) > 1) return null
@@ -74,14 +81,15 @@ export const triageSpec: ListSpec<TriageQuery, typeof select> = {
     }
   },
   where: (f) => [
-    // Open means the derivation gave the detector a reason; the same test the kept counts use.
-    ne(detectors.riskReasons, ''),
+    // Open means the derivation gave the detector a reason; the same test the kept counts use. A
+    // literal, so SQLite matches the open queue's partial indexes (detectors_open_*_idx).
+    sql`${detectors.riskReasons} <> ''`,
     f.acknowledged === 'hide' ? isNull(detectors.acknowledgedAt) : undefined,
     f.acknowledged === 'only' ? isNotNull(detectors.acknowledgedAt) : undefined,
     f.reason?.length ? or(...f.reason.map(hasReason)) : undefined,
     f.assignedTo ? eq(detectors.assignedTo, f.assignedTo) : undefined,
     f.customer ? eq(detectors.customerId, f.customer) : undefined,
-    detectorSearch(f.q),
+    detectorSearch(f.q, f.broad),
   ],
 }
 

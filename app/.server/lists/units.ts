@@ -53,6 +53,12 @@ export const unitList: ListSpec<UnitQuery, typeof select> = {
   select,
   sorts: SORTS,
   defaultSort: { key: 'site', dir: 'asc' },
+  sortJoins: {
+    site: (q) => q.innerJoin(sites, eq(sites.id, units.siteId)),
+    customer: (q) => q.innerJoin(sites, eq(sites.id, units.siteId)).innerJoin(customers, eq(customers.id, sites.customerId)),
+  },
+  // Units are listed within a site or a customer; these orders have no index over all of them.
+  costlySorts: ['kind', 'location', 'shutdownInput', 'supplyCfm', 'returnCfm', 'storeysServed', 'detectors'],
   where(f) {
     const fts = f.q ? ftsQuery(f.q) : null
     return [

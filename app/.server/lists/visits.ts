@@ -61,6 +61,14 @@ export const visitList: ListSpec<VisitQuery, typeof select> = {
   select,
   sorts: SORTS,
   defaultSort: { key: 'scheduledOn', dir: 'desc' },
+  sortJoins: {
+    site: (q) => q.innerJoin(sites, eq(sites.id, visits.siteId)),
+    city: (q) => q.innerJoin(sites, eq(sites.id, visits.siteId)),
+    customer: (q) => q.innerJoin(sites, eq(sites.id, visits.siteId)).innerJoin(customers, eq(customers.id, sites.customerId)),
+    technician: (q) => q.leftJoin(users, eq(users.id, visits.technicianId)),
+  },
+  // A name on a nullable key and counts per visit: over a period's or a site's visits, not all.
+  costlySorts: ['technician', 'detectors', 'notified'],
   where(f) {
     const fts = f.q ? ftsQuery(f.q) : null
     return [
