@@ -36,7 +36,11 @@ export function deviceReport(db: Db, id: number, today: string) {
     storeysServed: d.storeysServed,
     sharedPlenum: d.sharedPlenum,
     areaDetection: d.areaDetection,
-    installed: { supply: siblings.some((s) => s.position === 'supply'), return: siblings.some((s) => s.position === 'return') },
+    installed: {
+      supply: siblings.some((s) => s.position === 'supply'),
+      return: siblings.some((s) => s.position === 'return'),
+      perStoreyReturns: d.storeyReturnDetectors ?? 0,
+    },
   })
   return {
     device: d,

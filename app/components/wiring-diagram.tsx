@@ -56,7 +56,7 @@ interface Correction {
 }
 
 /** The recorded wiring against a correct supervised loop for this module's labelling. */
-export function wiringCorrections(p: Pick<WiringDiagramProps, 'alarmTerminal' | 'supervisoryTerminal' | 'eolPlacement' | 'supervisoryLabelledIn'>): Correction[] {
+function wiringCorrections(p: Pick<WiringDiagramProps, 'alarmTerminal' | 'supervisoryTerminal' | 'eolPlacement' | 'supervisoryLabelledIn'>): Correction[] {
   const correct = correctTerminals(p.supervisoryLabelledIn)
   const out: Correction[] = []
   if (p.alarmTerminal !== correct.alarmTerminal) {

@@ -43,9 +43,9 @@ export interface PowerBudget {
 //   0 V up to 20 V          → at most 5.0 × Vmax VA (from memory)
 //   over 20 V up to 30 V    → at most 100 VA (NEC Chapter 9 Table 11(A), read in a reproduction)
 /** NEC Chapter 9 Table 11(A): at most 5.0 × Vmax VA at 20 V and below (from memory). */
-export const CLASS2_VA_PER_VOLT_TO_20V = 5
+const CLASS2_VA_PER_VOLT_TO_20V = 5
 /** NEC Chapter 9 Table 11(A): the voltage up to which the 5.0 × Vmax limit applies (from memory). */
-export const CLASS2_LOW_BAND_VOLTS = 20
+const CLASS2_LOW_BAND_VOLTS = 20
 /** NEC Chapter 9 Table 11(A): at most 100 VA over 20 V up to 30 V. */
 export const CLASS2_MAX_VA = 100
 /** NEC Chapter 9 Table 11(A): the top of the band this check covers; above it the limits are far lower (from memory). */

@@ -5,7 +5,8 @@
 import { z } from 'zod'
 import { AWG_SIZES } from './conductors'
 import { dateProblem } from './dates'
-import { CLASS2_MAX_VA } from './power'
+import { delayLimitCaution } from './delay-audit'
+import { class2LimitVa, class2Source, CONTROL_VOLTS } from './power'
 import {
   CODE_BASES,
   CUSTOMER_KINDS,
@@ -20,11 +21,7 @@ import {
   UNIT_KINDS,
 } from './vocabulary'
 
-/**
- * NFPA 72: a trouble signal is to be annunciated within 200 s [read, secondary]. A longer module delay
- * may be a policy agreed with the monitoring company, but it is flagged, never assumed compliant.
- */
-export const TROUBLE_REPORTING_SECONDS = 200
+// The NFPA 72 limit on reporting a trouble, and its caution, live in one place: delay-audit.ts.
 
 // The longest delay the forms take: module switches offer minutes, not hours (common practice).
 const MAX_DELAY_SECONDS = 3600
@@ -166,6 +163,8 @@ export const unitFields = {
   ductHeightIn: optional(ductInches),
   ductDiameterIn: optional(ductInches),
   storeysServed: required({ min: 1, max: 200, unit: 'storeys' }),
+  // Detectors at each storey's return before the common return or riser; blank when not recorded.
+  storeyReturnDetectors: optional({ min: 0, max: 200, unit: 'detectors' }),
   sharedPlenum: flag,
   areaDetection: flag,
   transformerVa: required({ min: 10, max: 1000, unit: 'VA' }),
@@ -205,6 +204,10 @@ export const detectorFields = {
   delaySeconds: optional({ min: 0, max: MAX_DELAY_SECONDS, unit: 's' }),
   delayObservedOn: optionalDay,
   eolOhms: required({ min: 100, max: 100_000, unit: 'Ω' }),
+  // Resistor tolerances are marked from 0.1 % to 20 % (common practice); blank means the usual 5 %.
+  eolTolerancePct: optional({ min: 0.1, max: 20, unit: '%', whole: false }),
+  // The panel input's alarm threshold from its documentation; blank means the common-practice 100 Ω.
+  alarmThresholdOhms: optional({ min: 1, max: 10_000, unit: 'Ω' }),
   eolPlacement: choice(EOL_PLACEMENTS, 'EOL resistor placement'),
   alarmTerminal: choice(TERMINALS, 'alarm contact terminal'),
   supervisoryTerminal: choice(TERMINALS, 'supervisory contact terminal'),
@@ -283,32 +286,23 @@ const asNumber = (v: unknown): number | null => {
   return Number.isFinite(n) ? n : null
 }
 
-const delayCaution = (field: string, value: unknown): Caution[] => {
-  const seconds = asNumber(value)
-  return seconds !== null && seconds > TROUBLE_REPORTING_SECONDS
-    ? [
-        {
-          field,
-          message: `Longer than the ${TROUBLE_REPORTING_SECONDS} s NFPA 72 gives for reporting a trouble. Keep it only as agreed with the monitoring company, and verify with the AHJ.`,
-        },
-      ]
-    : []
-}
-
 export function siteCautions(s: { delayPolicySeconds?: unknown }): Caution[] {
-  return delayCaution('delayPolicySeconds', s.delayPolicySeconds)
+  const message = delayLimitCaution({ policySeconds: asNumber(s.delayPolicySeconds) })
+  return message ? [{ field: 'delayPolicySeconds', message }] : []
 }
 
 export function unitCautions(u: { transformerVa?: unknown }): Caution[] {
   const va = asNumber(u.transformerVa)
-  // NEC Chapter 9 Table 11(A): a Class 2 source over 20 V up to 30 V is limited to 100 VA [read].
-  return va !== null && va > CLASS2_MAX_VA
-    ? [{ field: 'transformerVa', message: `Over the ${CLASS2_MAX_VA} VA Class 2 limit for a 24 V control circuit: have the circuit checked under licensed practice.` }]
+  // A unit's control transformer is 24 VAC here: its Class 2 limit is read from the table by voltage.
+  const limit = class2LimitVa(CONTROL_VOLTS)
+  return va !== null && limit !== null && va > limit
+    ? [{ field: 'transformerVa', message: `Over the ${limit} VA Class 2 limit for a ${CONTROL_VOLTS} V control circuit (${class2Source(CONTROL_VOLTS)}): have the circuit checked under licensed practice.` }]
     : []
 }
 
 export function detectorCautions(d: { delaySeconds?: unknown; housing?: unknown; environment?: unknown }): Caution[] {
-  const out = delayCaution('delaySeconds', d.delaySeconds)
+  const delay = delayLimitCaution({ delaySeconds: asNumber(d.delaySeconds) })
+  const out: Caution[] = delay ? [{ field: 'delaySeconds', message: delay }] : []
   // Humid places put water in the tubes and on the heads (common practice); the device's instructions decide.
   if (d.environment === 'humid' && d.housing === 'standard') {
     out.push({ field: 'housing', message: 'A humid location with a standard housing: a NEMA 4 or 4X housing is the usual choice. Follow the device’s instructions.' })

@@ -42,6 +42,8 @@ const LABELS: Record<keyof DetectorForm, string> = {
   delaySeconds: 'Reporting delay set on the module',
   delayObservedOn: 'Delay seen on',
   eolOhms: 'End-of-line (EOL) resistor',
+  eolTolerancePct: 'EOL resistor tolerance',
+  alarmThresholdOhms: 'Panel input alarm threshold',
   eolPlacement: 'EOL resistor placement',
   alarmTerminal: 'Alarm contact terminal',
   supervisoryTerminal: 'Supervisory contact terminal',
@@ -138,6 +140,13 @@ export default function EditDetector({ loaderData, actionData }: Route.Component
           note="Record what is there. The panel and the alarm wiring belong to the fire alarm contractor: HVAC staff do not alter them."
         >
           <NumberField name="eolOhms" label={LABELS.eolOhms} unit="Ω" hint="As marked on the resistor, such as 15000." />
+          <NumberField name="eolTolerancePct" label={LABELS.eolTolerancePct} unit="%" decimals hint="As marked on the resistor (a gold band is 5 %). Blank means 5 %." />
+          <NumberField
+            name="alarmThresholdOhms"
+            label={LABELS.alarmThresholdOhms}
+            unit="Ω"
+            hint="From the panel's documentation, via the fire alarm contractor. Blank means 100 Ω, a common figure."
+          />
           <SelectField name="eolPlacement" label={LABELS.eolPlacement} options={PLACEMENTS} hint="In series through the supervisory contact, or straight across the pair." />
           <SelectField name="alarmTerminal" label={LABELS.alarmTerminal} options={TERMINALS} hint="Labelled as on the module." />
           <SelectField name="supervisoryTerminal" label={LABELS.supervisoryTerminal} options={TERMINALS} hint="Labelled as on the module." />

@@ -5,7 +5,8 @@ import { editableRecord, editFromRequest, monitoringChoices, siteContext } from 
 import { pageNotFound, pageRecordId } from '~/.server/repos/record-id'
 import { NumberField, RecordForm, Section, SelectField, TextAreaField, TextField, type EditAnswer } from '~/components/forms/record-form'
 import type { RouteAccess } from '~/domain/permissions'
-import { siteCautions, siteForm, TROUBLE_REPORTING_SECONDS, type SiteForm } from '~/domain/record-forms'
+import { TROUBLE_REPORTING_SECONDS } from '~/domain/delay-audit'
+import { siteCautions, siteForm, type SiteForm } from '~/domain/record-forms'
 import type { Route } from './+types/_app.sites.$siteId_.edit'
 
 export const handle = { access: { loader: 'edit:records', action: 'edit:records' } satisfies RouteAccess }

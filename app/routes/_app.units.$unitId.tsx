@@ -100,6 +100,9 @@ export default function Unit({ loaderData }: Route.ComponentProps) {
             </Fact>
             <Fact label="Duct at detectors">{ductWords}</Fact>
             <Fact label="Storeys served">{u.storeysServed}</Fact>
+            {(u.storeysServed > 1 || u.storeyReturnDetectors !== null) && (
+              <Fact label="Return detectors, one per storey">{u.storeyReturnDetectors === null ? 'Not recorded' : `${u.storeyReturnDetectors} of ${u.storeysServed} storeys`}</Fact>
+            )}
             <Fact label="Shared plenum">{u.sharedPlenum ? 'Yes' : 'No'}</Fact>
             <Fact label="Area detection">{u.areaDetection ? 'Yes, tied to the fire alarm system' : 'No'}</Fact>
             <Fact label="Transformer">{u.transformerVa} VA, 24 VAC</Fact>
@@ -212,7 +215,8 @@ export default function Unit({ loaderData }: Route.ComponentProps) {
           </h2>
           <p className="mt-1 text-sm text-ink-soft">
             Against what is installed: supply {detectors.some((d) => d.position === 'supply') ? 'yes' : 'none'}, return{' '}
-            {detectors.some((d) => d.position === 'return') ? 'yes' : 'none'}.
+            {detectors.some((d) => d.position === 'return') ? 'yes' : 'none'}
+            {u.storeysServed > 1 && `, at each storey's return ${u.storeyReturnDetectors === null ? 'not recorded' : `${u.storeyReturnDetectors} of ${u.storeysServed}`}`}.
           </p>
           <ul className="mt-3 space-y-3 text-sm">
             {requirements.items.map((i) => (

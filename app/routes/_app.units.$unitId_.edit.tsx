@@ -43,6 +43,7 @@ const LABELS: Record<keyof UnitForm, string> = {
   ductHeightIn: 'Duct height',
   ductDiameterIn: 'Duct diameter',
   storeysServed: 'Storeys served',
+  storeyReturnDetectors: 'Return detectors, one per storey',
   sharedPlenum: 'Shares a supply or return plenum with other units',
   areaDetection: 'Area smoke detection covers every space it serves',
   transformerVa: 'Control transformer',
@@ -104,7 +105,11 @@ export default function EditUnit({ loaderData, actionData }: Route.ComponentProp
         </Section>
         <Section title="What it serves" note="Read with the site's code basis to tell which detectors are required. Verify with the AHJ.">
           <NumberField name="storeysServed" label={LABELS.storeysServed} />
-          <div className="hidden sm:block" />
+          <NumberField
+            name="storeyReturnDetectors"
+            label={LABELS.storeyReturnDetectors}
+            hint="Fitted at each storey's return before the common return or riser. Leave blank if not known."
+          />
           <CheckField name="sharedPlenum" label={LABELS.sharedPlenum} wide />
           <CheckField name="areaDetection" label={LABELS.areaDetection} wide />
         </Section>

@@ -166,4 +166,44 @@ describe('editing records: checks, versions, roles, audit and derived facts', ()
     const backwards = applyEdit(data.db, 'model', office, 1, { version: 2, sensitivityLowPctFt: '3' }, TEST_TODAY)
     expect(backwards).toMatchObject({ status: 400, fieldErrors: { sensitivityHighPctFt: 'The high end must be above the low end' } })
   })
+
+  it('records detectors at each storey on a unit: the unit stops showing the per-storey line as missing', async () => {
+    // IMC 606.2.3 / NFPA 90A (2012) 6.4.2.1: a detector at each storey of a return serving two or more
+    // storeys in systems over 15,000 cfm.
+    const unit = (q().prepare("select id from units where kind = 'ahu' order by id limit 1").get() as { id: number }).id
+    const perStorey = async () => {
+      const body = await (await fetch(`${server.url}/api/units/${unit}`, { headers: { Cookie: cookie.office } })).json()
+      return body.requirements.items.find((i: { location: string }) => i.location === 'return-each-storey')?.status
+    }
+    const set = await patch(`/api/units/${unit}`, { version: version('units', unit), storeysServed: 3, returnCfm: 20_000, supplyCfm: 22_000, areaDetection: false, storeyReturnDetectors: '' })
+    expect(set.status, await set.clone().text()).toBe(200)
+    expect(await perStorey()).toBe('missing')
+    const fitted = await patch(`/api/units/${unit}`, { version: version('units', unit), storeyReturnDetectors: '3' })
+    expect(fitted.status).toBe(200)
+    expect(q().prepare('select storey_return_detectors as n from units where id = ?').get(unit)).toEqual({ n: 3 })
+    expect(await perStorey()).toBe('present')
+    // Editing another field keeps the count (the form carries every field of the record).
+    expect((await patch(`/api/units/${unit}`, { version: version('units', unit), location: 'Mechanical room 2' })).status).toBe(200)
+    expect(q().prepare('select storey_return_detectors as n from units where id = ?').get(unit)).toEqual({ n: 3 })
+    const bad = await patch(`/api/units/${unit}`, { version: version('units', unit), storeyReturnDetectors: '-1' })
+    expect(bad.status).toBe(400)
+    expect((await bad.json()).fieldErrors.storeyReturnDetectors).toMatch(/At least 0/)
+  })
+
+  it('judges a detector’s loop by its recorded EOL tolerance and panel alarm threshold, re-derived on saving', async () => {
+    const d = q()
+      .prepare("select id, eol_ohms as eol from detectors where loop_verdict = 'pass' and alarm_terminal = 'NO' and eol_placement = 'through-supervisory' order by id limit 1")
+      .get() as { id: number; eol: number }
+    // A normal reading 8 % over the resistor: outside a 5 % part (common practice), inside a 10 % one.
+    const visit = (q().prepare('select visit_id as v from readings where detector_id = ? order by id desc limit 1').get(d.id) as { v: number }).v
+    q().prepare("update readings set value = ? where detector_id = ? and visit_id = ? and kind = 'loop-normal'").run(Math.round(d.eol * 1.08), d.id, visit)
+    const tolerant = await patch(`/api/devices/${d.id}`, { version: version('detectors', d.id), eolTolerancePct: '10', alarmThresholdOhms: '150' })
+    expect(tolerant.status, await tolerant.clone().text()).toBe(200)
+    expect(q().prepare('select eol_tolerance_pct as t, alarm_threshold_ohms as a, loop_verdict as v from detectors where id = ?').get(d.id)).toEqual({ t: 10, a: 150, v: 'pass' })
+    const strict = await patch(`/api/devices/${d.id}`, { version: version('detectors', d.id), eolTolerancePct: '' })
+    expect(strict.status).toBe(200)
+    expect(q().prepare('select eol_tolerance_pct as t, loop_verdict as v from detectors where id = ?').get(d.id)).toEqual({ t: null, v: 'fail' })
+    expect((await patch(`/api/devices/${d.id}`, { version: version('detectors', d.id), eolTolerancePct: '40' })).status).toBe(400)
+    expect(disagreements()).toEqual([])
+  })
 })

@@ -78,6 +78,8 @@ const detectorColumns = {
   delaySeconds: detectors.delaySeconds,
   delayObservedOn: detectors.delayObservedOn,
   eolOhms: detectors.eolOhms,
+  eolTolerancePct: detectors.eolTolerancePct,
+  alarmThresholdOhms: detectors.alarmThresholdOhms,
   eolPlacement: detectors.eolPlacement,
   alarmTerminal: detectors.alarmTerminal,
   supervisoryTerminal: detectors.supervisoryTerminal,

@@ -25,6 +25,7 @@ export const unitColumns = {
   ductHeightIn: units.ductHeightIn,
   ductDiameterIn: units.ductDiameterIn,
   storeysServed: units.storeysServed,
+  storeyReturnDetectors: units.storeyReturnDetectors,
   sharedPlenum: units.sharedPlenum,
   areaDetection: units.areaDetection,
   transformerVa: units.transformerVa,
@@ -87,7 +88,8 @@ export function unitRecord(db: Db, unitId: number) {
   const rows = s.detectors.all({ id: unitId })
   const duct = ductOf(unit)
   const cfmAt = (position: 'supply' | 'return') => (position === 'supply' ? unit.supplyCfm : unit.returnCfm)
-  const installed = { supply: rows.some((d) => d.position === 'supply'), return: rows.some((d) => d.position === 'return') }
+  // Detectors at each storey's return sit on the riser, not on the unit's own ducts: counted from the unit's record.
+  const installed = { supply: rows.some((d) => d.position === 'supply'), return: rows.some((d) => d.position === 'return'), perStoreyReturns: unit.storeyReturnDetectors ?? 0 }
   return {
     ...head,
     duct,
