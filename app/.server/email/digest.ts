@@ -190,10 +190,12 @@ export function digestFigures(db: Db, o: { today: string; customerIds: number[] 
   const inIds = ids ? `(${ids.join(',')})` : ''
   const atRisk = c
     .prepare(
+      // The five picked on the detectors alone, so the risk index orders them and the walk stops at five;
+      // joined first, the planner sorted every detector with a risk.
       `select d.id, d.tag, s.name as site, cu.name as customer, d.risk_score as score, d.risk_reasons as reasons
-         from detectors d join sites s on s.id = d.site_id join customers cu on cu.id = d.customer_id
-        where d.risk_score > 0 and ${ids ? `d.customer_id in ${inIds}` : '1'}
-        order by d.risk_score desc, d.id limit 5`,
+         from (select id from detectors where risk_score > 0 and ${ids ? `customer_id in ${inIds}` : '1'} order by risk_score desc, id limit 5) top
+         join detectors d on d.id = top.id join sites s on s.id = d.site_id join customers cu on cu.id = d.customer_id
+        order by d.risk_score desc, d.id`,
     )
     .all() as { id: number; tag: string; site: string; customer: string; score: number; reasons: string }[]
   const customers = ids ? (c.prepare(`select id, name from customers where id in ${inIds} order by name`).all() as { id: number; name: string }[]) : null
