@@ -94,8 +94,8 @@ export function DetectorEntryForm({
   return (
     <div className="space-y-4">
       <nav aria-label="Detectors on this visit" className="flex items-center gap-2">
-        <button type="button" className={`${bigQuietButton} shrink-0`} disabled={index === 0} onClick={() => setIndex(index - 1)} aria-label="Previous detector">
-          ‹ Prev
+        <button type="button" className={`${bigQuietButton} shrink-0`} disabled={index === 0} onClick={() => setIndex(index - 1)}>
+          ‹ Prev<span className="sr-only"> detector</span>
         </button>
         <label className="min-w-0 flex-1">
           <span className="sr-only">Detector</span>
@@ -113,9 +113,8 @@ export function DetectorEntryForm({
           className={`${bigQuietButton} shrink-0`}
           disabled={index >= ordered.length - 1}
           onClick={() => setIndex(index + 1)}
-          aria-label="Next detector"
         >
-          Next ›
+          Next<span className="sr-only"> detector</span> ›
         </button>
       </nav>
       {inBrowser ? (
