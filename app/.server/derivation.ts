@@ -28,9 +28,9 @@ export interface ArrangementFields {
   conductorStranded: boolean | number
   runFeet: number
   /** The resistor's marked tolerance in percent; null means the usual 5 %. */
-  eolTolerancePct: number | null
+  eolTolerancePct?: number | null
   /** The panel input's alarm threshold in ohms; null means the common-practice default in loop.ts. */
-  alarmThresholdOhms: number | null
+  alarmThresholdOhms?: number | null
 }
 
 /** The loop as recorded on the detector, read at the panel (where the fire alarm contractor measures). */
@@ -44,8 +44,8 @@ export function arrangementOf(d: ArrangementFields): Arrangement {
     conductor: { awg: d.conductorAwg as Awg, stranded: Boolean(d.conductorStranded), oneWayFeet: d.runFeet },
     measuredAt: 'panel',
     // Left out when not recorded, so the engine's own defaults (5 %, 100 Ω) apply.
-    ...(d.eolTolerancePct !== null ? { tolerance: d.eolTolerancePct / 100 } : {}),
-    ...(d.alarmThresholdOhms !== null ? { maxLineOhms: d.alarmThresholdOhms } : {}),
+    ...(d.eolTolerancePct != null ? { tolerance: d.eolTolerancePct / 100 } : {}),
+    ...(d.alarmThresholdOhms != null ? { maxLineOhms: d.alarmThresholdOhms } : {}),
   }
 }
 
