@@ -134,6 +134,8 @@ export const siteFields = {
   monitoringCompanyId: z.preprocess((v) => (isBlank(v) ? null : toNumber(v)), z.number().int().positive().nullable()),
   monitoringAccount: optionalText(40),
   delayPolicySeconds: required({ min: 0, max: MAX_DELAY_SECONDS, unit: 's' }),
+  // A log of nuisance alarms: the condition of the 5-year sensitivity interval (NFPA 72 14.4.5.3.2).
+  keepsNuisanceRecords: flag,
   accessNotes: optionalText(1000),
 }
 

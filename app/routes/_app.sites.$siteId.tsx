@@ -124,6 +124,15 @@ export default function Site({ loaderData }: Route.ComponentProps) {
               )}
             </Fact>
             <Fact label="Code basis">{CODE_BASIS[s.codeBasis]}</Fact>
+            <Fact label="Nuisance alarms">
+              {s.keepsNuisanceRecords ? 'Recorded: ' : 'Not recorded: '}
+              <span className="text-ink-soft">
+                {s.keepsNuisanceRecords
+                  ? 'a detector in range at three sensitivity tests in a row is next tested in 5 years'
+                  : 'sensitivity tests stay every other year, as the 5-year interval needs a nuisance-alarm record'}{' '}
+                (NFPA 72 14.4.5.3.2)
+              </span>
+            </Fact>
             <Fact label="Access notes">{s.accessNotes ?? <span className="text-ink-faint">None</span>}</Fact>
           </dl>
         </section>

@@ -3,7 +3,7 @@ import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
 import { editableRecord, editFromRequest, monitoringChoices, siteContext } from '~/.server/repos/record-edits'
 import { pageNotFound, pageRecordId } from '~/.server/repos/record-id'
-import { NumberField, RecordForm, Section, SelectField, TextAreaField, TextField, type EditAnswer } from '~/components/forms/record-form'
+import { CheckField, NumberField, RecordForm, Section, SelectField, TextAreaField, TextField, type EditAnswer } from '~/components/forms/record-form'
 import type { RouteAccess } from '~/domain/permissions'
 import { TROUBLE_REPORTING_SECONDS } from '~/domain/delay-audit'
 import { siteCautions, siteForm, type SiteForm } from '~/domain/record-forms'
@@ -45,6 +45,7 @@ const LABELS: Record<keyof SiteForm, string> = {
   monitoringCompanyId: 'Monitoring company',
   monitoringAccount: 'Monitoring account number',
   delayPolicySeconds: 'Agreed reporting delay',
+  keepsNuisanceRecords: 'The site keeps a record of nuisance alarms',
   accessNotes: 'Access notes',
 }
 
@@ -92,6 +93,12 @@ export default function EditSite({ loaderData, actionData }: Route.ComponentProp
           <TextField name="jurisdiction" label={LABELS.jurisdiction} />
           <TextField name="ahjName" label={LABELS.ahjName} />
           <TextField name="ahjContact" label={LABELS.ahjContact} hint="Telephone or e-mail." />
+          <CheckField
+            name="keepsNuisanceRecords"
+            label={LABELS.keepsNuisanceRecords}
+            hint="Only then may a detector found in range at three sensitivity tests in a row be tested every 5 years instead of every other year (NFPA 72 14.4.5.3.2). Leave it clear unless such a log is kept."
+            wide
+          />
         </Section>
         <Section title="Monitoring" note="Who watches the fire alarm system and must be told before any work.">
           <SelectField name="monitoringCompanyId" label={LABELS.monitoringCompanyId} options={companies.map((c) => ({ value: c.id, label: c.name }))} blank="None on record" wide />

@@ -61,8 +61,10 @@ describe('device page', () => {
       const text = html.replaceAll('<!-- -->', '')
       expect(text, `detector ${d.id}`).toContain(`Risk ${d.risk}`)
       expect(text).toContain(`Loop: ${d.loop}`)
-      for (const day of [d.visual, d.functional, d.sensitivity, d.cleaning]) expect(text).toMatch(new RegExp(`(Due|Overdue) ${day}`))
-      expect(text).toContain(`${d.due === 'overdue' ? 'Overdue' : 'Due'} ${d.nextDue}`)
+      // Each task in words with its date: due (before or inside the window) or overdue past it.
+      for (const day of [d.visual, d.functional, d.sensitivity, d.cleaning]) expect(text).toMatch(new RegExp(`(Due|Overdue: due) ${day}`))
+      expect(text).toMatch(new RegExp(`(Due|Overdue: due) ${d.nextDue}`))
+      if (d.due === 'overdue') expect(text).toMatch(/Overdue: due \d{4}-\d{2}-\d{2}, \d+ d past the window/)
       // The history lists the latest 40 events, newest first.
       const latest = data.db.$client
         .prepare('select id from events where detector_id = ? order by occurred_at desc, id desc limit 40')

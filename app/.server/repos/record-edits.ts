@@ -64,6 +64,7 @@ const siteColumns = {
   monitoringCompanyId: sites.monitoringCompanyId,
   monitoringAccount: sites.monitoringAccount,
   delayPolicySeconds: sites.delayPolicySeconds,
+  keepsNuisanceRecords: sites.keepsNuisanceRecords,
   accessNotes: sites.accessNotes,
 }
 
@@ -133,8 +134,10 @@ const SPECS: Record<EditKind, Spec> = {
         .set({ ...changed, version: bump(sites.version) })
         .where(and(eq(sites.id, id), eq(sites.version, version)))
         .run().changes === 1,
-    // The delay policy decides every detector's delay agreement (and so its risk) at the site.
-    affected: (db, id, changed) => ('delayPolicySeconds' in changed ? detectorIdsWhere(db, eq(detectors.siteId, id)) : []),
+    // The delay policy decides every detector's delay agreement (and so its risk) at the site; the
+    // nuisance-alarm record decides whether its sensitivity tests may stretch to 5 years.
+    affected: (db, id, changed) =>
+      'delayPolicySeconds' in changed || 'keepsNuisanceRecords' in changed ? detectorIdsWhere(db, eq(detectors.siteId, id)) : [],
   },
   unit: {
     schema: unitForm,

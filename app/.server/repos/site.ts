@@ -41,6 +41,7 @@ const statements = perDb((db: Db) => ({
         codeBasis: sites.codeBasis,
         monitoringAccount: sites.monitoringAccount,
         delayPolicySeconds: sites.delayPolicySeconds,
+        keepsNuisanceRecords: sites.keepsNuisanceRecords,
         accessNotes: sites.accessNotes,
       },
       customer: { id: customers.id, name: customers.name, kind: customers.kind },
