@@ -149,17 +149,21 @@ describe('bulk actions on a selection of sites, customers or events', () => {
     expect(before.length).toBe(after.length)
   })
 
-  it('customers → acknowledge (lead): preview equals apply, through the filter', async () => {
+  it('customers → acknowledge (lead): preview equals apply through the filter, and a detector changed since is reported', async () => {
     const filter = 'kind=school'
     const want = ids("select d.id from detectors d join customers c on c.id = d.customer_id where c.kind = 'school' and d.acknowledged_at is null order by d.id")
     const preview = (await post<Preview>('acknowledge', { preview: true, list: 'customers', filter })).body
     expect(preview.through).toMatchObject({ list: 'customers', records: 1 })
     expect(preview.changes.map((c) => c.id)).toEqual(want.slice(0, 200))
     expect(preview.changeCount).toBe(want.length)
+    // Someone else assigns one of them meanwhile: it is reported, not acknowledged over their change.
+    q().prepare('update detectors set assigned_to = ?, version = version + 1 where id = ?').run(userIdByEmail(data.db, 'rosa.imbert@ductkeeper.test'), want[0])
     const applied = (await post<Applied>('acknowledge', { preview: false, previewId: preview.previewId })).body
-    expect(applied.applied).toBe(want.length)
+    expect(applied.applied).toBe(want.length - 1)
+    expect(applied.refused).toEqual([{ id: want[0], label: expect.any(String), reason: expect.stringMatching(/Changed since the preview/) }])
     const leadId = userIdByEmail(data.db, 'lead@ductkeeper.test')
-    expect(ids(`select id from detectors where acknowledged_by = ${leadId} and id in (${want.join(',')}) order by id`)).toEqual(want)
+    expect(ids(`select id from detectors where acknowledged_by = ${leadId} and id in (${want.join(',')}) order by id`)).toEqual(want.slice(1))
+    expect(ids(`select id from detectors where acknowledged_at is null and id in (${want.join(',')})`)).toEqual([want[0]])
   })
 
   it('events → assign: the events’ detectors go to the technician, a stale one is reported when applying with versions', async () => {
