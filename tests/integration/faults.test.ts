@@ -4,7 +4,7 @@ import { bulkReschedule, killDuring } from '#tests/setup/faults'
 // The short case; `npm run test:proof` kills each of three writes at several points.
 describe('a server killed in the middle of a bulk change', () => {
   it('leaves the change wholly before or wholly after, the database consistent, and starts again healthy', async () => {
-    const r = await killDuring(bulkReschedule, 40)
+    const r = await killDuring(bulkReschedule(400), 25)
     expect(r.killed).toBe(true)
     expect(r.state).not.toBe('partial')
     expect(r.disagreements).toEqual([])

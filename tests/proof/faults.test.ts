@@ -4,7 +4,7 @@ import { bulkReschedule, csvImport, killDuring, visitCompletion } from '#tests/s
 // Each write is first left to finish (its time, T), then killed at points across T and a little
 // past it. Wherever the kill lands, the change is wholly there or wholly absent, db-check finds
 // nothing, and the server starts again healthy.
-describe.each([bulkReschedule, csvImport, visitCompletion])('SIGKILL during a $name', (scenario) => {
+describe.each([bulkReschedule(1500), csvImport, visitCompletion])('SIGKILL during a $name', (scenario) => {
   it('is wholly before or wholly after, wherever the kill lands', async () => {
     const whole = await killDuring(scenario, null)
     expect(whole.answered).toBe(200)

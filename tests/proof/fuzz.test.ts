@@ -3,7 +3,7 @@ import { builtRoutes, casesFor, describeFindings, runCases, type FuzzRoute } fro
 import { startServer } from '#tests/setup/server'
 import { seededDb } from '#tests/setup/temp-db'
 
-// The long run of tests/integration/fuzz.test.ts: FUZZ_PER_ROUTE cases for every route (default 150),
+// The long run of tests/integration/fuzz.test.ts: FUZZ_PER_ROUTE cases for every route (default 100),
 // from FUZZ_SEED (default: a new seed each run, printed, so a finding can be run again).
 describe('hostile input on every route (long run)', () => {
   let server: Awaited<ReturnType<typeof startServer>>
@@ -21,7 +21,7 @@ describe('hostile input on every route (long run)', () => {
 
   it('answers every route without a 5xx, a change from a refused request, or raw markup', async () => {
     const seed = Number(process.env.FUZZ_SEED ?? Date.now() % 1_000_000_007)
-    const perRoute = Number(process.env.FUZZ_PER_ROUTE ?? 150)
+    const perRoute = Number(process.env.FUZZ_PER_ROUTE ?? 100)
     const started = Date.now()
     const { findings, statuses } = await runCases(casesFor(routes, perRoute, seed), { url: server.url, db: data.db })
     console.info(`fuzz: seed ${seed}, ${routes.length} routes × ${perRoute} cases in ${((Date.now() - started) / 1000).toFixed(0)} s; answers ${JSON.stringify(statuses)}`)

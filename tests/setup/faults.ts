@@ -25,13 +25,13 @@ export interface Scenario {
 const json = (url: string, cookie: string, body: unknown) =>
   fetch(url, { method: 'POST', headers: { Cookie: cookie, Origin: new URL(url).origin, 'Content-Type': 'application/json' }, body: JSON.stringify(body) })
 
-/** 1,500 planned visits moved two working days by one bulk change. */
-export const bulkReschedule: Scenario = {
-  name: 'bulk reschedule',
+/** `n` planned visits moved two working days by one bulk change. */
+export const bulkReschedule = (n: number): Scenario => ({
+  name: `bulk reschedule of ${n} visits`,
   async prepare({ db, url, cookie }) {
     const site = db.$client.prepare('select id, region from sites order by id limit 1').get() as { id: number; region: string }
     const day = calendarFor(site.region).nextWorkingDay(addDays(TEST_TODAY, 10))
-    const ids = makeVisits(db, { n: 1500, siteId: site.id, date: day, technicianId: null })
+    const ids = makeVisits(db, { n, siteId: site.id, date: day, technicianId: null })
     const preview = await json(`${url}/api/bulk/reschedule`, cookie, { preview: true, ids, mode: 'shift', days: 2 })
     expect(preview.status, await preview.clone().text()).toBe(200)
     const { previewId } = (await preview.json()) as { previewId: string }
@@ -48,14 +48,14 @@ export const bulkReschedule: Scenario = {
       },
     }
   },
-}
+})
 
-/** The fleet's inventory exported and imported back under a new customer name: every row a new record. */
+/** The fleet's inventory exported and imported back under a new customer name and serials: every row a new record. */
 export const csvImport: Scenario = {
   name: 'CSV import',
   async prepare({ db, url, cookie }) {
     const exported = await (await fetch(`${url}/api/export/detectors?sort=tag`, { headers: { Cookie: cookie } })).text()
-    const rows = (parse(exported, { columns: true }) as Array<Record<string, string>>).map((r) => ({ ...r, customer: 'Alderbrook Test Kitchens' }))
+    const rows = (parse(exported, { columns: true }) as Array<Record<string, string>>).map((r) => ({ ...r, customer: 'Alderbrook Test Kitchens', serial: r.serial ? `AB-${r.serial}` : '' }))
     const form = new FormData()
     form.append('kind', 'inventory')
     form.append('source', 'Fault drill')
