@@ -125,7 +125,7 @@ export default function DigestEmail({ figures, lastWeek = null, name, appUrl }: 
               </Heading>
               {s.lines.map((l) => (
                 <Text key={l.label} className="dk-ink" style={{ fontSize: 14, margin: '3px 0', color: C.ink, paddingLeft: l.label.startsWith('  ') ? 16 : 0 }}>
-                  <Link className="dk-link" href={l.href} style={{ color: C.accent, fontWeight: 700, textDecoration: 'underline' }}>
+                  <Link className="dk-link dk-figure" href={l.href} style={{ color: C.accent, fontWeight: 700, textDecoration: 'underline' }}>
                     {l.value}
                   </Link>{' '}
                   {l.label.trim()}

@@ -66,8 +66,9 @@ export async function action({ request }: Route.ActionArgs) {
   const parsed = outboxAction.safeParse(Object.fromEntries(await readFormData(request)))
   if (!parsed.success) return data({ ok: false, message: parsed.error.issues[0]?.message ?? 'Check the fields' }, { status: 400 })
   const db = getDb()
-  if (parsed.data.intent === 'retry') {
-    const id = parsed.data.id
+  const input = parsed.data
+  if (input.intent === 'retry') {
+    const id = input.id
     const requeued = writeTx(db, () => {
       if (!requeueFailed(db, id)) return false
       writeAudit(db, { actorId: user.id, action: 'outbox.retry', entity: 'email_outbox', entityId: id, before: { status: 'failed' }, after: { status: 'queued' } })
@@ -77,7 +78,7 @@ export async function action({ request }: Route.ActionArgs) {
     const outcome = await sendMessage(db, id, { force: true })
     return { ok: outcome !== 'failed', message: `Message ${id} ${said(outcome)}.`, id }
   }
-  const r = digestRecipients(db).find((x) => x.userId === parsed.data.userId)
+  const r = digestRecipients(db).find((x) => x.userId === input.userId)
   if (!r) return data({ ok: false, message: 'That person does not receive the digest' }, { status: 400 })
   const today = officeToday()
   // This week's key: sending now counts as this week's digest, so the schedule will not send another.

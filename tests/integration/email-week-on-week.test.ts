@@ -107,5 +107,6 @@ describe('week-on-week changes in the digest', () => {
     expect(line('Reporting delay differs from policy')).toContain('= same as last week')
     expect(line('Visits done this week')).toContain('▲ up 1 from 1 last week')
     expect(html).toContain('up 3 from 2 last week')
+    expect(line("Detectors overdue")).toBe("5 Detectors overdue (▲ up 3 from 2 last week)")
   })
 })

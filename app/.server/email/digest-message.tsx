@@ -1,4 +1,4 @@
-import { render } from '@react-email/render'
+import { render, type Options } from '@react-email/render'
 import DigestEmail from '~/emails/digest'
 import { writeTx, type Db } from '../db'
 import { digestFigures, digestKey, type DigestRecipient, type FleetFigures } from './digest'
@@ -19,7 +19,9 @@ export async function digestMessage(db: Db, r: Recipient, today: string, fleet?:
   const figures = digestFigures(db, { today, customerIds: r.customerIds.length ? r.customerIds : null, fleet })
   const lastWeek = lastWeekFigures(db, r.userId, today)
   const element = <DigestEmail figures={figures} lastWeek={lastWeek} name={r.name} appUrl={appUrl()} />
-  const [html, text] = await Promise.all([render(element), render(element, { plainText: true })])
+  // In plain text a figure reads as its number: a web address before every count buried the words.
+  const plain: Options = { plainText: true, htmlToTextOptions: { selectors: [{ selector: 'a.dk-figure', format: 'anchor', options: { ignoreHref: true } }] } }
+  const [html, text] = await Promise.all([render(element), render(element, plain)])
   return {
     kind: 'digest',
     idempotencyKey: digestKey(r.userId, today),
