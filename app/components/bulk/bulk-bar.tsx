@@ -62,7 +62,7 @@ export function BulkBar(p: { list: BulkList; endpoint: string; query: string; se
       </div>
       <div role="group" aria-label="Actions" className="flex flex-wrap items-center gap-2 border-t border-line pt-2 lg:ml-auto lg:border-t-0 lg:border-l lg:pt-0 lg:pl-3">
         {actions.map((a) => (
-          <button key={a.name} type="button" className={quietButtonClass} disabled={!scope} onClick={() => scope && setOpen({ action: a, scope, label: scopeLabel })}>
+          <button key={a.name} type="button" className={`${quietButtonClass} disabled:cursor-not-allowed disabled:opacity-50`} disabled={!scope} onClick={() => scope && setOpen({ action: a, scope, label: scopeLabel })}>
             {a.title}…
           </button>
         ))}
