@@ -17,8 +17,7 @@ const id = z.number().int().positive()
 const version = z.number().int().positive()
 
 /** The two e-mails a visit sends its monitoring company: the notice of work and the all-clear. */
-export const VISIT_EMAIL_KINDS = ['notice', 'all-clear'] as const
-export type VisitEmailKind = (typeof VISIT_EMAIL_KINDS)[number]
+const VISIT_EMAIL_KINDS = ['notice', 'all-clear'] as const
 
 /** A number the monitoring company can ring back: digits with the usual separators, 7 to 15 digits. */
 const callBack = z
