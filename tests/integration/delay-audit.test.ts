@@ -4,7 +4,10 @@ import { bulkAction } from '~/.server/bulk/registry'
 import { applyBulk, previewBulk } from '~/.server/bulk/runner'
 import { resolveSelection } from '~/.server/bulk/selection'
 import { undoBulk } from '~/.server/bulk/undo'
+import { writeTx } from '~/.server/db'
+import { rederive } from '~/.server/derivation'
 import { auditCsv, auditPage, fleetCounts } from '~/.server/repos/delay-audit'
+import { bookingPlan, usualTechnicians } from '~/.server/repos/triage-booking'
 import { contextFor } from '#tests/setup/bulk'
 import { startServer } from '#tests/setup/server'
 import { sessionCookieFor, userIdByEmail } from '#tests/setup/sessions'
@@ -121,6 +124,117 @@ describe('delay-setting audit', () => {
     q().prepare("insert into notifications (site_id, visit_id, notified_at, method, spoke_with, in_test_from, in_test_until) values (?, ?, '2026-06-15T15:00:00Z', 'phone', 'Desk', '2026-06-15T15:00:00Z', '2026-06-15T17:00:00Z')").run(site.s, created[1])
     expect(() => undoBulk(data.db, applied.changeId!, lead().actor, TEST_TODAY)).toThrow(/1 of the records changed since/)
     expect(visitIds().filter((id) => !before.includes(id))).toEqual(created)
+  })
+
+  // The correction visits earlier tests left booked, taken away so the next plan starts clear.
+  const clearCorrections = () =>
+    q().exec(`delete from notifications where visit_id in (select id from visits where notes like 'Delay setting correction%');
+              delete from visit_detectors where visit_id in (select id from visits where notes like 'Delay setting correction%');
+              delete from visits where notes like 'Delay setting correction%'`)
+
+  it('books each site with a technician who covers its region and has room that day, on a working day; refuses with the reason when none can', () => {
+    clearCorrections()
+    const ids = resolveSelection(data.db, 'detector', { filter: 'delay=disagree' })
+    const input = action.input.parse({ do: 'correction-visits' })
+    // Tight days: every technician takes few detectors a day.
+    q().exec("update users set daily_capacity = 2, capacity_unit = 'detectors' where role = 'technician'")
+    const preview = previewBulk(data.db, action, ids, input, lead())
+    const before = visitIds()
+    const applied = applyBulk(data.db, action, input, ids, versions(preview), lead())
+    expect(applied.applied).toBe(preview.changeCount)
+    const created = visitIds().filter((id) => !before.includes(id))
+    expect(created.length).toBeGreaterThan(0)
+    // Checked from the raw rows: the region list, the weekday, the day's load against the limit.
+    const booked = q()
+      .prepare(
+        `select v.id, v.site_id as siteId, s.region, v.scheduled_on as "on", u.regions, u.daily_capacity as cap,
+                (select count(*) from visit_detectors vd join visits o on o.id = vd.visit_id
+                  where o.technician_id = v.technician_id and o.scheduled_on = v.scheduled_on and o.status in ('planned', 'notified', 'in-progress')) as dayLoad
+           from visits v join sites s on s.id = v.site_id join users u on u.id = v.technician_id where v.id in (${created.join(',')})`,
+      )
+      .all() as Array<{ siteId: number; region: string; on: string; regions: string; cap: number; dayLoad: number }>
+    expect(booked).toHaveLength(created.length)
+    for (const b of booked) {
+      expect(b.regions.split(',')).toContain(b.region)
+      expect([0, 6]).not.toContain(new Date(`${b.on}T12:00:00Z`).getUTCDay())
+      expect(b.on > TEST_TODAY).toBe(true)
+      expect(b.dayLoad).toBeLessThanOrEqual(b.cap)
+    }
+    expect(new Set(booked.map((b) => b.siteId)).size).toBe(booked.length)
+    // A site with more disagreeing detectors than anyone takes in a day is refused, and says so.
+    const crowded = q().prepare("select site_id as s, count(*) as n from detectors where delay_agreement = 'disagree' group by site_id having n > 2").all() as Array<{ s: number }>
+    for (const c of crowded) expect(preview.changes.some((ch) => ch.create!.siteId === c.s)).toBe(false)
+    if (crowded.length) expect(preview.refused.map((r) => r.reason).join('\n')).toMatch(/more than any technician covering US-[A-Z]{2} takes in a day \(2 at most\)/)
+    undoBulk(data.db, applied.changeId!, lead().actor, TEST_TODAY)
+
+    // A chosen technician who does not cover a site's region is refused there, by name.
+    const t = q().prepare("select id, name, regions from users where role = 'technician' order by id limit 1").get() as { id: number; name: string; regions: string }
+    q().exec("update users set daily_capacity = 40 where role = 'technician'")
+    const chosen = previewBulk(data.db, action, ids, action.input.parse({ do: 'correction-visits', technicianId: t.id }), lead())
+    const outside = q().prepare(`select count(distinct s.id) as n from detectors d join sites s on s.id = d.site_id where d.delay_agreement = 'disagree' and instr(',' || ? || ',', ',' || s.region || ',') = 0`).get(t.regions) as { n: number }
+    expect(outside.n).toBeGreaterThan(0)
+    expect(preview.refused.length + chosen.refused.length).toBeGreaterThan(0)
+    expect(chosen.refused.filter((r) => r.reason === `${t.name} does not cover ${r.reason.split(' ').at(-1)}`).length).toBeGreaterThanOrEqual(outside.n)
+    expect(chosen.changes.every((c) => c.create!.technicianId === t.id)).toBe(true)
+    q().exec('update users set daily_capacity = 32 where id = 4; update users set daily_capacity = 28 where id = 6; update users set daily_capacity = 36 where id = 7; update users set daily_capacity = 24 where id = 8')
+  })
+
+  it('reads every site’s usual technician in one statement, as the booking dialog reads it site by site', () => {
+    const detectorPerSite = (q().prepare('select min(id) as id from detectors group by site_id').all() as Array<{ id: number }>).map((r) => r.id)
+    const one = new Map(bookingPlan(data.db, detectorPerSite, 'repair', TEST_TODAY).sites.map((s) => [s.siteId, s.usual && { id: s.usual.id, name: s.usual.name, visits: s.usual.visits, of: s.usual.of }]))
+    const batch = usualTechnicians(data.db, [...one.keys()])
+    expect([...one].filter(([, u]) => u !== null).length).toBeGreaterThan(0)
+    for (const [siteId, u] of one) expect(batch.get(siteId) ?? null, `site ${siteId}`).toEqual(u)
+  })
+
+  it('books nothing when the write fails part-way through the visits', () => {
+    clearCorrections()
+    const ids = resolveSelection(data.db, 'detector', { filter: 'delay=disagree' })
+    const input = action.input.parse({ do: 'correction-visits' })
+    const preview = previewBulk(data.db, action, ids, input, lead())
+    expect(preview.changeCount).toBeGreaterThan(1)
+    const middle = preview.changes[Math.floor(preview.changes.length / 2)].create!.detectors[0].detectorId
+    const before = { visits: visitIds(), items: (q().prepare('select count(*) as n from visit_detectors').get() as { n: number }).n, changes: (q().prepare('select count(*) as n from bulk_changes').get() as { n: number }).n }
+    q().exec(`create trigger test_refuse_item before insert on visit_detectors when new.detector_id = ${middle} begin select raise(abort, 'refused for the test'); end`)
+    try {
+      expect(() => applyBulk(data.db, action, input, ids, versions(preview), lead())).toThrow(/refused for the test/)
+    } finally {
+      q().exec('drop trigger test_refuse_item')
+    }
+    expect({ visits: visitIds(), items: (q().prepare('select count(*) as n from visit_detectors').get() as { n: number }).n, changes: (q().prepare('select count(*) as n from bulk_changes').get() as { n: number }).n }).toEqual(before)
+  })
+
+  it('marks the whole fleet verified without re-deriving it: no stored fact can move, as a full re-derivation afterwards confirms', () => {
+    const all = resolveSelection(data.db, 'detector', { filter: '' })
+    const input = action.input.parse({ do: 'verify' })
+    // A planted stale fact: a re-derivation of this detector would put it right, so it shows whether one ran.
+    const marker = q().prepare("select id, risk_score as r from detectors where delay_agreement = 'agree' and coalesce(delay_observed_on, '') <> ? order by id limit 1").get(TEST_TODAY) as { id: number; r: number }
+    q().prepare('update detectors set risk_score = 997 where id = ?').run(marker.id)
+    const facts = () => q().prepare('select id, delay_agreement as a, next_due_on as due, due_status as s, loop_verdict as l from detectors order by id').all()
+    const before = facts()
+
+    // A failure in the middle leaves every day as it was.
+    const preview = previewBulk(data.db, action, all, input, lead())
+    const middle = preview.changes[Math.floor(preview.changes.length / 2)].id
+    const days = () => q().prepare('select id, delay_observed_on as d from detectors order by id').all()
+    const daysBefore = days()
+    q().exec(`create trigger test_refuse_verify before update of delay_observed_on on detectors when new.id = ${middle} begin select raise(abort, 'refused for the test'); end`)
+    try {
+      expect(() => applyBulk(data.db, action, input, all, versions(preview), lead())).toThrow(/refused for the test/)
+    } finally {
+      q().exec('drop trigger test_refuse_verify')
+    }
+    expect(days()).toEqual(daysBefore)
+
+    const applied = applyBulk(data.db, action, input, all, versions(preview), lead())
+    expect(applied.applied).toBe(preview.changeCount)
+    expect((q().prepare('select risk_score as r from detectors where id = ?').get(marker.id) as { r: number }).r).toBe(997)
+    expect(facts()).toEqual(before)
+    q().prepare('update detectors set risk_score = ? where id = ?').run(marker.r, marker.id)
+    // The derivation does not read the verified day: re-deriving the fleet now changes nothing.
+    expect(writeTx(data.db, () => rederive(data.db, all, TEST_TODAY))).toBe(0)
+    undoBulk(data.db, applied.changeId!, lead().actor, TEST_TODAY)
+    expect(days()).toEqual(daysBefore)
   })
 
   it('gives a caution with "verify with the AHJ" for a policy beyond the NFPA 72 limit, on the preview, the visit notes and the file', () => {

@@ -54,6 +54,11 @@ export interface BulkChange {
   create?: VisitCreate
   /** A line for the detector's history (an event of kind 'change' by the actor), written with the change and removed by its undo. */
   history?: string
+  /**
+   * The fields it sets are none the derivation reads, so the detector's stored facts cannot change:
+   * the runner (and its undo) leave it out of the re-derivation.
+   */
+  keepsFacts?: true
 }
 
 export interface BulkRefusal {

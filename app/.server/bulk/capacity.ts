@@ -41,6 +41,28 @@ export const weight = (tech: Technician | undefined, detectorCount: number) => (
 /** A limit for the planner: no daily capacity set means no limit. */
 export const limitOf = (tech: Technician | undefined) => (tech?.dailyCapacity == null ? Infinity : tech.dailyCapacity)
 
+/** A technician's `regions` text as the planners read it: ISO 3166-2 codes, or undefined for everywhere. */
+export const regionsOf = (text: string | null): string[] | undefined =>
+  text?.trim() ? text.split(',').map((x) => x.trim().toUpperCase()).filter(Boolean) : undefined
+
+/** Whether a technician may be sent to a site in `region`: no regions listed means every region. */
+export const covers = (tech: { regions?: string[] | undefined }, region: string) => !tech.regions || tech.regions.includes(region.trim().toUpperCase())
+
+export interface FieldTechnician extends Technician {
+  regions: string[] | undefined
+}
+
+/** Every active technician, by name, with their daily capacity and the regions they cover. */
+export function activeTechnicians(db: Db): FieldTechnician[] {
+  const rows = db.$client
+    .prepare(
+      `select id, name, active, role, regions, daily_capacity as dailyCapacity, capacity_unit as capacityUnit
+         from users where role = 'technician' and active = 1 order by name, id`,
+    )
+    .all() as Array<Omit<FieldTechnician, 'regions' | 'active'> & { regions: string | null; active: number }>
+  return rows.map((r) => ({ ...r, active: Boolean(r.active), regions: regionsOf(r.regions) }))
+}
+
 const MAX_DAY_LOADS = 500
 
 /** A visit changing day or technician. */

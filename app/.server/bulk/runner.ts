@@ -58,6 +58,8 @@ export interface ChangedRecord {
   created?: true
   /** The history line (event) the change wrote on the detector: undo removes it. */
   eventId?: number
+  /** Set nothing the derivation reads (`BulkChange.keepsFacts`): neither apply nor undo re-derives it. */
+  keepsFacts?: true
 }
 
 interface Snapshot {
@@ -133,7 +135,7 @@ export function applyBulk<I>(db: Db, action: BulkAction<I>, input: I, ids: reado
       else if (!writeFields(db, c.entity, c.id, c.to, seen)) stale('another')
       else {
         const eventId = c.history && c.entity === 'detector' ? writeHistory(db, c.id, c.history, ctx.actor.id, ctx.now) : undefined
-        done.push({ entity: c.entity, id: c.id, label: c.label, before: c.from, after: c.to, version: seen + 1, ...(eventId ? { eventId } : {}) })
+        done.push({ entity: c.entity, id: c.id, label: c.label, before: c.from, after: c.to, version: seen + 1, ...(eventId ? { eventId } : {}), ...(c.keepsFacts ? { keepsFacts: true as const } : {}) })
       }
     }
     if (done.length === 0) return { changeId: null, applied: 0, refused, summary: plan.summary }
@@ -145,9 +147,12 @@ export function applyBulk<I>(db: Db, action: BulkAction<I>, input: I, ids: reado
   return { ...answer, refusedCount: answer.refused.length, refused: answer.refused.slice(0, LISTED_ROWS) }
 }
 
-/** Re-derives the detectors among `records`, in chunks SQLite's parameter limit allows. */
+/**
+ * Re-derives the detectors among `records` whose change the derivation can see, in chunks SQLite's
+ * parameter limit allows; a change that keeps the facts costs no re-derivation.
+ */
 export function rederiveDetectors(db: Db, records: readonly ChangedRecord[], today: string) {
-  const ids = records.filter((r) => r.entity === 'detector').map((r) => r.id)
+  const ids = records.filter((r) => r.entity === 'detector' && !r.keepsFacts).map((r) => r.id)
   for (let i = 0; i < ids.length; i += 2_000) rederive(db, ids.slice(i, i + 2_000), today)
 }
 

@@ -90,6 +90,38 @@ function usualTechnician(db: Db, siteId: number): UsualTechnician | null {
   return row && row.eligible ? { id: row.id, name: row.name, visits: row.visits, of: row.of } : null
 }
 
+/**
+ * `usualTechnician` for many sites in one statement (a site with no eligible one is left out): the
+ * same window of each site's latest finished visits, ranked the same way.
+ */
+export function usualTechnicians(db: Db, siteIds: readonly number[]): Map<number, UsualTechnician> {
+  const out = new Map<number, UsualTechnician>()
+  for (let i = 0; i < siteIds.length; i += 5_000) {
+    const chunk = siteIds.slice(i, i + 5_000)
+    // Raw SQL: window functions number each site's visits and rank its technicians in one pass.
+    const rows = db.$client
+      .prepare(
+        `with recent as (
+           select v.site_id as siteId, v.technician_id as technicianId, v.scheduled_on as "on",
+                  row_number() over (partition by v.site_id order by v.scheduled_on desc, v.id desc) as n
+             from visits v
+            where v.site_id in (${chunk.map(() => '?').join(',')}) and v.status = 'done' and v.technician_id is not null
+         ), tally as (
+           select siteId, technicianId, count(*) as visits, max("on") as last, sum(count(*)) over (partition by siteId) as "of"
+             from recent where n <= ${RECENT_VISITS} group by siteId, technicianId
+         ), ranked as (
+           select t.siteId, u.id, u.name, t.visits, t."of", (u.role = 'technician' and u.active = 1) as eligible,
+                  row_number() over (partition by t.siteId order by (u.role = 'technician' and u.active = 1) desc, t.visits desc, t.last desc) as pick
+             from tally t join users u on u.id = t.technicianId
+         )
+         select siteId, id, name, visits, "of" from ranked where pick = 1 and eligible`,
+      )
+      .all(...chunk) as Array<UsualTechnician & { siteId: number }>
+    for (const { siteId, ...usual } of rows) out.set(siteId, usual)
+  }
+  return out
+}
+
 /** The company's first working day after `today` in a region, and the days off stepped over to reach it. */
 export function suggestedDay(company: CompanyCalendar, region: string, today: string): { day: string; skipped: Array<{ date: string; holiday: string }> } {
   const day = company.forRegion(region).nextWorkingDay(addDays(today, 1))

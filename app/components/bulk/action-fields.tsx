@@ -186,7 +186,7 @@ export function ActionFields(p: {
             </Field>
             {v.do === "correction-visits" && (
               <>
-                <Field label="Day (blank: each site's next working day)">
+                <Field label="Day (blank: the first working day with room)">
                   <input
                     type="date"
                     className={inputClass}
@@ -206,7 +206,7 @@ export function ActionFields(p: {
                       })
                     }
                   >
-                    <option value="">Each site&apos;s usual technician</option>
+                    <option value="">Usual technician, else one covering the region</option>
                     {p.technicians.map((t) => (
                       <option key={t.id} value={t.id}>
                         {t.name}

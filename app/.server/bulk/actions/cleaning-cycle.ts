@@ -5,7 +5,7 @@ import { OPEN_VISIT_STATUSES } from '~/domain/vocabulary'
 import type { Db } from '../../db'
 import { idParam, isoDate } from '../../list-query'
 import { BulkError, defineAction, type BulkChange, type BulkRefusal } from '../action'
-import { bookedVisits, weight } from '../capacity'
+import { bookedVisits, covers, regionsOf, weight } from '../capacity'
 import { createChange } from '../creates'
 
 const input = z
@@ -105,7 +105,7 @@ function loadTechnicians(db: Db, ids: readonly number[]): Tech[] {
   return rows.map((r) => ({
     id: r.id,
     name: r.name,
-    regions: r.regions?.trim() ? r.regions.split(',').map((x) => x.trim().toUpperCase()).filter(Boolean) : undefined,
+    regions: regionsOf(r.regions),
     dailyCapacity: r.dailyCapacity,
     capacityUnit: r.capacityUnit,
   }))
@@ -180,7 +180,7 @@ export const cleaningCycle = defineAction({
       const site = byId.get(v.detectorIds[0])!.site
       const why = !t
         ? 'that technician is not in this cycle'
-        : t.regions && !t.regions.includes(region.toUpperCase())
+        : !covers(t, region)
           ? `${t.name} does not cover ${region}`
           : m.date < i.from || m.date > i.to
             ? `${m.date} is outside the range`

@@ -4,10 +4,11 @@ import { auditDelay, delayLimitCaution, TROUBLE_REPORTING_SECONDS } from '~/doma
 import { OPEN_VISIT_STATUSES } from '~/domain/vocabulary'
 import type { Db } from '../../db'
 import { idParam, isoDate } from '../../list-query'
-import { bookingPlan } from '../../repos/triage-booking'
+import type { WorkCalendar } from '~/domain/calendar'
+import { usualTechnicians } from '../../repos/triage-booking'
 import { BulkError, defineAction, type BulkChange, type BulkContext, type BulkRefusal } from '../action'
+import { activeTechnicians, bookedVisits, covers, limitOf, weight, type FieldTechnician } from '../capacity'
 import { createChange } from '../creates'
-import { technicians } from './rows'
 
 const input = z.object({
   do: z.enum(['verify', 'correction-visits'], { error: "Say do: 'verify' or 'correction-visits'" }),
@@ -120,29 +121,33 @@ function verify(db: Db, ids: readonly number[], ctx: BulkContext, counts: AuditC
     const label = `${r.tag} · ${r.site}`
     if (r.delaySeconds === null) continue
     if (r.delayObservedOn === ctx.today) refused.push({ id: r.id, label, reason: `Already verified on ${ctx.today}` })
-    else changes.push({ entity: 'detector', id: r.id, label, from: { delayObservedOn: r.delayObservedOn }, to: { delayObservedOn: ctx.today }, version: r.version })
+    // The derivation reads the setting and the policy, not the day it was seen: no stored fact moves
+    // (the delay-audit test re-derives the whole fleet after a verify to hold that true).
+    else changes.push({ entity: 'detector', id: r.id, label, from: { delayObservedOn: r.delayObservedOn }, to: { delayObservedOn: ctx.today }, version: r.version, keepsFacts: true })
   }
   const left = counts.disagree + counts.unknown
   const summary = `Mark ${plural(changes.length, 'agreeing delay setting')} verified on ${ctx.today}${left ? `; ${left} that disagree or were never recorded are left out` : ''}`
   return { changes, refused, summary }
 }
 
-/** Each site's usual technician, read by the triage booking's own plan from one detector per site. */
-function usualBySite(db: Db, oneDetectorPerSite: readonly number[], today: string): Map<number, { id: number; name: string } | null> {
-  const out = new Map<number, { id: number; name: string } | null>()
-  for (let i = 0; i < oneDetectorPerSite.length; i += 500) {
-    for (const s of bookingPlan(db, oneDetectorPerSite.slice(i, i + 500), 'repair', today).sites) out.set(s.siteId, s.usual && { id: s.usual.id, name: s.usual.name })
-  }
-  return out
+// Without a date, the first of this many working days on which someone has room (about four weeks).
+const SEARCH_WORKING_DAYS = 20
+
+/** The working days a site's visit may go on: the chosen one, or the next few from tomorrow. */
+function daysFor(cal: WorkCalendar, today: string, date: string | undefined): string[] {
+  if (date) return [date]
+  const days: string[] = []
+  for (let d = cal.nextWorkingDay(addDays(today, 1)); days.length < SEARCH_WORKING_DAYS; d = cal.nextWorkingDay(addDays(d, 1))) days.push(d)
+  return days
 }
 
 function correctionVisits(db: Db, ids: readonly number[], i: z.infer<typeof input>, ctx: BulkContext) {
   if (i.date !== undefined && i.date < ctx.today) throw new BulkError(400, `Pick today (${ctx.today}) or a later date`)
-  let chosen: { id: number; name: string } | null = null
+  const everyone = activeTechnicians(db)
+  let chosen: FieldTechnician | null = null
   if (i.technicianId !== undefined) {
-    const t = technicians(db, [i.technicianId]).get(i.technicianId)
-    if (!t || t.role !== 'technician' || !t.active) throw new BulkError(400, 'Choose an active technician, or leave it to each site’s usual one')
-    chosen = t
+    chosen = everyone.find((t) => t.id === i.technicianId) ?? null
+    if (!chosen) throw new BulkError(400, 'Choose an active technician, or leave it to each site’s usual one')
   }
   const rows = auditRows(db, ids, 'disagree')
   const bySite = new Map<number, AuditRow[]>()
@@ -161,51 +166,95 @@ function correctionVisits(db: Db, ids: readonly number[], i: z.infer<typeof inpu
         .all(...chunk, ...OPEN_VISIT_STATUSES) as Array<{ detectorId: number; visitId: number; on: string }>,
   ).forEach((o) => open.set(o.detectorId, o))
 
-  const usual = usualBySite(db, [...bySite.values()].map((rs) => rs[0].id), ctx.today)
+  // Each technician's day as booked already (open visits from today on), in their own unit; the
+  // visits planned here are added as they are placed, so two sites never share the same room.
+  const pool = chosen ? [chosen] : everyone
+  const byId = new Map(pool.map((t) => [t.id, t]))
+  const load = new Map<string, number>()
+  const key = (tech: number, date: string) => `${tech}|${date}`
+  for (const b of bookedVisits(db, pool.map((t) => t.id), ctx.today)) load.set(key(b.technicianId, b.scheduledOn), (load.get(key(b.technicianId, b.scheduledOn)) ?? 0) + weight(byId.get(b.technicianId), b.detectorCount))
+  const usual = chosen ? new Map<number, { id: number }>() : usualTechnicians(db, [...bySite.keys()])
+
   const changes: BulkChange[] = []
   const refused: BulkRefusal[] = []
-  for (const [siteId, all] of bySite) {
+  // Sites in a fixed order (by id), so the same data always gives the same plan, preview and apply alike.
+  for (const siteId of [...bySite.keys()].sort((a, b) => a - b)) {
+    const all = bySite.get(siteId)!
     const { site, region } = all[0]
+    const label = (r: AuditRow) => `${r.tag} · ${site}`
+    const refuse = (rs: readonly AuditRow[], reason: string) => rs.forEach((r) => refused.push({ id: r.id, label: label(r), reason }))
     const booked = all.filter((r) => open.has(r.id))
-    for (const r of booked) refused.push({ id: r.id, label: `${r.tag} · ${site}`, reason: `Already on open visit ${open.get(r.id)!.visitId} (${open.get(r.id)!.on}) for a functional test; add the delay check there` })
+    for (const r of booked) refused.push({ id: r.id, label: label(r), reason: `Already on open visit ${open.get(r.id)!.visitId} (${open.get(r.id)!.on}) for a functional test; add the delay check there` })
     const todo = all.filter((r) => !open.has(r.id))
     if (todo.length === 0) continue
-    let date: string
+
+    let cal: WorkCalendar
     try {
-      const cal = ctx.calendar.forRegion(region)
-      date = i.date ?? cal.nextWorkingDay(addDays(ctx.today, 1))
-      const off = i.date ? ctx.calendar.dayOff(region, i.date) : null
-      if (off) {
-        for (const r of todo) refused.push({ id: r.id, label: `${r.tag} · ${site}`, reason: `${i.date} is not a working day at ${site} (${off}); the next one is ${cal.nextWorkingDay(i.date!)}` })
-        continue
-      }
+      cal = ctx.calendar.forRegion(region)
     } catch {
-      for (const r of todo) refused.push({ id: r.id, label: `${r.tag} · ${site}`, reason: `Unknown holiday region '${region}' for ${site}` })
+      refuse(todo, `Unknown holiday region '${region}' for ${site}`)
       continue
     }
-    const tech = chosen ?? usual.get(siteId) ?? null
+    const off = i.date ? ctx.calendar.dayOff(region, i.date) : null
+    if (off) {
+      refuse(todo, `${i.date} is not a working day at ${site} (${off}); the next one is ${cal.nextWorkingDay(i.date!)}`)
+      continue
+    }
+    // Who may go: the chosen technician, else the site's usual one first, then everyone else covering its region.
+    const usualId = usual.get(siteId)?.id
+    const able = pool.filter((t) => covers(t, region))
+    if (able.length === 0) {
+      refuse(todo, chosen ? `${chosen.name} does not cover ${region}` : `No active technician covers ${region}`)
+      continue
+    }
+    const days = daysFor(cal, ctx.today, i.date)
+    let placed: { tech: FieldTechnician; date: string } | null = null
+    for (const date of days) {
+      const has = (t: FieldTechnician) => load.get(key(t.id, date)) ?? 0
+      const room = able
+        .filter((t) => has(t) + weight(t, todo.length) <= limitOf(t))
+        .sort((a, b) => Number(b.id === usualId) - Number(a.id === usualId) || has(a) - has(b) || a.name.localeCompare(b.name))
+      if (room.length) {
+        placed = { tech: room[0], date }
+        break
+      }
+    }
+    if (!placed) {
+      const when = i.date ? `on ${i.date}` : `in the next ${SEARCH_WORKING_DAYS} working days`
+      const most = Math.max(...able.map((t) => (t.capacityUnit === 'visits' ? Infinity : limitOf(t))))
+      refuse(
+        todo,
+        todo.length > most
+          ? `${plural(todo.length, 'detector')} at ${site} are more than any technician covering ${region} takes in a day (${most} at most)`
+          : `No technician covering ${region} has room ${when} for ${plural(todo.length, 'detector')} at ${site}`,
+      )
+      continue
+    }
+    const { tech, date } = placed
+    load.set(key(tech.id, date), (load.get(key(tech.id, date)) ?? 0) + weight(tech, todo.length))
     const create = {
       siteId,
       kind: 'repair' as const,
       scheduledOn: date,
-      technicianId: tech?.id ?? null,
+      technicianId: tech.id,
       notes: correctionNotes(todo),
       detectors: todo.map((r) => ({ detectorId: r.id, tasks: ['functional' as const] })),
     }
-    const who = tech ? tech.name : 'no technician yet'
-    changes.push(createChange(`${site} · ${date} · ${who}`, create, { site, kind: 'repair', scheduledOn: date, technician: who, detectors: todo.length }))
+    changes.push(createChange(`${site} · ${date} · ${tech.name}`, create, { site, kind: 'repair', scheduledOn: date, technician: tech.name, detectors: todo.length }))
   }
   changes.sort((a, b) => a.label.localeCompare(b.label))
   refused.sort((a, b) => a.label.localeCompare(b.label))
   const detectorCount = changes.reduce((n, c) => n + (c.create?.detectors.length ?? 0), 0)
-  const summary = `Book ${plural(changes.length, 'correction visit')} for ${plural(detectorCount, 'disagreeing detector')}, one per site`
+  const summary = `Book ${plural(changes.length, 'correction visit')} for ${plural(detectorCount, 'disagreeing detector')}, one per site, within each technician's regions and daily capacity`
   return { changes, refused, summary }
 }
 
 /**
  * The delay-setting audit over a selection (or the fleet through a list filter): counts per outcome
  * from the stored agreement, then either marks agreeing settings verified today, or books one
- * 'repair' visit per site for the detectors whose setting disagrees with the site's policy.
+ * 'repair' visit per site for the detectors whose setting disagrees with the site's policy, on a
+ * working day of the company calendar, with a technician who covers the site's region and has room
+ * that day (the site's usual technician first); a site no one can take is refused with the reason.
  */
 export const delayAudit = defineAction({
   name: 'delay-audit',
