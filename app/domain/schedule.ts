@@ -126,7 +126,7 @@ export function nextSensitivityDue(input: ScheduleInput): { dueOn: IsoDate; basi
   }
   const why = inRange
     ? `${input.sensitivityStreak} tests in range in a row, but the site keeps no nuisance-alarm records, a condition of the 5-year interval`
-    : `${input.sensitivityStreak} of the ${EXTENSION_STREAK} tests in range in a row the 5-year interval needs`
+    : `${input.sensitivityStreak} in-range test${input.sensitivityStreak === 1 ? '' : 's'} in a row so far, and the 5-year interval needs ${EXTENSION_STREAK}`
   return { dueOn: addYears(input.lastSensitivityOn, 2), basis: `Every alternate year: ${why} (NFPA 72 14.4.5.3.1–.2)` }
 }
 

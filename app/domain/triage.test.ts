@@ -50,7 +50,10 @@ describe('triage: each reason', () => {
     expect(triage({ ...healthy, overdue: [{ task: 'visual', days: 1 }] }).reasons[0].text).toBe('Visual inspection overdue by 1 day')
     const both = triage({ ...healthy, overdue: [{ task: 'cleaning', days: 200 }, { task: 'functional', days: 45 }] })
     // Functional 45 days: 20 + 2 = 22. Cleaning 200 days: 6 + 2 × 6 = 18. The functional test leads.
-    expect(both.reasons).toEqual([{ code: 'overdue', points: 22, text: 'Functional test overdue by 45 days; also cleaning by 200 days' }])
+    expect(both.reasons).toEqual([{ code: 'overdue', points: 22, text: 'Functional test overdue by 45 days; also cleaning' }])
+    const all = triage({ ...healthy, overdue: [{ task: 'visual', days: 5296 }, { task: 'cleaning', days: 5420 }, { task: 'functional', days: 5082 }] })
+    // Functional 5,082 days: 20 + 20 + floor(4,782 / 90) = 93; the others are named, not counted again.
+    expect(all.reasons).toEqual([{ code: 'overdue', points: 93, text: 'Functional test overdue by 5,082 days; also visual check, cleaning' }])
   })
 
   it('an overdue functional test outweighs an overdue cleaning, sensitivity or visual check as late', () => {

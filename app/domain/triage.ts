@@ -48,7 +48,8 @@ export function overduePoints(task: Task, days: number): number {
   return OVERDUE_BASE[task] + 2 * early + late
 }
 
-const dayWord = (n: number) => `${n} day${n === 1 ? '' : 's'}`
+const SHORT: Record<Task, string> = { functional: 'functional test', sensitivity: 'sensitivity', visual: 'visual check', cleaning: 'cleaning' }
+const dayWord = (n: number) => `${n.toLocaleString('en-US')} day${n === 1 ? '' : 's'}`
 
 // Weights are the product's own call, set so that a live trouble outranks paperwork and an
 // unreported fault outranks a late test; each reason shows its points so the order explains itself.
@@ -60,12 +61,12 @@ export function triage(input: TriageInput): { score: number; reasons: TriageReas
   if (input.state === 'alarm' || input.state === 'supervisory') add('in-alarm', 45, `Showing ${input.state} now`)
   if (input.state === 'out-of-service') add('out-of-service', 35, 'Out of service: the duct is not protected')
   if (input.overdue.length > 0) {
-    // The weightiest task sets the points; the words name every overdue task, weightiest first.
+    // The weightiest task sets the points and its lateness is given; the others are named after it.
     const ranked = [...input.overdue]
       .map((t) => ({ ...t, points: overduePoints(t.task, t.days) }))
       .sort((a, b) => b.points - a.points || a.task.localeCompare(b.task))
     const [head, ...rest] = ranked
-    const more = rest.map((t) => `${TASK_LABELS[t.task].toLowerCase()} by ${dayWord(t.days)}`).join(', ')
+    const more = rest.map((t) => SHORT[t.task]).join(', ')
     add('overdue', head.points, `${TASK_LABELS[head.task]} overdue by ${dayWord(head.days)}${more ? `; also ${more}` : ''}`)
   }
   // A miswire fails the test and the readings alike: one fault, counted once (under the failed test),
@@ -75,7 +76,7 @@ export function triage(input: TriageInput): { score: number; reasons: TriageReas
     if (input.lastResult === 'fail') add('failed-diagnosis', 0, 'Readings point at a wiring fault, likely why the test failed (counted once)')
     else add('failed-diagnosis', 25, 'Last readings point at a wiring fault')
   } else if (input.supervisionUnproven) {
-    add('supervision-unproven', 8, 'Loop never shown to report trouble: no reading with the detector in trouble or powered down')
+    add('supervision-unproven', 8, 'Loop never shown to report trouble (no reading in trouble or powered down)')
   }
   if (input.troubles30d >= 2) {
     add('repeated-troubles', Math.min(20, 5 * input.troubles30d), `${input.troubles30d} troubles in the last 30 days`)

@@ -48,7 +48,7 @@ const crumb = `${TAP} text-ink-soft underline decoration-line-strong underline-o
 const minSec = (s: number) => [Math.floor(s / 60) && `${Math.floor(s / 60)} min`, s % 60 && `${Math.round(s % 60)} s`].filter(Boolean).join(' ')
 /** A task's badge: the nominal date, or how it stands against the window the standard allows. */
 const dueWords = (t: TaskDue) =>
-  t.status === 'overdue' ? `Overdue: due ${t.dueOn}, ${t.daysOverdue} d past the window` : t.status === 'due' ? `Due ${t.dueOn}, inside the window` : `Due ${t.dueOn}`
+  t.status === 'overdue' ? `Overdue: due ${t.dueOn}, ${t.daysOverdue} d past the window` : t.status === 'due' ? `Due ${t.dueOn}, ${t.overdueAfter === t.dueOn ? 'the last day' : 'inside the window'}` : `Due ${t.dueOn}`
 const delayWords = (s: number | null) => (s === null ? 'not recorded' : s === 0 ? 'report at once' : `${minSec(s)} delay`)
 
 function fits(e: Expected, r: Reading | undefined): boolean | null {
