@@ -1,6 +1,6 @@
 import { Form, redirect } from 'react-router'
 import { authorize, getAuthenticator, userFromRequest } from '~/.server/auth'
-import { readFormData } from '~/.server/http'
+import { methodNotAllowed, readFormData } from '~/.server/http'
 import { returnToCookie } from '~/.server/sign-in'
 import type { RouteAccess } from '~/domain/permissions'
 import { safeReturnTo } from '~/utils/return-to'
@@ -18,13 +18,16 @@ export async function loader({ request }: Route.LoaderArgs) {
 }
 
 export async function action({ request }: Route.ActionArgs) {
+  if (request.method !== 'POST') return methodNotAllowed(request, ['POST'])
   await authorize(request, 'public')
-  // The strategy clones the request later, so the body is read from a copy.
-  const form = await readFormData(request.clone())
+  const form = await readFormData(request)
   const returnTo = safeReturnTo(String(form.get('returnTo') ?? '/'))
+  // This action only ever starts a sign-in. The strategy takes a `state` in the address for the
+  // provider's answer, so it is shown the bare path: a stray query cannot make it finish one here.
+  const start = new Request(new URL(new URL(request.url).pathname, request.url), { method: 'POST', headers: request.headers })
   try {
-    const auth = await getAuthenticator(request)
-    await auth.authenticate('oidc', request)
+    const auth = await getAuthenticator(start)
+    await auth.authenticate('oidc', start)
   } catch (thrown) {
     // The strategy throws its redirect to the provider: add where to come back to.
     if (thrown instanceof Response && thrown.status >= 300 && thrown.status < 400) {

@@ -116,6 +116,16 @@ describe('sign-in, sessions and tokens', () => {
     expect(next.callback.status).toBe(302)
   })
 
+  it('starts a sign-in only with POST, whatever its address carries', async () => {
+    const post = (query: string, method = 'POST') =>
+      fetch(`${server.url}/sign-in${query}`, { method, redirect: 'manual', headers: { Origin: server.url, 'Content-Type': 'application/x-www-form-urlencoded' }, body: 'returnTo=%2F' })
+    // A state and code in the address are the provider's answer's, never this form's.
+    const strayed = await post('?state=abc&code=xyz')
+    expect(strayed.status).toBe(302)
+    expect(new URL(strayed.headers.get('location')!).origin).toBe(server.issuer)
+    expect((await post('', 'DELETE')).status).toBe(405)
+  })
+
   it('refuses a person the provider knows but Ductkeeper does not', async () => {
     const { callback } = await signInViaProvider(server.url, 'visitor@ductkeeper.test')
     expect(callback.status).toBe(403)
