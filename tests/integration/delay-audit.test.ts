@@ -1,5 +1,5 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { countSelection } from '~/.server/bulk/actions/delay-audit'
+import { countSelection, openFunctionalVisits } from '~/.server/bulk/actions/delay-audit'
 import { bulkAction } from '~/.server/bulk/registry'
 import { applyBulk, previewBulk } from '~/.server/bulk/runner'
 import { resolveSelection } from '~/.server/bulk/selection'
@@ -185,6 +185,15 @@ describe('delay-setting audit', () => {
     const batch = usualTechnicians(data.db, [...one.keys()])
     expect([...one].filter(([, u]) => u !== null).length).toBeGreaterThan(0)
     for (const [siteId, u] of one) expect(batch.get(siteId) ?? null, `site ${siteId}`).toEqual(u)
+  })
+
+  it('finds the open functional visits the same way for a large selection (from the visits) as for a small one (per detector)', () => {
+    const all = (q().prepare('select id from detectors order by id').all() as Array<{ id: number }>).map((r) => r.id)
+    const whole = openFunctionalVisits(data.db, all, 0)
+    const pieces = new Map<number, { visitId: number; on: string }>()
+    for (let i = 0; i < all.length; i += 50) for (const [d, v] of openFunctionalVisits(data.db, all.slice(i, i + 50), Infinity)) pieces.set(d, v)
+    expect(whole.size).toBeGreaterThan(0)
+    expect([...whole].sort((a, b) => a[0] - b[0])).toEqual([...pieces].sort((a, b) => a[0] - b[0]))
   })
 
   it('books nothing when the write fails part-way through the visits', () => {

@@ -130,6 +130,35 @@ function verify(db: Db, ids: readonly number[], ctx: BulkContext, counts: AuditC
   return { changes, refused, summary }
 }
 
+// Above this many detectors, the open visits are read from the visits' side (the open ones are few,
+// on visits_status_day_idx) and matched in memory: one seek per detector into its whole visit
+// history cost seconds at fleet scale.
+const FROM_VISITS_ABOVE = 500
+
+/** The open visit holding a functional test for each of these detectors that has one. */
+export function openFunctionalVisits(db: Db, detectorIds: readonly number[], fromVisitsAbove = FROM_VISITS_ABOVE): Map<number, { visitId: number; on: string }> {
+  const statuses = OPEN_VISIT_STATUSES.map(() => '?').join(',')
+  const functional = `(',' || vd.tasks || ',') like '%,functional,%'`
+  const rows =
+    detectorIds.length > fromVisitsAbove
+      ? (db.$client
+          .prepare(`select vd.detector_id as detectorId, v.id as visitId, v.scheduled_on as "on" from visits v join visit_detectors vd on vd.visit_id = v.id where v.status in (${statuses}) and ${functional} order by v.id`)
+          .all(...OPEN_VISIT_STATUSES) as Array<{ detectorId: number; visitId: number; on: string }>)
+      : chunks(detectorIds, (chunk, marks) =>
+          db.$client
+            .prepare(
+              `select vd.detector_id as detectorId, v.id as visitId, v.scheduled_on as "on" from visit_detectors vd join visits v on v.id = vd.visit_id
+                where vd.detector_id in (${marks}) and v.status in (${statuses}) and ${functional} order by v.id`,
+            )
+            .all(...chunk, ...OPEN_VISIT_STATUSES) as Array<{ detectorId: number; visitId: number; on: string }>,
+        )
+  const wanted = new Set(detectorIds)
+  const out = new Map<number, { visitId: number; on: string }>()
+  // Ordered by visit id within SQLite's walk; the first open visit found per detector is named.
+  for (const r of rows) if (wanted.has(r.detectorId) && !out.has(r.detectorId)) out.set(r.detectorId, { visitId: r.visitId, on: r.on })
+  return out
+}
+
 // Without a date, the first of this many working days on which someone has room (about four weeks).
 const SEARCH_WORKING_DAYS = 20
 
@@ -154,17 +183,7 @@ function correctionVisits(db: Db, ids: readonly number[], i: z.infer<typeof inpu
   for (const r of rows) bySite.set(r.siteId, [...(bySite.get(r.siteId) ?? []), r])
 
   // A detector already on an open visit for a functional test is left there: add the check to that visit.
-  const open = new Map<number, { visitId: number; on: string }>()
-  chunks(
-    rows.map((r) => r.id),
-    (chunk, marks) =>
-      db.$client
-        .prepare(
-          `select vd.detector_id as detectorId, v.id as visitId, v.scheduled_on as "on" from visit_detectors vd join visits v on v.id = vd.visit_id
-            where vd.detector_id in (${marks}) and v.status in (${OPEN_VISIT_STATUSES.map(() => '?').join(',')}) and (',' || vd.tasks || ',') like '%,functional,%'`,
-        )
-        .all(...chunk, ...OPEN_VISIT_STATUSES) as Array<{ detectorId: number; visitId: number; on: string }>,
-  ).forEach((o) => open.set(o.detectorId, o))
+  const open = openFunctionalVisits(db, rows.map((r) => r.id))
 
   // Each technician's day as booked already (open visits from today on), in their own unit; the
   // visits planned here are added as they are placed, so two sites never share the same room.
@@ -177,6 +196,8 @@ function correctionVisits(db: Db, ids: readonly number[], i: z.infer<typeof inpu
 
   const changes: BulkChange[] = []
   const refused: BulkRefusal[] = []
+  // Sites share a handful of regions: each region's days are worked out once.
+  const daysByRegion = new Map<string, string[]>()
   // Sites in a fixed order (by id), so the same data always gives the same plan, preview and apply alike.
   for (const siteId of [...bySite.keys()].sort((a, b) => a - b)) {
     const all = bySite.get(siteId)!
@@ -207,7 +228,8 @@ function correctionVisits(db: Db, ids: readonly number[], i: z.infer<typeof inpu
       refuse(todo, chosen ? `${chosen.name} does not cover ${region}` : `No active technician covers ${region}`)
       continue
     }
-    const days = daysFor(cal, ctx.today, i.date)
+    let days = daysByRegion.get(region)
+    if (!days) daysByRegion.set(region, (days = daysFor(cal, ctx.today, i.date)))
     let placed: { tech: FieldTechnician; date: string } | null = null
     for (const date of days) {
       const has = (t: FieldTechnician) => load.get(key(t.id, date)) ?? 0
