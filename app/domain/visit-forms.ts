@@ -86,7 +86,13 @@ export const visitIntent = z.discriminatedUnion('intent', [
   }),
   z.object({ intent: z.literal('start'), version }),
   z.object({ intent: z.literal('record'), version, entries: z.array(detectorEntry).min(1).max(500) }),
-  z.object({ intent: z.literal('complete'), version, entries: z.array(detectorEntry).max(500).default([]) }),
+  z.object({
+    intent: z.literal('complete'),
+    version,
+    entries: z.array(detectorEntry).max(500).default([]),
+    /** The day the work was done, when it is written up later; the office day when absent. Never after it (checked on the server, which knows the day). */
+    doneOn: day.optional(),
+  }),
   z.object({ intent: z.literal('all-clear'), version, confirmedWith: required(120, 'Who confirmed the system is out of test'), at: instant.optional() }),
   // Where the monitoring company takes e-mail: the notice of work and the all-clear sent through the outbox.
   z.object({

@@ -249,7 +249,10 @@ export function applyVisitIntent(db: Db, actor: Actor, visitId: number, input: V
       }
       case 'complete': {
         needStatus(visit, ['in-progress'], 'completed (start it first)')
-        completeVisit(db, actor, visit, input.entries, ctx.today, now)
+        // Results are history: a day not yet come cannot hold one.
+        const doneOn = input.doneOn ?? ctx.today
+        if (doneOn > ctx.today) throw new VisitRefusal(400, `The work cannot be dated ${doneOn}: that is after today (${ctx.today}). Give the day it was done.`)
+        completeVisit(db, actor, visit, input.entries, doneOn, ctx.today, now)
         bump("status = 'done', completed_at = ?", now)
         return
       }
@@ -385,7 +388,7 @@ function emailFor(ctx: WorkContext, kind: 'notice' | 'all-clear'): NewMessage {
  * row's result, an event, the facts found on the record; then re-derives those detectors. Runs inside
  * the caller's transaction.
  */
-function completeVisit(db: Db, actor: Actor, visit: VisitRow, given: DetectorEntry[], today: string, now: string) {
+function completeVisit(db: Db, actor: Actor, visit: VisitRow, given: DetectorEntry[], doneOn: string, today: string, now: string) {
   const q = db.$client
   const list = items(db, visit.id)
   entriesOnVisit(list, given)
@@ -411,14 +414,14 @@ function completeVisit(db: Db, actor: Actor, visit: VisitRow, given: DetectorEnt
     // A detector not tested keeps no readings or results from this visit; its reason says why.
     if (e.result !== 'not-tested') for (const r of readingRows(e)) insReading.run(e.detectorId, visit.id, now, r.kind, r.value, r.open ? 1 : 0, actor.id)
     const outcomes = taskOutcomes(tasks, e, e.headsFitted ?? item.headsFitted)
-    for (const o of outcomes) insResult.run(e.detectorId, visit.id, o.task, today, o.outcome, o.value, actor.id)
+    for (const o of outcomes) insResult.run(e.detectorId, visit.id, o.task, doneOn, o.outcome, o.value, actor.id)
     saveItem.run(resultOf(e), e.reason || null, JSON.stringify(findingsOf(e)), e.notes || null, now, visit.id, e.detectorId)
     insEvent.run(visit.siteId, e.detectorId, now, eventKind(outcomes), eventDetail(visit.id, outcomes, e), actor.id)
     if (e.result !== 'not-tested' && (e.delaySecondsFound !== undefined || e.headsFitted !== undefined)) {
       q.prepare(
         `update detectors set delay_seconds = coalesce(?, delay_seconds), delay_observed_on = case when ? is null then delay_observed_on else ? end,
            heads_fitted = coalesce(?, heads_fitted), version = version + 1, updated_at = ? where id = ?`,
-      ).run(e.delaySecondsFound ?? null, e.delaySecondsFound ?? null, today, e.headsFitted ?? null, now, e.detectorId)
+      ).run(e.delaySecondsFound ?? null, e.delaySecondsFound ?? null, doneOn, e.headsFitted ?? null, now, e.detectorId)
     }
     summary.push({ detectorId: e.detectorId, result: resultOf(e), tasks: Object.fromEntries(outcomes.map((o) => [o.task, o.outcome])) })
   }

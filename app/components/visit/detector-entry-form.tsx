@@ -70,6 +70,8 @@ export function DetectorEntryForm({
   const [index, setIndex] = useState(0)
   const complete = useVisitIntent(visitId)
   const [completeProblem, setCompleteProblem] = useState<string | null>(null)
+  // Blank means today; a later day is refused by the server with its reason.
+  const [doneOn, setDoneOn] = useState('')
   const ordered = roofWalk(detectors)
   const d = ordered[Math.min(index, ordered.length - 1)]
   if (!d) return <p className="text-base text-ink-soft">No detectors on this visit.</p>
@@ -88,7 +90,7 @@ export function DetectorEntryForm({
       }
       entries.push(r.entry)
     }
-    await complete.send({ intent: 'complete', version, entries }, () => clearDrafts(visitId))
+    await complete.send({ intent: 'complete', version, entries, ...(doneOn ? { doneOn } : {}) }, () => clearDrafts(visitId))
   }
 
   return (
@@ -129,6 +131,13 @@ export function DetectorEntryForm({
             {complete.error.stale ? 'Changed on another device — reload to see it; your entries are kept on this phone.' : complete.error.message}
           </Alert>
         )}
+        <label className="block text-sm font-medium">
+          Work done on
+          <input type="date" className={`${bigInput} mt-1 block`} value={doneOn} onChange={(e) => setDoneOn(e.target.value)} aria-describedby="done-on-hint" />
+          <span id="done-on-hint" className="mt-1 block text-sm font-normal text-ink-soft">
+            Leave blank for today. Only when writing up work done on an earlier day.
+          </span>
+        </label>
         <button type="button" className={`${bigButton} w-full`} disabled={complete.busy} onClick={completeVisit}>
           {complete.busy ? 'Completing…' : 'Complete visit'}
         </button>
