@@ -36,7 +36,7 @@ const server = spawn('node_modules/.bin/react-router-serve', ['build/server/inde
 const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms))
 for (let i = 0; ; i++) {
   if (await fetch(`${url}/healthz`).then((r) => r.ok, () => false)) break
-  if (i > 200) throw new Error('the server did not start')
+  if (i > 600) throw new Error('the server did not start')
   await sleep(100)
 }
 
