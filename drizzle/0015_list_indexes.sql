@@ -37,4 +37,11 @@ CREATE INDEX `units_tag_idx` ON `units` (`tag`);--> statement-breakpoint
 CREATE INDEX `visits_kind_idx` ON `visits` (`kind`);--> statement-breakpoint
 CREATE INDEX `visits_kind_day_idx` ON `visits` (`kind`,`scheduled_on`);--> statement-breakpoint
 CREATE INDEX `visits_status_idx` ON `visits` (`status`);--> statement-breakpoint
-CREATE INDEX `visits_status_day_idx` ON `visits` (`status`,`scheduled_on`);
+CREATE INDEX `visits_status_day_idx` ON `visits` (`status`,`scheduled_on`);--> statement-breakpoint
+-- Statistics for the new indexes: without them SQLite guesses each is highly selective and may walk
+-- one that needs a sort over the one that holds the order (a filter by state sorted by risk).
+ANALYZE `customers`;--> statement-breakpoint
+ANALYZE `sites`;--> statement-breakpoint
+ANALYZE `units`;--> statement-breakpoint
+ANALYZE `detectors`;--> statement-breakpoint
+ANALYZE `visits`;

@@ -19,21 +19,27 @@ const DEVICE_FILTERS: Record<string, readonly string[]> = {
   delay: DELAY_AGREEMENTS,
   loop: LOOP_VERDICTS,
 }
+// Sorts no index serves are offered only over a few thousand rows (`costlySorts`): timed within one customer.
+const NARROW: Record<string, string[]> = {
+  '/api/sites': ['units', 'detectors', 'overdue', 'nextVisitOn', 'monitoring'],
+  '/api/visits': ['technician', 'detectors', 'notified'],
+}
 const LISTS: Array<{ path: string; sorts: string[]; filters: Record<string, readonly string[]> }> = [
   { path: '/api/devices', sorts: DEVICE_SORTS, filters: DEVICE_FILTERS },
   { path: '/api/customers', sorts: ['name', 'kind', 'sites', 'detectors', 'overdue', 'inTrouble'], filters: { kind: ['restaurant', 'retail', 'office', 'school', 'healthcare'] } },
   {
     path: '/api/sites',
-    sorts: ['name', 'customer', 'city', 'region', 'codeBasis', 'monitoring', 'delayPolicySeconds', 'units', 'detectors', 'overdue', 'nextVisitOn'],
+    sorts: ['name', 'customer', 'city', 'region', 'codeBasis', 'delayPolicySeconds'],
     filters: { codeBasis: ['imc', 'nfpa90a'] },
   },
   {
     path: '/api/visits',
-    sorts: ['scheduledOn', 'kind', 'status', 'site', 'city', 'customer', 'technician', 'detectors', 'notified'],
+    sorts: ['scheduledOn', 'kind', 'status', 'site', 'city', 'customer'],
     filters: { status: ['planned', 'notified', 'in-progress', 'done', 'cancelled'], kind: ['inspection', 'test', 'cleaning', 'repair', 'commissioning'] },
   },
   { path: '/api/events', sorts: ['occurredAt'], filters: { kind: EVENT_KINDS } },
-  { path: '/api/triage', sorts: ['risk', ...DEVICE_SORTS.filter((s) => s !== 'risk')], filters: { reason: REASON_CODES, acknowledged: ['only', 'all'] } },
+  // The orders the Triage page offers; the other detector orders only over few rows (`costlySorts`).
+  { path: '/api/triage', sorts: ['risk', 'tag', 'site', 'customer', 'state', 'due'], filters: { reason: REASON_CODES, acknowledged: ['only', 'all'] } },
 ]
 
 const one = <T>(db: Database.Database, sql: string, ...params: unknown[]) => db.prepare(sql).get(...params) as T
@@ -79,6 +85,9 @@ export function listCases(db: Database.Database): { lists: ListCase[]; records: 
     { name: 'api events from..to (a week)', path: '/api/events?from=2026-06-01&to=2026-06-07&limit=100' },
     { name: `api triage customer=${customer}`, path: `/api/triage?customer=${customer}&limit=100` },
   )
+  for (const [path, sorts] of Object.entries(NARROW)) {
+    for (const sort of sorts) lists.push({ name: `api ${path.replace('/api/', '')} customer=${customer} sort=${sort} desc`, path: `${path}?customer=${customer}&sort=${sort}&dir=desc&limit=100` })
+  }
   for (const sort of ['kind', 'detail', 'detector', 'site', 'by']) lists.push({ name: `api events site=${site} sort=${sort}`, path: `/api/events?site=${site}&sort=${sort}&limit=100` })
 
   // Search: one, two and three letters, and whole words, in the palette and in each list's box.

@@ -79,7 +79,7 @@ export async function benchWork(source: string, scratch: string, today: string, 
 
     const cycle = bulkAction('cleaning-cycle')!
     // The detectors whose cleaning falls due soonest, as an office would pick a cycle's share.
-    const due = (q.prepare('select id from detectors order by next_due_on is null, next_due_on, id limit ?').all(o.cycleDetectors) as Array<{ id: number }>).map((d) => d.id)
+    const due = (q.prepare('select id from detectors order by next_cleaning_on is null, next_cleaning_on, id limit ?').all(o.cycleDetectors) as Array<{ id: number }>).map((d) => d.id)
     const from = loadCompanyCalendar(db).forRegion('US').nextWorkingDay(addDays(today, 1))
     const cycleMs: number[] = []
     let summary = ''
