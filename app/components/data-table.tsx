@@ -198,15 +198,24 @@ export function DataTable<Row extends { id: number }>(p: DataTableProps<Row>) {
   const first = items[0]?.index ?? 0
   const last = items[items.length - 1]?.index ?? 0
 
+  // Where the range rested last, to tell which way the reader is scrolling.
+  const restedAt = useRef(first)
   useEffect(() => {
     const t = setTimeout(() => {
       const from = Math.floor(first / PAGE)
       const to = Math.floor(last / PAGE)
+      const down = first > restedAt.current
+      const up = first < restedAt.current
+      restedAt.current = first
       const next = Array.from({ length: to - from + 1 }, (_, i) => from + i)
+      // Scrolling on at reading speed: past the middle of the last window shown, the next one that
+      // way is fetched before it is reached (and the server reads it on from the rows just served).
+      if (down && last % PAGE >= PAGE / 2 && (to + 1) * PAGE < count) next.push(to + 1)
+      if (up && first % PAGE < PAGE / 2 && from > 0) next.unshift(from - 1)
       setWindows((prev) => (prev.join() === next.join() ? prev : next))
     }, SETTLE_MS)
     return () => clearTimeout(t)
-  }, [first, last])
+  }, [first, last, count])
 
   const rowAt = (i: number): Row | undefined => {
     const page = pages.current.get(urlFor(Math.floor(i / PAGE), shownQuery))
