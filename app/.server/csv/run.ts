@@ -2,6 +2,7 @@ import { eq } from 'drizzle-orm'
 import { eventRow, guessMapping, inventoryRow, mappingSchema, type ImportKind, type Mapping } from '~/domain/import-schemas'
 import { writeAudit } from '../audit'
 import { writeTx, type Db } from '../db'
+import { nextTurn } from '../derivation'
 import { listsChanged } from '../list-query'
 import { importMappings } from '../schema'
 import { applyEvents, planEvents, type EventCounts } from './events'
@@ -104,7 +105,8 @@ export async function checkImport(db: Db, meta: StoredImport, path: string, mapp
  * check reported. Event files are planned inside the transaction, against the events of that moment.
  */
 export async function commitImport(db: Db, meta: StoredImport, path: string, mapping: Mapping, actorId: number, today: string): Promise<ImportReport> {
-  const p = await parsed(meta, path, mapping)
+  // The rows are read as the check read them, handing the event loop back every 1,000.
+  const p = await parsed(meta, path, mapping, async () => void (await nextTurn()))
   const skipped = new Set(p.problems.map((x) => x.row)).size
   let ahead: { plan: InventoryPlan; staged: Staged } | null = null
   try {
