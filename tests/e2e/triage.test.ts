@@ -71,6 +71,10 @@ describe('triage in Chromium', () => {
   it('books from the palette by keyboard: usual technician and next working day filled in, Esc closes, Enter books, the open visit shown next time', async () => {
     const page = await signedInPage({ width: 1440, height: 900 })
     const first = sql().prepare("select id, tag, site_id as siteId from detectors where risk_reasons != '' and acknowledged_at is null order by risk_score desc, id desc limit 1").get() as { id: number; tag: string; siteId: number }
+    // Whichever detector the ranking puts first starts with no open visit, so there is one to book.
+    sql()
+      .prepare("update visits set status = 'cancelled' where status in ('planned', 'notified', 'in-progress') and id in (select visit_id from visit_detectors where detector_id = ?)")
+      .run(first.id)
     const site = bookingPlan(t.data.db, [first.id], 'test', TEST_TODAY).sites[0]
     expect(site.openVisits).toEqual([])
     expect(site.usual).not.toBeNull()
