@@ -394,6 +394,8 @@ export const taskResults = sqliteTable(
     // Covers the derivation's read of a detector's history (outcome included: no table lookups).
     index('task_results_history_idx').on(t.detectorId, t.task, t.doneOn, t.outcome),
     index('task_results_visit_idx').on(t.visitId),
+    // The digest's "failed since last week": few rows, found by day without walking every result.
+    index('task_results_fail_idx').on(t.doneOn, t.visitId).where(sql`outcome = 'fail'`),
   ],
 )
 
@@ -461,6 +463,8 @@ export const events = sqliteTable(
     index('events_detector_idx').on(t.detectorId, t.occurredAt),
     index('events_site_idx').on(t.siteId, t.occurredAt),
     index('events_kind_idx').on(t.kind, t.occurredAt),
+    // How long each detector has been in trouble, for the digest, without reading its other events.
+    index('events_trouble_idx').on(t.detectorId, t.occurredAt).where(sql`kind = 'trouble'`),
     index('events_time_idx').on(t.occurredAt),
   ],
 )
