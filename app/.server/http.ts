@@ -164,12 +164,27 @@ export function methodNotAllowed(request: Request, allow: readonly string[]): Re
 }
 
 /**
+ * A method a route has no handler for gets the framework's own 405, whose body says "Unexpected
+ * Server Error": an API client is told instead, in the same shape as every other refusal, which
+ * method the address does not take. (The framework already logs it as one line.)
+ */
+async function apiAnswer(request: Request, response: Response): Promise<Response> {
+  const { pathname } = new URL(request.url)
+  if (response.status !== 405 || !pathname.startsWith('/api/') || !response.headers.get('Content-Type')?.includes('application/json')) return response
+  const body = (await response.clone().json().catch(() => null)) as Record<string, unknown> | null
+  if (!body || body.error !== undefined) return response
+  const headers = new Headers(response.headers)
+  headers.delete('Content-Length')
+  return Response.json({ error: `${pathname} does not take ${request.method}.` }, { status: 405, headers })
+}
+
+/**
  * Root middleware: every /api/* answer, refusals included, is never sniffed and never kept by a
  * browser or proxy (they carry one person's records). A route that chose its own caching (an
  * attachment's image) keeps it.
  */
 export const apiHeaders: MiddlewareFunction<Response> = async ({ request }, next) => {
-  const response = await next()
+  const response = await apiAnswer(request, await next())
   if (!new URL(request.url).pathname.startsWith('/api/')) return response
   const headers = new Headers(response.headers)
   headers.set('X-Content-Type-Options', 'nosniff')

@@ -30,6 +30,12 @@ describe('API response headers', () => {
     }
     const rows = (await (await go(jar, `${server.url}/api/devices?limit=5`)).json()) as { rows: unknown[] }
     expect(rows.rows).toHaveLength(5)
+
+    // A method the address has no handler for is refused in words, in the shape of every refusal.
+    const wrong = await go(jar, `${server.url}/api/devices`, { method: 'DELETE' })
+    expect(wrong.status).toBe(405)
+    expect(await wrong.json()).toEqual({ error: '/api/devices does not take DELETE.' })
+    expect(wrong.headers.get('x-content-type-options')).toBe('nosniff')
   })
 
   it('leaves pages alone', async () => {
