@@ -213,6 +213,11 @@ function DetectorBlock({ d }: { d: Detector }) {
                   <td className="whitespace-nowrap">{r.inRange ? 'in range' : <strong>out of range</strong>}</td>
                 </tr>
               ))}
+              {d.loop && d.loop.rows.length > 0 && (
+                <tr data-loop-read-by="">
+                  <td colSpan={4}>Loop read at the panel by {d.loop.readBy ?? 'not recorded'}</td>
+                </tr>
+              )}
               {d.measures.map((m) => (
                 <tr key={m.what}>
                   <td>{m.what}</td>

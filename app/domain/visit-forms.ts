@@ -46,6 +46,11 @@ export const detectorEntry = z.object({
     })
     .optional(),
   loop: z.object({ normal: ohms, alarm: ohms, trouble: ohms, unpowered: ohms }).partial().optional(),
+  /**
+   * Who read the meter at the panel pair: the fire alarm contractor's person and firm. Loop readings
+   * need the pair isolated at the panel, which only the fire alarm contractor does; required with any reading.
+   */
+  loopReadBy: z.string().trim().min(2, 'Give the name and firm, at least 2 characters').max(120, 'Keep the name and firm to 120 characters').optional(),
   inputVolts: z.object({ normal: z.number().min(0).max(300), alarm: z.number().min(0).max(300) }).partial().optional(),
   pressureInWc: z.number().min(0).max(10).optional(),
   velocityFpm: z.number().min(0).max(20_000).optional(),
@@ -69,6 +74,9 @@ export const detectorEntry = z.object({
   reason: text(500).optional(),
 }).superRefine((e, ctx) => {
   if (e.result !== 'pass' && !e.reason) ctx.addIssue({ code: 'custom', path: ['reason'], message: 'Say why the detector failed or was not tested' })
+  if (Object.values(e.loop ?? {}).some((v) => v !== undefined) && !e.loopReadBy) {
+    ctx.addIssue({ code: 'custom', path: ['loopReadBy'], message: 'Say who read the loop at the panel: the fire alarm contractor, name and firm' })
+  }
 })
 export type DetectorEntry = z.infer<typeof detectorEntry>
 

@@ -61,6 +61,7 @@ export default function Device({ loaderData }: Route.ComponentProps) {
   const { report: r, today, openVisits, notice } = loaderData
   const d = r.device
   const faultCodes = new Set(r.loop.findings.filter((f) => f.state === null).map((f) => f.code))
+  const loopReadBy = r.readings.find((x) => x.readAtPanelBy)?.readAtPanelBy ?? null
   return (
     <div className="mx-auto max-w-6xl space-y-6">
       <header>
@@ -132,6 +133,7 @@ export default function Device({ loaderData }: Route.ComponentProps) {
             <p className="mt-0.5 text-xs text-ink-faint">
               Measured at the panel end · line {ohms(r.loop.lineOhms)} (NEC Chapter 9 Table 8, 75 °C)
               {r.readings[0] && ` · last taken ${siteDateTime(r.readings[0].takenAt, d.timeZone)}${r.readings[0].takenBy ? ` by ${r.readings[0].takenBy}` : ''}`}
+              {loopReadBy && ` · loop read at the panel by ${loopReadBy}`}
             </p>
           </div>
           {/* One row per detector state: a table's columns on a desk, a short stack on a phone. */}

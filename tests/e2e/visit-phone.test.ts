@@ -106,6 +106,14 @@ describe('a visit on a phone', () => {
     await card.getByRole('button', { name: `Save ${firstTag}` }).click()
     await card.getByRole('alert').filter({ hasText: 'Say why the detector failed' }).waitFor()
     await card.getByLabel('Why it failed (required)').fill('Normal reads a short at the panel: alarm appears wired on NC. Reported to the fire alarm contractor.')
+    // A loop reading without who read it at the panel is refused beside that box, before anything is sent.
+    await card.getByRole('button', { name: `Save ${firstTag}` }).click()
+    const readBy = card.getByRole('textbox', { name: 'Read at the panel by (fire alarm contractor, name and firm)' })
+    await card.locator('[data-field-error="loopReadBy"]').filter({ hasText: 'Say who read the loop at the panel' }).waitFor()
+    await expect(readBy.getAttribute('aria-invalid')).resolves.toBe('true')
+    await expect(readBy.evaluate((el) => el === document.activeElement)).resolves.toBe(true)
+    expect(saves).toBe(0)
+    await readBy.fill('Ines Varga, Northpoint Alarm Co.')
     await card.getByRole('button', { name: `Save ${firstTag}` }).click()
     await card.getByText(`Saved ${firstTag}.`).waitFor()
     // A photo of the terminals, filed under this detector.
@@ -145,6 +153,7 @@ describe('a visit on a phone', () => {
     expect(record).toContain(firstTag)
     expect(record).toMatch(/0\.4 Ω/)
     expect(record).toContain('alarm appears wired on NC')
+    expect(record).toContain('Loop read at the panel by Ines Varga, Northpoint Alarm Co.')
     await context.close()
 
     const lead = await sessionCookieFor(t.data.db, userIdByEmail(t.data.db, DEMO_EMAIL.lead))

@@ -150,7 +150,7 @@ describe('visit work: booking, notice, recording and completing', () => {
     const [a] = covered()
     // Sent together, as from two tabs opened on the same version: the write lock orders them.
     const tabs = [
-      { detectorId: a, result: 'pass', cleaned: true, loop: { normal: 15_200 } },
+      { detectorId: a, result: 'pass', cleaned: true, loop: { normal: 15_200 }, loopReadBy: 'Ines Varga, Northpoint Alarm Co.' },
       { detectorId: a, result: 'fail', reason: 'Other tab' },
     ]
     const answers = await Promise.all(tabs.map((entry) => post(`/api/visits/${visitId}`, { intent: 'record', version: v, entries: [entry] }, 'tech')))
@@ -161,10 +161,21 @@ describe('visit work: booking, notice, recording and completing', () => {
     expect(q().prepare('select result, result_reason as r from visit_detectors where visit_id = ? and detector_id = ?').get(visitId, a)).toEqual({ result: winner.result, r: winner.reason ?? null })
     expect(version(visitId)).toBe(v + 1)
     // Saving again replaces that detector's entry; no history is written yet.
-    const again = await post(`/api/visits/${visitId}`, { intent: 'record', version: v + 1, entries: [{ detectorId: a, result: 'pass', cleaned: true, loop: { normal: 15_150, alarm: 6.5 }, delaySecondsFound: 12 }] }, 'tech')
+    const entry = { detectorId: a, result: 'pass', cleaned: true, loop: { normal: 15_150, alarm: 6.5 }, delaySecondsFound: 12 }
+    const findingsNow = () => (q().prepare('select findings from visit_detectors where visit_id = ? and detector_id = ?').get(visitId, a) as { findings: string }).findings
+    const kept = findingsNow()
+    // Loop readings without who read them at the panel are refused on that field, and nothing is written.
+    for (const loopReadBy of [undefined, ' ', 'X']) {
+      const unsigned = await post(`/api/visits/${visitId}`, { intent: 'record', version: v + 1, entries: [{ ...entry, loopReadBy }] }, 'tech')
+      expect(unsigned.status).toBe(400)
+      const issue = ((await unsigned.json()).issues as Array<{ path: string; message: string }>).find((i) => i.path === 'entries.0.loopReadBy')
+      expect(issue?.message).toMatch(loopReadBy === undefined ? /^Say who read the loop at the panel: the fire alarm contractor/ : /^Give the name and firm, at least 2 characters/)
+      expect(version(visitId)).toBe(v + 1)
+      expect(findingsNow()).toBe(kept)
+    }
+    const again = await post(`/api/visits/${visitId}`, { intent: 'record', version: v + 1, entries: [{ ...entry, loopReadBy: '  Ines Varga, Northpoint Alarm Co. ' }] }, 'tech')
     expect(again.status).toBe(200)
-    const row = q().prepare('select findings from visit_detectors where visit_id = ? and detector_id = ?').get(visitId, a) as { findings: string }
-    expect(JSON.parse(row.findings)).toEqual({ cleaned: true, loop: { normal: 15_150, alarm: 6.5 }, delaySecondsFound: 12 })
+    expect(JSON.parse(findingsNow())).toEqual({ cleaned: true, loop: { normal: 15_150, alarm: 6.5 }, loopReadBy: 'Ines Varga, Northpoint Alarm Co.', delaySecondsFound: 12 })
     expect(q().prepare('select count(*) as n from task_results where visit_id = ?').get(visitId)).toEqual({ n: 0 })
     expect(q().prepare('select count(*) as n from readings where visit_id = ?').get(visitId)).toEqual({ n: 0 })
   })

@@ -90,9 +90,18 @@ const statements = perDb((db: Db) => ({
     .prepare(),
   // The most recent reading of each kind.
   readings: db
-    .select({ kind: readings.kind, value: readings.value, open: readings.open, takenAt: readings.takenAt, takenBy: users.name })
+    .select({
+      kind: readings.kind,
+      value: readings.value,
+      open: readings.open,
+      takenAt: readings.takenAt,
+      takenBy: users.name,
+      // Loop readings are read at the panel by the fire alarm contractor; the visit's entry names them.
+      readAtPanelBy: sql<string | null>`case when ${readings.kind} like 'loop-%' then json_extract(${visitDetectors.findings}, '$.loopReadBy') end`,
+    })
     .from(readings)
     .leftJoin(users, eq(users.id, readings.takenBy))
+    .leftJoin(visitDetectors, and(eq(visitDetectors.visitId, readings.visitId), eq(visitDetectors.detectorId, readings.detectorId)))
     .where(
       inArray(
         readings.id,

@@ -58,11 +58,18 @@ const headWords = (heads: unknown[]) =>
     .map((h) => `Head ${h.head}: alarm on test ${yesNo(h.tripped)}, cleaned ${yesNo(h.cleaned)}`)
     .join('; ')
 
+/** Who read the loop at the panel (the fire alarm contractor's person and firm), printed with the loop readings. */
+function loopReadBy(raw: unknown): string | null {
+  const parsed = findingsShape.safeParse(raw)
+  const v = parsed.success ? parsed.data.loopReadBy : undefined
+  return typeof v === 'string' && v.trim() ? v.trim() : null
+}
+
 function findingRows(raw: unknown): Array<{ label: string; value: string }> {
   const parsed = findingsShape.safeParse(raw)
   if (!parsed.success) return []
   return Object.entries(parsed.data)
-    .filter(([, v]) => v !== null && v !== undefined && v !== '')
+    .filter(([k, v]) => k !== 'loopReadBy' && v !== null && v !== undefined && v !== '')
     .map(([k, v]) => ({
       label: FINDING_LABELS[k] ?? k.replace(/([A-Z])/g, ' $1').replace(/^./, (c) => c.toUpperCase()),
       value: k === 'heads' && Array.isArray(v) ? headWords(v) : typeof v === 'boolean' ? (v ? 'Yes' : 'No') : typeof v === 'object' ? JSON.stringify(v) : String(v),
@@ -266,7 +273,7 @@ function recordVisits(db: Db, visitIds: readonly number[]) {
         findings: findingRows(d.findings),
         completedAt: d.completedAt,
         tests,
-        loop: diagnosis ? { rows: loop, verdict: diagnosis.verdict, findings: diagnosis.findings.map((f) => f.message) } : null,
+        loop: diagnosis ? { rows: loop, verdict: diagnosis.verdict, findings: diagnosis.findings.map((f) => f.message), readBy: loopReadBy(d.findings) } : null,
         measures,
       }
     }),

@@ -41,7 +41,7 @@ describe('task outcomes of a detector entry', () => {
   })
 
   it('reads a saved entry back as it was recorded', () => {
-    const saved = entry({ result: 'not-tested', reason: 'Locked out', loop: { normal: 'open' }, notes: 'Call the site' })
+    const saved = entry({ result: 'not-tested', reason: 'Locked out', loop: { normal: 'open' }, loopReadBy: 'Ines Varga, Northpoint Alarm Co.', notes: 'Call the site' })
     const row = { detectorId: 7, result: 'skipped', resultReason: 'Locked out', notes: 'Call the site', findings: JSON.stringify(findingsOf(saved)) }
     expect(entryFromRow(row)).toEqual(saved)
     expect(entryFromRow({ ...row, result: 'pending' })).toBeNull()

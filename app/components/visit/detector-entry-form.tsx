@@ -1,7 +1,7 @@
 // The technician's form: one detector at a time in roof-walk order, built for a phone held in a
 // gloved hand. Everything typed is kept on the phone first (drafts.ts); "Save" sends it with the
 // visit's version, and a refusal never overwrites what is on the phone.
-import { useState, useSyncExternalStore } from 'react'
+import { useRef, useState, useSyncExternalStore } from 'react'
 import { useRevalidator } from 'react-router'
 import { checkPressure } from '~/domain/airflow'
 import { delayLimitCaution } from '~/domain/delay-audit'
@@ -150,7 +150,8 @@ export function DetectorEntryForm({
 function DetectorCard({ visitId, version, d, delayPolicySeconds }: { visitId: number; version: number; d: FormDetector; delayPolicySeconds: number }) {
   const [draft, setDraft] = useState<Draft>(() => readDraft(visitId, d.id) ?? emptyDraft())
   const [saved, setSaved] = useState(false)
-  const [problem, setProblem] = useState<string | null>(null)
+  const [problem, setProblem] = useState<{ message: string; field?: string } | null>(null)
+  const readByBox = useRef<HTMLInputElement>(null)
   const save = useVisitIntent(visitId)
   const revalidator = useRevalidator()
   const update = (patch: Partial<Draft>) => {
@@ -192,7 +193,12 @@ function DetectorCard({ visitId, version, d, delayPolicySeconds }: { visitId: nu
   async function onSave() {
     setProblem(null)
     const r = toEntry(d.id, draft)
-    if ('error' in r) return setProblem(r.error)
+    if ('error' in r) {
+      setProblem({ message: r.error, field: r.field })
+      // The box the problem belongs to may be far up the card on a phone: take the technician to it.
+      if (r.field === 'loopReadBy') readByBox.current?.focus()
+      return
+    }
     if (await save.send({ intent: 'record', version, entries: [r.entry] })) setSaved(true)
   }
 
@@ -293,6 +299,22 @@ function DetectorCard({ visitId, version, d, delayPolicySeconds }: { visitId: nu
             </button>
           </div>
         ))}
+        <label className={fieldLabel}>
+          Read at the panel by (fire alarm contractor, name and firm)
+          <input
+            ref={readByBox}
+            className={bigInput}
+            autoComplete="off"
+            maxLength={120}
+            value={draft.loopReadBy ?? ''}
+            onChange={(e) => update({ loopReadBy: e.target.value })}
+            aria-invalid={problem?.field === 'loopReadBy' ? true : undefined}
+            aria-describedby={`readby-${d.id}`}
+          />
+          <span id={`readby-${d.id}`} className={`text-sm ${problem?.field === 'loopReadBy' ? 'font-semibold text-late' : 'font-normal text-ink-soft'}`} data-field-error={problem?.field === 'loopReadBy' ? 'loopReadBy' : undefined}>
+            {problem?.field === 'loopReadBy' ? problem.message : 'Required with any loop reading: the person who isolated the pair and read the meter.'}
+          </span>
+        </label>
         <LoopVerdict {...loop} />
       </section>
 
@@ -411,7 +433,7 @@ function DetectorCard({ visitId, version, d, delayPolicySeconds }: { visitId: nu
             <textarea className={`${bigInput} min-h-20`} value={draft.reason ?? ''} onChange={(e) => update({ reason: e.target.value })} />
           </label>
         )}
-        {problem && <Alert>{problem}</Alert>}
+        {problem && <Alert>{problem.message}</Alert>}
         {save.error &&
           (save.error.stale ? (
             <Alert>Changed on another device — reload to see it; your entries are kept on this phone.</Alert>

@@ -11,6 +11,8 @@ export interface Draft {
   resetOk?: boolean
   loop: Partial<Record<DetectorState, string>>
   loopOpen: Partial<Record<DetectorState, boolean>>
+  /** Who read the meter at the panel: the fire alarm contractor's person and firm. */
+  loopReadBy?: string
   inputNormal?: string
   inputAlarm?: string
   pressure?: string
@@ -77,8 +79,11 @@ export function loopReadings(d: Draft): Partial<Record<DetectorState, number | '
 
 const defined = <T extends object>(o: T) => Object.fromEntries(Object.entries(o).filter(([, v]) => v !== undefined)) as T
 
-/** The draft as the API's `detectorEntry`, checked by the same schema: an error names the first problem. */
-export function toEntry(detectorId: number, d: Draft): { entry: DetectorEntry } | { error: string } {
+/**
+ * The draft as the API's `detectorEntry`, checked by the same schema: an error names the first problem,
+ * and `field` says which box it belongs to so the form can show it there.
+ */
+export function toEntry(detectorId: number, d: Draft): { entry: DetectorEntry } | { error: string; field?: string } {
   const loop = loopReadings(d)
   const volts = defined({ normal: num(d.inputNormal), alarm: num(d.inputAlarm) })
   const heads = Object.entries(d.perHead ?? {})
@@ -94,6 +99,7 @@ export function toEntry(detectorId: number, d: Draft): { entry: DetectorEntry } 
         ? defined({ signalAtPanel: d.signalAtPanel, unitShutDown: d.unitShutDown, resetOk: d.resetOk, detectorTripped: d.detectorTripped })
         : undefined,
     loop: Object.keys(loop).length ? loop : undefined,
+    loopReadBy: d.loopReadBy?.trim() || undefined,
     inputVolts: Object.keys(volts).length ? volts : undefined,
     pressureInWc: num(d.pressure),
     velocityFpm: num(d.velocity),
@@ -111,7 +117,8 @@ export function toEntry(detectorId: number, d: Draft): { entry: DetectorEntry } 
   const parsed = detectorEntry.safeParse(candidate)
   if (!parsed.success) {
     const issue = parsed.error.issues[0]
-    return { error: `${issue.path.join(' ') || 'Entry'}: ${issue.message}` }
+    const field = issue.path.length ? String(issue.path[0]) : undefined
+    return field === 'loopReadBy' ? { error: issue.message, field } : { error: `${issue.path.join(' ') || 'Entry'}: ${issue.message}`, field }
   }
   return { entry: parsed.data }
 }
