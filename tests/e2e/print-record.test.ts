@@ -49,6 +49,11 @@ describe('printed records in Chromium', () => {
     const pressure = one<{ value: number }>("select value from readings where visit_id = ? and kind = 'pressure' order by id limit 1", v.id)
     const notice = one<{ confirmation: string }>('select confirmation from notifications where visit_id = ?', v.id)
     expect(loop.length).toBeGreaterThan(0)
+    // Who read the loop at the panel, as the visit form records it with the readings.
+    const readBy = 'Ines Varga, Northpoint Alarm Co.'
+    t.data.db.$client
+      .prepare("update visit_detectors set findings = json_set(coalesce(findings, '{}'), '$.loopReadBy', ?) where visit_id = ? and detector_id in (select detector_id from readings where visit_id = ? and kind like 'loop-%')")
+      .run(readBy, v.id, v.id)
 
     const context = await t.browser.newContext({ viewport: { width: 816, height: 1056 } })
     const page = await context.newPage()
@@ -73,6 +78,7 @@ describe('printed records in Chromium', () => {
     expect(text).not.toContain('Signout')
     expect(text).not.toContain('Findorjump')
     for (const r of loop) has(`${fmt(r.value, 1)} Ω`)
+    has(`Loop read at the panel by ${readBy}`)
     has(`${fmt(pressure.value, 3)} in. w.c.`)
     has(failed.tag)
     has(reason)
