@@ -76,6 +76,20 @@ describe('device page', () => {
     }
   })
 
+  it('names who read the latest loop at the panel, from that visit\'s entry', async () => {
+    const q = data.db.$client
+    const latest = q
+      .prepare("select detector_id as id, visit_id as visitId from readings where kind like 'loop-%' and visit_id is not null order by id desc limit 1")
+      .get() as { id: number; visitId: number }
+    expect(latest).toBeTruthy()
+    const setBy = (who: string | null) =>
+      q.prepare("update visit_detectors set findings = json_set(coalesce(findings, '{}'), '$.loopReadBy', ?) where visit_id = ? and detector_id = ?").run(who, latest.visitId, latest.id)
+    setBy(null)
+    expect((await page(latest.id)).html.replaceAll('<!-- -->', '')).not.toContain('loop read at the panel by')
+    setBy('Ines Varga, Northpoint Alarm Co.')
+    expect((await page(latest.id)).html.replaceAll('<!-- -->', '')).toContain('loop read at the panel by Ines Varga, Northpoint Alarm Co.')
+  })
+
   it('answers 404 for a detector that does not exist or an id that is not a record number', async () => {
     expect((await page(999_999)).status).toBe(404)
     for (const id of ['abc', '0x10', '1e2', '012']) {
