@@ -303,7 +303,7 @@ function DetectorCard({ visitId, version, d, delayPolicySeconds }: { visitId: nu
           Read at the panel by (fire alarm contractor, name and firm)
           <input
             ref={readByBox}
-            className={bigInput}
+            className={`${bigInput} aria-invalid:border-2 aria-invalid:border-late`}
             autoComplete="off"
             maxLength={120}
             value={draft.loopReadBy ?? ''}
