@@ -1,16 +1,8 @@
 import { useState } from 'react'
+import type { CycleVisit } from '~/.server/bulk/actions/cleaning-cycle'
 import { inputClass, quietButtonClass } from '~/components/ui/page-header'
 
-export interface PlanVisit {
-  key: string
-  siteId: number
-  site: string
-  region: string
-  date: string
-  technicianId: number
-  detectors: number
-  moved?: boolean
-}
+export type PlanVisit = CycleVisit
 export interface PlanTechnician {
   id: number
   name: string

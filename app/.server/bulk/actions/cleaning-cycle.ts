@@ -40,8 +40,8 @@ interface Tech {
   capacityUnit: 'detectors' | 'visits'
 }
 
-/** One proposed visit as the page shows it. */
-interface CycleVisit {
+/** One proposed visit as the page shows it (the plan grid reads this type). */
+export interface CycleVisit {
   key: string
   siteId: number
   site: string
