@@ -1,5 +1,5 @@
 import type { Db } from './db'
-import { dayTurnQueries, derivedDay, nextTurn, rederiveFleet, rederiveFleetInTurns, rederiveInTurns, setDerivedDay, turnPlan } from './derivation'
+import { dayTurnQueries, derivedDay, rederiveFleet, restAfter, rederiveFleetInTurns, rederiveInTurns, setDerivedDay, turnPlan } from './derivation'
 import { listsChanged } from './list-query'
 import { officeToday } from './today'
 
@@ -48,8 +48,9 @@ export function refreshIfNewDay(db: Db, to = officeToday()): Promise<RefreshResu
       // One index query per turn, then the detectors found.
       const ids = new Set<number>()
       for (const query of dayTurnQueries(db, from as string, to)) {
+        const t = performance.now()
         for (const id of query()) ids.add(id)
-        await nextTurn()
+        await restAfter(performance.now() - t)
       }
       stats = await rederiveInTurns(db, [...ids].sort((x, y) => x - y), to)
     }

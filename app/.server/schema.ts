@@ -465,7 +465,10 @@ export const events = sqliteTable(
     index('events_kind_idx').on(t.kind, t.occurredAt),
     // How long each detector has been in trouble, for the digest, without reading its other events.
     index('events_trouble_idx').on(t.detectorId, t.occurredAt).where(sql`kind = 'trouble'`),
-    index('events_time_idx').on(t.occurredAt),
+    // The time order with its tie-break, and the detector and site each event belongs to: a text filter's
+    // walk in time order tests every entry against the matches without reading the events themselves
+    // (the last reachable page of a broad word went from ~300 ms to ~40 ms at stress scale).
+    index('events_time_idx').on(t.occurredAt, t.id, t.detectorId, t.siteId),
   ],
 )
 

@@ -1,0 +1,3 @@
+DROP INDEX `events_time_idx`;--> statement-breakpoint
+CREATE INDEX `events_time_idx` ON `events` (`occurred_at`,`id`,`detector_id`,`site_id`);--> statement-breakpoint
+ANALYZE `events`;
