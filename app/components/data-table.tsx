@@ -2,8 +2,10 @@ import { flexRender, getCoreRowModel, useReactTable, type ColumnDef, type RowSel
 import { elementScroll, observeElementOffset, useVirtualizer } from '@tanstack/react-virtual'
 import { useCallback, useEffect, useMemo, useRef, useState, useSyncExternalStore } from 'react'
 import { Link, useLocation, useNavigate, useSearchParams } from 'react-router'
-import type { FetchError } from '~/utils/fetch-json'
+import { useSWRConfig } from 'swr'
+import { FetchError, messageOf } from '~/utils/fetch-json'
 import { formatCount } from '~/utils/format'
+import { WINDOW_ROWS, windowUrl } from '~/utils/list-window'
 import { useShortcut } from './keyboard'
 import { LoadError } from './load-error'
 import { useJson } from './use-json'
@@ -16,6 +18,12 @@ export interface Page<Row> {
   /** Counting stopped at `total`: there are more matching rows than that. */
   totalCapped?: boolean
 }
+
+/**
+ * The first window as the page's loader read it on the server (`firstWindow`): its rows, or the list
+ * route's refusal of the address, under the URL the table would ask for them (the cache's key).
+ */
+export type FirstWindow<Row> = { key: string; page: Page<Row> } | { key: string; refused: { error: string; issues: Array<{ path: string; message: string }> } }
 
 /** How one row reads on a phone: a title, its states in words, and up to two short lines. */
 export interface PhoneCard {
@@ -48,9 +56,15 @@ export interface DataTableProps<Row extends { id: number }> {
   phone?: (row: Row) => PhoneCard
   /** Rows grow to show cells (and card lines) that wrap, measured as they render, instead of one line each. */
   wrapRows?: boolean
+  /**
+   * The first window from the page's loader: shown in the server's HTML and at once on a move within
+   * the console, and taken as the cache's answer for its URL, so it is not asked for again. Used only
+   * while its key is the current first window's URL.
+   */
+  first?: FirstWindow<Row>
 }
 
-const PAGE = 100
+const PAGE = WINDOW_ROWS
 const ROW_PX = 36
 // A phone card: title line and two lines of detail, every one a single truncated line, so the
 // virtualizer can place rows without measuring them.
@@ -75,12 +89,30 @@ function useNarrow(): boolean {
   )
 }
 
-/** Loads one window of rows with SWR and reports it upward; renders nothing. */
-function WindowLoader<Row>(p: { url: string; onPage: (url: string, page: Page<Row> | undefined, error?: FetchError) => void; refreshMs?: number; retryToken: number }) {
+/** A list route's refusal, as the error the table shows for a refused request. */
+const refusal = (body: { error: string }) => new FetchError(400, messageOf(400, body), body)
+
+/**
+ * Loads one window of rows with SWR and reports it upward; renders nothing. Given the loader's answer
+ * for its URL (`first`), it starts from that and does not ask on mounting.
+ */
+function WindowLoader<Row>(p: { url: string; onPage: (url: string, page: Page<Row> | undefined, error?: FetchError) => void; refreshMs?: number; retryToken: number; first?: FirstWindow<Row> }) {
   const { url, onPage } = p
+  const seed = p.first && 'page' in p.first ? p.first.page : undefined
   // No keepPreviousData here: each window must answer for its own URL. The table itself keeps the
   // previous filter's rows on screen until the new first window arrives.
-  const { data, error, retry } = useJson<Page<Row>>(url, { revalidateOnFocus: true, dedupingInterval: 4_000, refreshMs: p.refreshMs })
+  const { data, error, retry } = useJson<Page<Row>>(url, {
+    revalidateOnFocus: true,
+    dedupingInterval: 4_000,
+    refreshMs: p.refreshMs,
+    ...(p.first && { fallbackData: seed, revalidateOnMount: false }),
+  })
+  // The loader's rows are newer than any the cache kept for this URL from an earlier visit: they
+  // become its answer (and reach anything else showing that URL).
+  const { mutate } = useSWRConfig()
+  useEffect(() => {
+    if (seed) void mutate(url, seed, { revalidate: false })
+  }, [url, seed, mutate])
   useEffect(() => onPage(url, data, error), [url, data, error, onPage])
   const asked = useRef(p.retryToken)
   useEffect(() => {
@@ -128,7 +160,7 @@ export function DataTable<Row extends { id: number }>(p: DataTableProps<Row>) {
   const [ownSelection, setOwnSelection] = useState<RowSelectionState>({})
   const selection = p.selection ?? ownSelection
   const setSelection = p.onSelectionChange ?? setOwnSelection
-  const lastQuery = useRef(p.query)
+  const [lastQuery, setLastQuery] = useState(p.query)
   const [shownQuery, setShownQuery] = useState(p.query)
 
   const cards = useNarrow() && !!p.phone
@@ -137,7 +169,39 @@ export function DataTable<Row extends { id: number }>(p: DataTableProps<Row>) {
   const sort = params.get('sort') ?? p.defaultSort?.key ?? null
   const dir = params.get('dir') === 'desc' || (!params.get('dir') && !params.get('sort') && p.defaultSort?.dir === 'desc') ? 'desc' : 'asc'
   const sorting: SortingState = sort ? [{ id: sort, desc: dir === 'desc' }] : []
-  const urlFor = useCallback((w: number, query = p.query) => `${p.endpoint}?${query ? `${query}&` : ''}offset=${w * PAGE}&limit=${PAGE}`, [p.endpoint, p.query])
+  const urlFor = useCallback((w: number, query = p.query) => windowUrl(p.endpoint, query, w), [p.endpoint, p.query])
+
+  // A new filter or sort starts at the top (set while rendering, so no window of the old view's
+  // places is asked for under the new query); rows of the old one stay on screen until the new arrive.
+  if (lastQuery !== p.query) {
+    setLastQuery(p.query)
+    setCursor(0)
+    setWindows([0])
+  }
+  useEffect(() => {
+    // In braces: a browser may answer scrollTo with a promise, which is no effect's cleanup.
+    scrollRef.current?.scrollTo({ top: 0 })
+  }, [p.query])
+
+  // The loader's first window for this address, taken in while rendering: its rows are in the
+  // server's HTML and show in the same render as a move within the console, with no request.
+  const loaded = p.first?.key === urlFor(0) ? p.first : undefined
+  const [taken, setTaken] = useState<FirstWindow<Row>>()
+  // Kept until window 0 leaves the screen: coming back to it later asks the route again, as before.
+  const [firstFresh, setFirstFresh] = useState(true)
+  if (loaded && loaded !== taken) {
+    setTaken(loaded)
+    setFirstFresh(true)
+    if ('page' in loaded) {
+      pages.current.set(loaded.key, loaded.page)
+      setTotal({ n: loaded.page.total, capped: loaded.page.totalCapped === true })
+      setShownQuery(p.query)
+      setError(null)
+    } else {
+      setError(refusal(loaded.refused))
+    }
+    setVersion((v) => v + 1)
+  }
 
   useEffect(() => {
     try {
@@ -146,15 +210,6 @@ export function DataTable<Row extends { id: number }>(p: DataTableProps<Row>) {
       // A damaged entry just means default columns.
     }
   }, [p.storageKey])
-
-  // A new filter or sort starts at the top; rows of the old one stay on screen until the new arrive.
-  useEffect(() => {
-    if (lastQuery.current === p.query) return
-    lastQuery.current = p.query
-    setCursor(0)
-    setWindows([0])
-    scrollRef.current?.scrollTo({ top: 0 })
-  }, [p.query])
 
   const { endpoint, query, onRowsSeen } = p
   const onPage = useCallback(
@@ -187,6 +242,9 @@ export function DataTable<Row extends { id: number }>(p: DataTableProps<Row>) {
     getScrollElement: () => scrollRef.current,
     estimateSize: () => rowPx,
     overscan: 12,
+    // Before the box is measured (the server's render, and hydration), rows are placed for a box of
+    // about a desk screen's height, so the server's HTML holds the rows a person first sees.
+    initialRect: { width: 0, height: 720 },
     observeElementOffset: (instance, cb) => observeElementOffset(instance, (offset, isScrolling) => cb(offset * ratioRef.current, isScrolling)),
     scrollToFn: (offset, options, instance) => elementScroll(offset / ratioRef.current, options, instance),
   })
@@ -213,6 +271,7 @@ export function DataTable<Row extends { id: number }>(p: DataTableProps<Row>) {
       if (down && last % PAGE >= PAGE / 2 && (to + 1) * PAGE < count) next.push(to + 1)
       if (up && first % PAGE < PAGE / 2 && from > 0) next.unshift(from - 1)
       setWindows((prev) => (prev.join() === next.join() ? prev : next))
+      if (!next.includes(0)) setFirstFresh(false)
     }, SETTLE_MS)
     return () => clearTimeout(t)
   }, [first, last, count])
@@ -314,7 +373,7 @@ export function DataTable<Row extends { id: number }>(p: DataTableProps<Row>) {
   return (
     <div className="rounded-md border border-line bg-panel">
       {windows.map((w) => (
-        <WindowLoader<Row> key={urlFor(w)} url={urlFor(w)} onPage={onPage} refreshMs={p.refreshMs} retryToken={retryToken} />
+        <WindowLoader<Row> key={urlFor(w)} url={urlFor(w)} onPage={onPage} refreshMs={p.refreshMs} retryToken={retryToken} first={w === 0 && firstFresh ? loaded : undefined} />
       ))}
       <div className="flex flex-wrap items-center justify-between gap-2 border-b border-line px-3 py-2 text-xs text-ink-soft">
         {/* One line that never wraps: a selection count must not push the rows down. */}

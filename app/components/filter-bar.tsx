@@ -157,13 +157,3 @@ export function FilterBar({ placeholder, filters, children }: { placeholder: str
     </div>
   )
 }
-
-/** The list query string: every filter and the sort, never paging (the table pages itself). */
-export function listQuery(params: URLSearchParams): string {
-  const next = new URLSearchParams(params)
-  next.delete('offset')
-  next.delete('limit')
-  next.delete('view')
-  next.sort()
-  return next.toString()
-}

@@ -5,9 +5,10 @@ import { useSWRConfig } from 'swr'
 import { BulkBar } from './bulk/bulk-bar'
 import type { Technician } from './bulk/action-fields'
 import type { BulkList } from './bulk/catalog'
-import { DataTable, type PhoneCard } from './data-table'
+import { listQuery } from '~/utils/list-window'
+import { DataTable, type FirstWindow, type PhoneCard } from './data-table'
 import { ExportButton } from './export-button'
-import { FilterBar, listQuery, type FilterOption } from './filter-bar'
+import { FilterBar, type FilterOption } from './filter-bar'
 import { SavedViews } from './saved-views'
 import { PageHeader } from './ui/page-header'
 
@@ -29,6 +30,8 @@ export function ListPage<Row extends { id: number }>(p: {
   phone: (r: Row) => PhoneCard
   /** Acts on many rows at once: the selection bar and its palette entries (`today`: the office's day). */
   bulk?: { list: BulkList; technicians: Technician[]; today: string }
+  /** The first window of rows, read by the page's loader (`firstWindow`). */
+  first?: FirstWindow<Row>
 }) {
   const [params] = useSearchParams()
   const query = useMemo(() => listQuery(params), [params])
@@ -68,6 +71,7 @@ export function ListPage<Row extends { id: number }>(p: {
         sortable={p.sortable}
         defaultSort={p.defaultSort}
         phone={p.phone}
+        first={p.first}
       />
     </div>
   )

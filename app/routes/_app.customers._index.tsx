@@ -1,6 +1,7 @@
 import type { ColumnDef } from '@tanstack/react-table'
 import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
+import { firstWindow } from '~/.server/list-answers'
 import { technicianOptions } from '~/.server/lists/visits'
 import { officeToday } from '~/.server/today'
 import { customerList, type CustomerListRow } from '~/.server/lists/customers'
@@ -16,7 +17,7 @@ export const meta: Route.MetaFunction = () => [{ title: 'Customers · Ductkeeper
 
 export async function loader({ request }: Route.LoaderArgs) {
   await requireUser(request, 'view:fleet')
-  return { sortable: Object.keys(customerList.sorts), defaultSort: customerList.defaultSort, technicians: technicianOptions(getDb()).filter((t) => t.active), today: officeToday() }
+  return { first: await firstWindow(request, '/api/customers'), sortable: Object.keys(customerList.sorts), defaultSort: customerList.defaultSort, technicians: technicianOptions(getDb()).filter((t) => t.active), today: officeToday() }
 }
 
 const columns: ColumnDef<CustomerListRow>[] = [
@@ -32,6 +33,7 @@ const columns: ColumnDef<CustomerListRow>[] = [
 export default function Customers({ loaderData }: Route.ComponentProps) {
   return (
     <ListPage<CustomerListRow>
+      first={loaderData.first}
       bulk={{ list: 'customers', technicians: loaderData.technicians, today: loaderData.today }}
       sortable={loaderData.sortable}
       defaultSort={loaderData.defaultSort}

@@ -1,6 +1,7 @@
 import type { ColumnDef } from '@tanstack/react-table'
 import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
+import { firstWindow } from '~/.server/list-answers'
 import { technicianOptions } from '~/.server/lists/visits'
 import { officeToday } from '~/.server/today'
 import { badgeCell, linkCell, monoCell, selectColumn } from '~/components/columns'
@@ -17,7 +18,7 @@ export const meta: Route.MetaFunction = () => [{ title: 'Detectors · Ductkeeper
 
 export async function loader({ request }: Route.LoaderArgs) {
   await requireUser(request, 'view:fleet')
-  return { sortable: Object.keys(deviceList.sorts), defaultSort: deviceList.defaultSort, technicians: technicianOptions(getDb()).filter((t) => t.active), today: officeToday() }
+  return { first: await firstWindow(request, '/api/devices'), sortable: Object.keys(deviceList.sorts), defaultSort: deviceList.defaultSort, technicians: technicianOptions(getDb()).filter((t) => t.active), today: officeToday() }
 }
 
 const FILTERS: FilterOption[] = [
@@ -48,6 +49,7 @@ const columns: ColumnDef<DeviceListRow>[] = [
 export default function Devices({ loaderData }: Route.ComponentProps) {
   return (
     <ListPage<DeviceListRow>
+      first={loaderData.first}
       bulk={{ list: 'detectors', technicians: loaderData.technicians, today: loaderData.today }}
       sortable={loaderData.sortable}
       defaultSort={loaderData.defaultSort}

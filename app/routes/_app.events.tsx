@@ -2,6 +2,7 @@ import type { ColumnDef } from '@tanstack/react-table'
 import { Link } from 'react-router'
 import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
+import { firstWindow } from '~/.server/list-answers'
 import { technicianOptions } from '~/.server/lists/visits'
 import { officeToday } from '~/.server/today'
 import { eventList, eventQuery, type EventListRow } from '~/.server/lists/events'
@@ -20,7 +21,7 @@ export async function loader({ request }: Route.LoaderArgs) {
   const url = new URL(request.url)
   const within = { site: url.searchParams.get('site') ?? undefined, detector: url.searchParams.get('detector') ?? undefined }
   const sortable = Object.keys(eventList.sorts).filter((sort) => eventQuery.safeParse({ ...within, sort }).success)
-  return { sortable, defaultSort: eventList.defaultSort, technicians: technicianOptions(getDb()).filter((t) => t.active), today: officeToday() }
+  return { first: await firstWindow(request, '/api/events'), sortable, defaultSort: eventList.defaultSort, technicians: technicianOptions(getDb()).filter((t) => t.active), today: officeToday() }
 }
 
 const KINDS = ['alarm', 'trouble', 'supervisory', 'restore', 'test', 'reset', 'cleaning', 'notice', 'change'] as const
@@ -59,6 +60,7 @@ const columns: ColumnDef<EventListRow>[] = [
 export default function Events({ loaderData }: Route.ComponentProps) {
   return (
     <ListPage<EventListRow>
+      first={loaderData.first}
       bulk={{ list: 'events', technicians: loaderData.technicians, today: loaderData.today }}
       sortable={loaderData.sortable}
       defaultSort={loaderData.defaultSort}

@@ -1,6 +1,7 @@
 import type { ColumnDef } from '@tanstack/react-table'
 import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
+import { firstWindow } from '~/.server/list-answers'
 import { technicianOptions } from '~/.server/lists/visits'
 import { officeToday } from '~/.server/today'
 import { pageSorts } from '~/.server/list-query'
@@ -20,7 +21,7 @@ export async function loader({ request }: Route.LoaderArgs) {
   const db = getDb()
   // Counts per site sort only over a few thousand sites (a customer's): offered when the filters leave so few.
   const sortable = pageSorts(db, siteList, siteQuery, request, { today: officeToday() })
-  return { sortable, defaultSort: siteList.defaultSort, technicians: technicianOptions(db).filter((t) => t.active), today: officeToday() }
+  return { first: await firstWindow(request, '/api/sites'), sortable, defaultSort: siteList.defaultSort, technicians: technicianOptions(db).filter((t) => t.active), today: officeToday() }
 }
 
 const delay = (s: number) => (s === 0 ? 'at once' : `${s / 60} min`)
@@ -42,6 +43,7 @@ const columns: ColumnDef<SiteListRow>[] = [
 export default function Sites({ loaderData }: Route.ComponentProps) {
   return (
     <ListPage<SiteListRow>
+      first={loaderData.first}
       bulk={{ list: 'sites', technicians: loaderData.technicians, today: loaderData.today }}
       sortable={loaderData.sortable}
       defaultSort={loaderData.defaultSort}

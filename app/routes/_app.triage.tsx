@@ -4,13 +4,14 @@ import { Link, useSearchParams } from 'react-router'
 import { useSWRConfig } from 'swr'
 import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
+import { firstWindow } from '~/.server/list-answers'
 import { deviceList } from '~/.server/lists/devices'
 import { triageQuery, type TriageRow } from '~/.server/lists/triage'
 import { badgeCell, linkCell, monoCell, selectColumn } from '~/components/columns'
 import { usePaletteActions } from '~/components/command-palette'
 import { DataTable } from '~/components/data-table'
 import { ExportButton } from '~/components/export-button'
-import { FilterBar, listQuery } from '~/components/filter-bar'
+import { FilterBar } from '~/components/filter-bar'
 import { LoadError } from '~/components/load-error'
 import { SavedViews } from '~/components/saved-views'
 import { StateBadge } from '~/components/state-badge'
@@ -21,6 +22,7 @@ import { buttonClass, inputClass, Notice, PageHeader, quietButtonClass } from '~
 import { can, type RouteAccess } from '~/domain/permissions'
 import { FetchError, fetchJson } from '~/utils/fetch-json'
 import { formatCount } from '~/utils/format'
+import { listQuery } from '~/utils/list-window'
 import type { Route } from './+types/_app.triage'
 
 export const handle = { access: { loader: 'view:fleet' } satisfies RouteAccess }
@@ -31,6 +33,7 @@ export async function loader({ request }: Route.LoaderArgs) {
   const user = await requireUser(request, 'view:fleet')
   const technicians = getDb().$client.prepare("select id, name from users where role = 'technician' and active = 1 order by name").all() as Array<{ id: number; name: string }>
   return {
+    first: await firstWindow(request, '/api/triage'),
     technicians,
     canTriage: can(user.role, 'triage:fleet'),
     canSchedule: can(user.role, 'schedule:visits'),
@@ -81,7 +84,7 @@ interface Answer {
 }
 
 export default function Triage({ loaderData }: Route.ComponentProps) {
-  const { technicians, canTriage, canSchedule, sortable, defaultSort } = loaderData
+  const { technicians, canTriage, canSchedule, sortable, defaultSort, first } = loaderData
   const [params, setParams] = useSearchParams()
   const query = useMemo(() => listQuery(params), [params])
   const [selection, setSelection] = useState<RowSelectionState>({})
@@ -219,6 +222,7 @@ export default function Triage({ loaderData }: Route.ComponentProps) {
         refreshMs={REFRESH_MS}
         sortable={sortable}
         defaultSort={defaultSort}
+        first={first}
         wrapRows
         phone={(r) => ({
           title: (

@@ -2,6 +2,7 @@ import type { ColumnDef } from '@tanstack/react-table'
 import { redirect } from 'react-router'
 import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
+import { firstWindow } from '~/.server/list-answers'
 import { pageSorts } from '~/.server/list-query'
 import { technicianOptions, visitList, visitQuery, type VisitListRow } from '~/.server/lists/visits'
 import { officeToday } from '~/.server/today'
@@ -27,7 +28,7 @@ export async function loader({ request }: Route.LoaderArgs) {
   const db = getDb()
   // Technician and the counts sort only over a few thousand visits (a period's, a site's): offered when the filters leave so few.
   const sortable = pageSorts(db, visitList, visitQuery, request)
-  return { technicians: technicianOptions(db), today: officeToday(), sortable, defaultSort: visitList.defaultSort }
+  return { first: await firstWindow(request, '/api/visits'), technicians: technicianOptions(db), today: officeToday(), sortable, defaultSort: visitList.defaultSort }
 }
 
 const columns: ColumnDef<VisitListRow>[] = [
@@ -47,6 +48,7 @@ export default function Visits({ loaderData }: Route.ComponentProps) {
   const { technicians } = loaderData
   return (
     <ListPage<VisitListRow>
+      first={loaderData.first}
       bulk={{ list: 'visits', technicians: technicians.filter((t) => t.active), today: loaderData.today }}
       sortable={loaderData.sortable}
       defaultSort={loaderData.defaultSort}

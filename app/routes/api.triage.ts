@@ -2,8 +2,8 @@ import { z } from 'zod'
 import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
 import { readJsonOrForm } from '~/.server/http'
-import { idParam, isoDate, parseQuery } from '~/.server/list-query'
-import { reasonCounts, triageList, triageQuery } from '~/.server/lists/triage'
+import { listAnswers } from '~/.server/list-answers'
+import { idParam, isoDate } from '~/.server/list-query'
 import { acknowledge, assign, BOOKING_KINDS, Refusal, scheduleVisits } from '~/.server/repos/triage-actions'
 import { officeToday } from '~/.server/today'
 import { can, type RouteAccess } from '~/domain/permissions'
@@ -16,9 +16,7 @@ export const handle = { access: { loader: 'view:fleet', action: 'schedule:visits
 
 export async function loader({ request }: Route.LoaderArgs) {
   await requireUser(request, 'view:fleet')
-  const query = parseQuery(triageQuery, request)
-  const db = getDb()
-  return Response.json({ ...triageList(db, query, officeToday()), counts: reasonCounts(db) })
+  return Response.json(listAnswers['/api/triage'](getDb(), request))
 }
 
 const ids = z

@@ -1,8 +1,7 @@
 import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
 import { readJsonOrForm } from '~/.server/http'
-import { parseQuery, runList } from '~/.server/list-query'
-import { visitList, visitQuery } from '~/.server/lists/visits'
+import { listAnswers } from '~/.server/list-answers'
 import { officeToday } from '~/.server/today'
 import { bookVisit } from '~/.server/visits/book'
 import { payloadOf, refusalResponse } from '~/.server/visits/refusal'
@@ -14,8 +13,7 @@ export const handle = { access: { loader: 'view:fleet', action: 'schedule:visits
 
 export async function loader({ request }: Route.LoaderArgs) {
   await requireUser(request, 'view:fleet')
-  const query = parseQuery(visitQuery, request)
-  return Response.json(runList(getDb(), visitList, query))
+  return Response.json(listAnswers['/api/visits'](getDb(), request))
 }
 
 /** Books a visit: 201 with its id, or 409 listing the open visits that already cover those tasks. */

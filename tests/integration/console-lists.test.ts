@@ -5,7 +5,7 @@ import { sessionCookieFor, userIdByEmail } from '#tests/setup/sessions'
 import { TEST_TODAY } from '#tests/setup/temp-db'
 
 // Expectations come from plain SQL written here, not from the list specs.
-describe('console lists: visit filters, the visits page default, background refreshes', () => {
+describe('console lists: visit filters, the visits page default, background refreshes, first rows in the HTML', () => {
   const t = useSeededServer('small')
   const sql = () => t.data.db.$client
   const cookieFor = async (email: string, o: { lastSeenAt?: Date } = {}) => (await sessionCookieFor(t.data.db, userIdByEmail(t.data.db, email), o))
@@ -62,5 +62,56 @@ describe('console lists: visit filters, the visits page default, background refr
     const refused = await get('/api/triage?limit=1', idle.cookie, { 'X-Background-Refresh': '1' })
     expect(refused.status).toBe(401)
     expect(await refused.json()).toEqual({ error: 'Sign in or send a valid API token.' })
+  })
+
+  /** The body rows of a list page's HTML as text, in order: what a person sees before any script runs. */
+  const rowsOf = (html: string) =>
+    [...html.matchAll(/<div role="row"[^>]*aria-rowindex="(\d+)"[^>]*>([\s\S]*?)(?=<div role="row"|<\/div><\/div><\/div>)/g)].map((m) => ({
+      index: Number(m[1]),
+      text: m[2].replace(/<[^>]+>/g, ' ').replace(/\s+/g, ' ').trim(),
+    }))
+  const page = async (path: string, cookie: string) => {
+    const res = await get(path, cookie, { Accept: 'text/html' })
+    expect(res.status).toBe(200)
+    // React marks the joins between pieces of text with empty comments.
+    return (await res.text()).replace(/<!-- -->/g, '')
+  }
+
+  it('puts the first rows of the filtered detectors in the page’s own HTML', async () => {
+    const { cookie } = await cookieFor('office@ductkeeper.test')
+    const expected = sql().prepare("select tag from detectors where state = 'trouble' order by tag, id").all() as Array<{ tag: string }>
+    expect(expected.length).toBeGreaterThan(1)
+    const html = await page('/devices?state=trouble&sort=tag&dir=asc', cookie)
+    const rows = rowsOf(html)
+    expect(rows.length).toBeGreaterThan(1)
+    expect(rows.map((r) => r.index)).toEqual(rows.map((_, i) => i + 2))
+    // Each row is the detector at its place in the list, and every one is in trouble.
+    rows.forEach((r, i) => {
+      expect(r.text.startsWith(expected[i].tag + ' ')).toBe(true)
+      expect(r.text).toContain('Trouble')
+      expect(r.text).not.toContain('Loading')
+    })
+    expect(html).toContain(`${expected.length} detectors`)
+  })
+
+  it('puts the first events of a kind in the page’s own HTML, newest first', async () => {
+    const { cookie } = await cookieFor('office@ductkeeper.test')
+    const expected = sql().prepare("select occurred_at as at from events where kind = 'alarm' order by occurred_at desc, id desc").all() as Array<{ at: string }>
+    expect(expected.length).toBeGreaterThan(1)
+    const rows = rowsOf(await page('/events?kind=alarm', cookie))
+    expect(rows.length).toBeGreaterThan(1)
+    rows.forEach((r, i) => {
+      expect(r.text.startsWith(expected[i].at.slice(0, 16).replace('T', ' '))).toBe(true)
+      expect(r.text).toMatch(/ alarm /)
+    })
+  })
+
+  it('says what was wrong with a refused address in the page’s HTML, with a way back, instead of failing', async () => {
+    const { cookie } = await cookieFor('office@ductkeeper.test')
+    const html = await page('/devices?state=melted', cookie)
+    expect(html).toContain('asks for something the list of detectors cannot show')
+    expect(html).toContain('“melted” is not a state this list knows')
+    expect(html).toMatch(/href="\/devices"[^>]*>Reset the view/)
+    expect(rowsOf(html)).toEqual([])
   })
 })
