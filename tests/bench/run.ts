@@ -1,4 +1,4 @@
-// npm run bench [-- --db file] [--requests 15] [--budget 300] [--skip api,work,browser] [--only text] [--build dir]
+// npm run bench [-- --db file] [--requests 15] [--budget 300] [--skip api,work,browser] [--only text] [--build dir] [--port 3710] [--idp-port 4110]
 // One run at fleet scale: a stress-scale database (seeded once and reused while the generator's
 // source is unchanged), the built server on loopback, and each request timed beside its floor: the
 // SQL its loader runs, replayed straight through better-sqlite3 on the same file, interleaved with
@@ -8,7 +8,7 @@ import { spawn } from 'node:child_process'
 import { createHash } from 'node:crypto'
 import { copyFileSync, existsSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, renameSync, rmSync, writeFileSync } from 'node:fs'
 import { tmpdir } from 'node:os'
-import { join } from 'node:path'
+import { dirname, join, resolve } from 'node:path'
 import { parseArgs } from 'node:util'
 import { createDb } from '~/.server/db'
 import { derivedDay } from '~/.server/derivation'
@@ -30,7 +30,9 @@ const { values } = parseArgs({
     skip: { type: 'string', default: '' },
     only: { type: 'string' },
     port: { type: 'string', default: '3710' },
-    // A copy of the build (beside a node_modules link) keeps the run steady while the tree is rebuilt.
+    'idp-port': { type: 'string' },
+    // A copy of the build keeps the run steady while the tree is rebuilt: a folder named build, beside
+    // links to node_modules and drizzle (the server reads build/client and drizzle/ from where it runs).
     build: { type: 'string', default: 'build' },
   },
 })
@@ -38,7 +40,7 @@ const perCase = Math.min(50, Math.max(3, Number(values.requests) || 15))
 const budgetMs = Math.min(900, Math.max(30, Number(values.budget) || 300)) * 1000
 const skip = new Set(values.skip!.split(',').filter(Boolean))
 const port = Number(values.port)
-const idpPort = port + 400 // the extra-server range beside the app's
+const idpPort = Number(values['idp-port'] ?? port + 400) // by default the extra-server range beside the app's
 
 export interface Result {
   name: string
@@ -91,7 +93,10 @@ process.env.DUCTKEEPER_JOBS = 'off'
 const url = `http://127.0.0.1:${port}`
 const idp = await startIdentityProvider({ port: idpPort, clientId: TEST_CLIENT.id, clientSecret: TEST_CLIENT.secret, redirectUris: [`${url}/auth/callback`], accounts: DEMO_DIRECTORY })
 // The derived facts stay as seeded (no daily refresh writing while the timings run).
-const server = spawn('node_modules/.bin/react-router-serve', [join(values.build!, 'server/index.js')], {
+// Run beside the build: the server finds its client files at build/client under its working folder.
+const buildDir = resolve(values.build!)
+const server = spawn(resolve('node_modules/.bin/react-router-serve'), [join(buildDir, 'server/index.js')], {
+  cwd: dirname(buildDir),
   env: {
     ...process.env,
     NODE_ENV: 'production',
