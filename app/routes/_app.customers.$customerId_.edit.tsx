@@ -1,4 +1,5 @@
-import { data, Link, redirect } from 'react-router'
+import { data, redirect } from 'react-router'
+import { Breadcrumb } from '~/components/breadcrumb'
 import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
 import { editableRecord, editFromRequest } from '~/.server/repos/record-edits'
@@ -48,12 +49,7 @@ export default function EditCustomer({ loaderData, actionData }: Route.Component
   const { id, record, name } = loaderData
   return (
     <div className="mx-auto max-w-3xl">
-      <nav aria-label="Breadcrumb" className="text-sm text-ink-faint">
-        <Link to={`/customers/${id}`} className="text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink">
-          {name}
-        </Link>{' '}
-        · Edit
-      </nav>
+      <Breadcrumb items={[{ to: `/customers/${id}`, name }]} here="Edit" />
       <h1 className="mt-1 mb-4 text-2xl font-semibold">Edit customer</h1>
       <RecordForm key={record.version} record={record} schema={customerForm} answer={actionData as EditAnswer | undefined} labels={LABELS} cancelTo={`/customers/${id}`} what="customer">
         <Section title="Customer">

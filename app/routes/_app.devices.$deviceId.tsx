@@ -1,4 +1,5 @@
 import { Link } from 'react-router'
+import { Breadcrumb } from '~/components/breadcrumb'
 import { EditLink } from '~/components/forms/edit-link'
 import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
@@ -43,9 +44,10 @@ const ohms = (n: number) => `${formatCount(Math.round(n * 10) / 10)} Ω`
 const showExpected = (e: Expected) => ('open' in e ? 'open (over-range)' : e.min === 0 ? `short, ≤ ${ohms(e.max)}` : `${ohms(e.min)} – ${ohms(e.max)}`)
 const showReading = (r: Reading | undefined) => (r === undefined ? '—' : r === 'open' ? 'open' : ohms(r))
 const METHOD_WORDS = { phone: 'by phone', email: 'by e-mail', portal: 'through their online portal' } as const
-const crumb = `${TAP} text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink`
 // Whole minutes and seconds, as the module's switches are read: 170 s is "2 min 50 s", never 2.83 min.
 const minSec = (s: number) => [Math.floor(s / 60) && `${Math.floor(s / 60)} min`, s % 60 && `${Math.round(s % 60)} s`].filter(Boolean).join(' ')
+// A tag that already starts with its kind ("RTU-1") is not named twice ("RTU RTU-1").
+const unitName = (kind: string, tag: string) => (tag.toUpperCase().startsWith(kind.toUpperCase()) ? tag : `${kind.toUpperCase()} ${tag}`)
 /** A task's badge: the nominal date, or how it stands against the window the standard allows. */
 const dueWords = (t: TaskDue) =>
   t.status === 'overdue' ? `Overdue: due ${t.dueOn}, ${t.daysOverdue} d past the window` : t.status === 'due' ? `Due ${t.dueOn}, ${t.overdueAfter === t.dueOn ? 'the last day' : 'inside the window'}` : `Due ${t.dueOn}`
@@ -65,21 +67,13 @@ export default function Device({ loaderData }: Route.ComponentProps) {
   return (
     <div className="mx-auto max-w-6xl space-y-6">
       <header>
-        <nav aria-label="Breadcrumb" className="flex flex-wrap items-center gap-x-1.5 text-sm text-ink-faint">
-          {[
+        <Breadcrumb
+          items={[
             { to: `/customers/${d.customerId}`, name: d.customerName },
             { to: `/sites/${d.siteId}`, name: d.siteName },
-            { to: `/units/${d.unitId}`, name: d.unitTag },
-          ].map((c, i, all) => (
-            // The separator travels with the link before it, so a wrapped line never starts with one.
-            <span key={c.to} className="inline-flex items-center gap-x-1.5">
-              <Link to={c.to} className={crumb}>
-                {c.name}
-              </Link>
-              {i < all.length - 1 && <span aria-hidden="true">·</span>}
-            </span>
-          ))}
-        </nav>
+            { to: `/units/${d.unitId}`, name: d.unitTag, mono: true },
+          ]}
+        />
         <div className="mt-1 flex flex-wrap items-center gap-x-3 gap-y-2">
           <h1 className="font-mono text-2xl font-semibold break-all">{d.tag}</h1>
           <div role="group" aria-label="State" data-first="state" className="flex flex-wrap items-center gap-2">
@@ -93,7 +87,7 @@ export default function Device({ loaderData }: Route.ComponentProps) {
           </span>
         </div>
         <p className="mt-1 text-sm text-ink-soft">
-          {d.position === 'supply' ? 'Supply' : 'Return'} duct of {d.unitKind.toUpperCase()} {d.unitTag}
+          {d.position === 'supply' ? 'Supply' : 'Return'} duct of {unitName(d.unitKind, d.unitTag)}
           {d.unitLocation && ` (${d.unitLocation})`} · {d.street}, {d.city} · {d.modelName}
         </p>
         <div className="mt-3">

@@ -1,4 +1,5 @@
 import { data, Link, redirect } from 'react-router'
+import { Breadcrumb } from '~/components/breadcrumb'
 import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
 import { detectorContext, editableRecord, editFromRequest, modelChoices } from '~/.server/repos/record-edits'
@@ -99,20 +100,14 @@ export default function EditDetector({ loaderData, actionData }: Route.Component
   const { record, detector: d, models } = loaderData
   return (
     <div className="mx-auto max-w-3xl">
-      <nav aria-label="Breadcrumb" className="text-sm text-ink-faint">
-        <Link to={`/sites/${d.siteId}`} className="text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink">
-          {d.site}
-        </Link>{' '}
-        ·{' '}
-        <Link to={`/units/${d.unitId}`} className="font-mono text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink">
-          {d.unit}
-        </Link>{' '}
-        ·{' '}
-        <Link to={`/devices/${d.id}`} className="font-mono text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink">
-          {d.tag}
-        </Link>{' '}
-        · Edit
-      </nav>
+      <Breadcrumb
+        items={[
+          { to: `/sites/${d.siteId}`, name: d.site },
+          { to: `/units/${d.unitId}`, name: d.unit, mono: true },
+          { to: `/devices/${d.id}`, name: d.tag, mono: true },
+        ]}
+        here="Edit"
+      />
       <h1 className="mt-1 mb-4 text-2xl font-semibold">Edit detector</h1>
       <RecordForm key={record.version} record={record} schema={detectorForm} cautions={detectorCautions} answer={actionData as EditAnswer | undefined} labels={LABELS} cancelTo={`/devices/${d.id}`} what="detector">
         <Section title="Detector">

@@ -1,4 +1,5 @@
 import { Link } from 'react-router'
+import { Breadcrumb } from '~/components/breadcrumb'
 import { EditLink } from '~/components/forms/edit-link'
 import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
@@ -49,12 +50,7 @@ export default function Site({ loaderData }: Route.ComponentProps) {
   return (
     <div className="mx-auto max-w-6xl space-y-6">
       <header>
-        <nav aria-label="Breadcrumb" className="text-sm text-ink-faint">
-          <Link to={`/customers/${customer.id}`} className={`${TAP} text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink`}>
-            {customer.name}
-          </Link>{' '}
-          · Site
-        </nav>
+        <Breadcrumb items={[{ to: `/customers/${customer.id}`, name: customer.name }]} here="Site" />
         <h1 className="mt-1 text-2xl font-semibold">{s.name}</h1>
         <p className="mt-1 text-sm text-ink-soft">
           {s.street}, {s.city} {s.postalCode} · {formatCount(units.total)} {units.total === 1 ? 'unit' : 'units'},{' '}

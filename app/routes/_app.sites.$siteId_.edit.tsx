@@ -1,4 +1,5 @@
-import { data, Link, redirect } from 'react-router'
+import { data, redirect } from 'react-router'
+import { Breadcrumb } from '~/components/breadcrumb'
 import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
 import { editableRecord, editFromRequest, monitoringChoices, siteContext } from '~/.server/repos/record-edits'
@@ -58,16 +59,13 @@ export default function EditSite({ loaderData, actionData }: Route.ComponentProp
   const { record, site, companies, timeZones } = loaderData
   return (
     <div className="mx-auto max-w-3xl">
-      <nav aria-label="Breadcrumb" className="text-sm text-ink-faint">
-        <Link to={`/customers/${site.customerId}`} className="text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink">
-          {site.customer}
-        </Link>{' '}
-        ·{' '}
-        <Link to={`/sites/${site.id}`} className="text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink">
-          {site.name}
-        </Link>{' '}
-        · Edit
-      </nav>
+      <Breadcrumb
+        items={[
+          { to: `/customers/${site.customerId}`, name: site.customer },
+          { to: `/sites/${site.id}`, name: site.name },
+        ]}
+        here="Edit"
+      />
       <h1 className="mt-1 mb-4 text-2xl font-semibold">Edit site</h1>
       <RecordForm
         key={record.version}

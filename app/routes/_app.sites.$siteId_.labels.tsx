@@ -1,5 +1,5 @@
 import QRCode from 'qrcode'
-import { Link } from 'react-router'
+import { Breadcrumb } from '~/components/breadcrumb'
 import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
 import { env } from '~/.server/env'
@@ -39,12 +39,7 @@ export default function Labels({ loaderData }: Route.ComponentProps) {
     <div className="print-root label-root mx-auto max-w-5xl">
       <div className="no-print mb-4 flex flex-wrap items-center justify-between gap-3">
         <div>
-          <nav aria-label="Breadcrumb" className="text-sm text-ink-faint">
-            <Link to={`/sites/${site.id}`} className="text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink">
-              {site.name}
-            </Link>{' '}
-            · Labels
-          </nav>
+          <Breadcrumb items={[{ to: `/sites/${site.id}`, name: site.name }]} here="Labels" />
           <p className="mt-1 text-sm text-ink-soft">
             {labels.length} {labels.length === 1 ? 'label' : 'labels'} on {sheets.length} {sheets.length === 1 ? 'sheet' : 'sheets'} of 3 × 8
             (63.5 × 33 mm, Letter or A4). Print at actual size; the scan opens the detector&apos;s page.

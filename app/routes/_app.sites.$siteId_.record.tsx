@@ -1,4 +1,5 @@
-import { data, Form, Link } from 'react-router'
+import { data, Form } from 'react-router'
+import { Breadcrumb } from '~/components/breadcrumb'
 import { z } from 'zod'
 import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
@@ -53,12 +54,7 @@ export default function SiteRecord({ loaderData }: Route.ComponentProps) {
   return (
     <div className="print-root mx-auto max-w-5xl">
       <div className="no-print mb-4 space-y-3">
-        <nav aria-label="Breadcrumb" className="text-sm text-ink-faint">
-          <Link to={`/sites/${site.id}`} className="text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink">
-            {site.name}
-          </Link>{' '}
-          · Inspection record for a period
-        </nav>
+        <Breadcrumb items={[{ to: `/sites/${site.id}`, name: site.name }]} here="Inspection record for a period" />
         <div className="flex flex-wrap items-end justify-between gap-3">
           <Form method="get" className="flex flex-wrap items-end gap-3 text-sm">
             <label className="grid gap-1">

@@ -1,4 +1,5 @@
 import { Link } from 'react-router'
+import { Breadcrumb } from '~/components/breadcrumb'
 import { EditLink } from '~/components/forms/edit-link'
 import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
@@ -43,7 +44,6 @@ const STATUS_BADGE = {
 } as const
 const LOCATION_LABELS = { supply: 'Supply duct', return: 'Return duct', 'return-each-storey': 'Return, at each storey' } as const
 
-const crumb = `${TAP} text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink`
 const fpm = (n: number) => `${formatCount(Math.round(n))} ft/min`
 const va = (n: number) => `${Number(n.toFixed(1))} VA`
 const volts = (n: number) => `${n.toFixed(1)} V`
@@ -60,17 +60,13 @@ export default function Unit({ loaderData }: Route.ComponentProps) {
   return (
     <div className="mx-auto max-w-6xl space-y-6">
       <header>
-        <nav aria-label="Breadcrumb" className="flex flex-wrap items-center gap-x-1.5 text-sm text-ink-faint">
-          <Link to={`/customers/${customer.id}`} className={crumb}>
-            {customer.name}
-          </Link>
-          <span aria-hidden="true">·</span>
-          <Link to={`/sites/${site.id}`} className={crumb}>
-            {site.name}
-          </Link>
-          <span aria-hidden="true">·</span>
-          <span>Unit</span>
-        </nav>
+        <Breadcrumb
+          items={[
+            { to: `/customers/${customer.id}`, name: customer.name },
+            { to: `/sites/${site.id}`, name: site.name },
+          ]}
+          here="Unit"
+        />
         <div className="mt-1 flex flex-wrap items-baseline gap-x-3 gap-y-1">
           <h1 className="font-mono text-2xl font-semibold break-all">{u.tag}</h1>
           <span className="text-sm text-ink-soft">{KIND_LABELS[u.kind] ?? u.kind.toUpperCase()}</span>

@@ -1,5 +1,6 @@
 import { useState } from 'react'
-import { data, Link, redirect } from 'react-router'
+import { Breadcrumb } from '~/components/breadcrumb'
+import { data, redirect } from 'react-router'
 import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
 import { editableRecord, editFromRequest, unitContext } from '~/.server/repos/record-edits'
@@ -71,16 +72,13 @@ export default function EditUnit({ loaderData, actionData }: Route.ComponentProp
   const [shape, setShape] = useState(String(record.ductShape))
   return (
     <div className="mx-auto max-w-3xl">
-      <nav aria-label="Breadcrumb" className="text-sm text-ink-faint">
-        <Link to={`/sites/${unit.siteId}`} className="text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink">
-          {unit.site}
-        </Link>{' '}
-        ·{' '}
-        <Link to={`/units/${unit.id}`} className="font-mono text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink">
-          {unit.tag}
-        </Link>{' '}
-        · Edit
-      </nav>
+      <Breadcrumb
+        items={[
+          { to: `/sites/${unit.siteId}`, name: unit.site },
+          { to: `/units/${unit.id}`, name: unit.tag, mono: true },
+        ]}
+        here="Edit"
+      />
       <h1 className="mt-1 mb-4 text-2xl font-semibold">Edit unit</h1>
       <RecordForm key={record.version} record={record} schema={unitForm} cautions={unitCautions} answer={actionData as EditAnswer | undefined} labels={LABELS} cancelTo={`/units/${unit.id}`} what="unit">
         <Section title="Unit">

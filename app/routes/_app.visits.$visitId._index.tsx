@@ -1,4 +1,5 @@
 import { Link, useRevalidator } from 'react-router'
+import { Breadcrumb } from '~/components/breadcrumb'
 import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
 import { technicianOptions } from '~/.server/lists/visits'
@@ -73,15 +74,12 @@ export default function Visit({ loaderData }: Route.ComponentProps) {
   return (
     <div className="mx-auto max-w-6xl space-y-5 text-base">
       <header>
-        <nav aria-label="Breadcrumb" className="text-sm text-ink-faint">
-          <Link to="/visits" className="text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink">
-            Visits
-          </Link>{' '}
-          ·{' '}
-          <Link to={`/customers/${customer.id}`} className="text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink">
-            {customer.name}
-          </Link>
-        </nav>
+        <Breadcrumb
+          items={[
+            { to: '/visits', name: 'Visits' },
+            { to: `/customers/${customer.id}`, name: customer.name },
+          ]}
+        />
         <h1 className="mt-1 text-2xl font-semibold break-words">
           <span className="capitalize">{v.kind}</span> at{' '}
           <Link to={`/sites/${s.id}`} className="hover:underline">

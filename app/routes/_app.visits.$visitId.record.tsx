@@ -1,4 +1,4 @@
-import { Link } from 'react-router'
+import { Breadcrumb } from '~/components/breadcrumb'
 import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
 import { visitInspectionRecord } from '~/.server/repos/inspection-record'
@@ -28,12 +28,7 @@ export default function VisitRecord({ loaderData }: Route.ComponentProps) {
   return (
     <div className="print-root mx-auto max-w-5xl">
       <div className="no-print mb-4 flex flex-wrap items-center justify-between gap-3">
-        <nav aria-label="Breadcrumb" className="text-sm text-ink-faint">
-          <Link to={`/sites/${site.id}`} className="text-ink-soft underline decoration-line-strong underline-offset-2 hover:text-ink">
-            {site.name}
-          </Link>{' '}
-          · Inspection record of {formatDay(visit.scheduledOn)}
-        </nav>
+        <Breadcrumb items={[{ to: `/sites/${site.id}`, name: site.name }]} here={`Inspection record of ${formatDay(visit.scheduledOn)}`} />
         <PrintButton />
       </div>
       <VisitRecordSheet site={site} company={company} visit={visit} />
