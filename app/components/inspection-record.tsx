@@ -1,5 +1,6 @@
 import type { RecordSite, RecordVisit } from '~/.server/repos/inspection-record'
 import { formatDay } from '~/utils/format'
+import { siteDateTime } from '~/utils/time-format'
 
 // The printed inspection record: what an authority having jurisdiction looks for, laid out for paper.
 // Shared by the one-visit record and the site's record for a period.
@@ -48,18 +49,9 @@ const LOOP_WORDS: Record<string, string> = { normal: 'normal', alarm: 'in alarm'
 const ohms = (r: number | 'open') => (r === 'open' ? 'open' : `${num(r, 1)} Ω`)
 const expectedWords = (e: Expected) => ('open' in e ? 'open' : `${num(e.min, 1)} – ${num(e.max, 1)} Ω`)
 
+// The site's clock with its zone's usual letters (CST, PDT), as on the detector page.
 function at(iso: string | null, timeZone: string) {
-  if (!iso) return '—'
-  return new Intl.DateTimeFormat('en-GB', {
-    timeZone,
-    day: 'numeric',
-    month: 'short',
-    year: 'numeric',
-    hour: '2-digit',
-    minute: '2-digit',
-    hourCycle: 'h23',
-    timeZoneName: 'short',
-  }).format(new Date(iso))
+  return iso ? siteDateTime(iso, timeZone) : '—'
 }
 
 const location = (d: Detector) =>

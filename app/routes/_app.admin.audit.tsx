@@ -4,6 +4,7 @@ import { requireUser } from '~/.server/auth'
 import { getDb } from '~/.server/db'
 import { auditPage, auditPeople, namesFor } from '~/.server/repos/audit-log'
 import { PageHeader, inputClass, quietButtonClass } from '~/components/ui/page-header'
+import { TAP } from '~/components/ui/tap'
 import { AUDIT_KINDS, AUDIT_KIND_KEYS, describe, type AuditItem, type Part } from '~/domain/audit-sentences'
 import { dayStartUtc, readableInstant } from '~/domain/audit-values'
 import { isIsoDate, addDays } from '~/domain/dates'
@@ -70,7 +71,8 @@ function hrefFor(f: Partial<Filters>, extra: Record<string, string> = {}) {
   return s ? `/admin/audit?${s}` : '/admin/audit'
 }
 
-const chip = (on: boolean) => `rounded-sm px-2.5 py-1 whitespace-nowrap ${on ? 'bg-accent text-accent-ink' : 'border border-line-strong hover:bg-sunken'}`
+// On a phone each chip is a 44 px finger target; on a desk the compact size.
+const chip = (on: boolean) => `${TAP} rounded-sm px-2.5 py-1 whitespace-nowrap ${on ? 'bg-accent text-accent-ink' : 'border border-line-strong hover:bg-sunken'}`
 
 export default function Audit({ loaderData: d }: Route.ComponentProps) {
   const navigate = useNavigate()
@@ -128,7 +130,7 @@ export default function Audit({ loaderData: d }: Route.ComponentProps) {
           To
           <input type="date" name="to" defaultValue={f.to ?? ''} className={inputClass} />
         </label>
-        <label className="flex items-center gap-2 py-1.5 text-sm">
+        <label className="flex min-h-11 items-center gap-2 py-1.5 text-sm sm:min-h-0">
           <input type="checkbox" name="signins" value="1" defaultChecked={f.signins} />
           Show sign-ins
         </label>
@@ -136,7 +138,7 @@ export default function Audit({ loaderData: d }: Route.ComponentProps) {
           Apply
         </button>
         {filtered && (
-          <Link to="/admin/audit" className="py-1.5 text-sm underline">
+          <Link to="/admin/audit" className={`${TAP} py-1.5 text-sm underline`}>
             Clear filters
           </Link>
         )}
@@ -167,12 +169,12 @@ export default function Audit({ loaderData: d }: Route.ComponentProps) {
         <span className="text-ink-faint">{filtered ? 'Filtered' : 'All entries'} · newest first</span>
         <span className="flex gap-4">
           {d.newerThan !== null && (
-            <Link className="underline" to={hrefFor(f, { after: String(d.newerThan) })}>
+            <Link className={`${TAP} underline`} to={hrefFor(f, { after: String(d.newerThan) })}>
               ← Newer
             </Link>
           )}
           {d.olderThan !== null && (
-            <Link className="underline" to={hrefFor(f, { before: String(d.olderThan) })}>
+            <Link className={`${TAP} underline`} to={hrefFor(f, { before: String(d.olderThan) })}>
               Older →
             </Link>
           )}

@@ -69,17 +69,25 @@ export default function CompanyCalendar({ loaderData, actionData }: Route.Compon
           <thead className="text-xs text-ink-soft">
             <tr>
               <th className="py-1 pr-3 font-medium">Holiday</th>
-              <th className="py-1 pr-3 font-medium">Date</th>
-              <th className="py-1 pr-3 font-medium">The company</th>
+              <th className="hidden py-1 pr-3 font-medium sm:table-cell">Date</th>
+              <th className="hidden py-1 pr-3 font-medium sm:table-cell">The company</th>
               <th className="py-1 font-medium" />
             </tr>
           </thead>
           <tbody>
             {holidays.map((h) => (
               <tr key={h.name} className="border-t border-line/60">
-                <td className="py-1.5 pr-3">{h.name}</td>
-                <td className="py-1.5 pr-3 font-mono text-xs">{h.dates.join(', ')}</td>
-                <td className="py-1.5 pr-3">{h.observed ? `Closed${h.observedFor !== region ? ` (for all of ${h.observedFor})` : ''}` : 'Works'}</td>
+                <td className="py-1.5 pr-3">
+                  {h.name}
+                  {/* A phone has no room for three columns: the day and what the company does sit under the name. */}
+                  <span className="block text-xs text-ink-soft sm:hidden">
+                    <Dates dates={h.dates} /> · {companyDoes(h, region)}
+                  </span>
+                </td>
+                <td className="hidden py-1.5 pr-3 font-mono text-xs sm:table-cell">
+                  <Dates dates={h.dates} />
+                </td>
+                <td className="hidden py-1.5 pr-3 sm:table-cell">{companyDoes(h, region)}</td>
                 <td className="py-1.5 text-right">
                   {(!h.observed || h.observedFor === region) && (
                     <Form method="post">
@@ -87,7 +95,7 @@ export default function CompanyCalendar({ loaderData, actionData }: Route.Compon
                       <input type="hidden" name="region" value={region} />
                       <input type="hidden" name="name" value={h.name} />
                       <input type="hidden" name="on" value={h.observed ? '0' : '1'} />
-                      <button disabled={busy} className={quietButtonClass}>
+                      <button disabled={busy} className={`${quietButtonClass} whitespace-nowrap`}>
                         {h.observed ? 'Work this day' : 'Take this day off'}
                       </button>
                     </Form>
@@ -139,3 +147,16 @@ export default function CompanyCalendar({ loaderData, actionData }: Route.Compon
     </div>
   )
 }
+
+// A date is never broken across lines; a holiday with a substitute day lists both.
+function Dates({ dates }: { dates: string[] }) {
+  return dates.map((d, i) => (
+    <span key={d} className="font-mono whitespace-nowrap">
+      {i > 0 && ', '}
+      {d}
+    </span>
+  ))
+}
+
+const companyDoes = (h: { observed: boolean; observedFor: string | null }, region: string) =>
+  h.observed ? `Closed${h.observedFor !== region ? ` (for all of ${h.observedFor})` : ''}` : 'Works'

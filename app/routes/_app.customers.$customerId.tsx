@@ -71,14 +71,15 @@ export default function Customer({ loaderData }: Route.ComponentProps) {
       </header>
 
       <section aria-label="Totals" className="grid grid-cols-2 gap-3 sm:grid-cols-4">
-        <Figure label="Sites" value={t.sites} />
-        <Figure label="Units" value={t.units} />
-        <Figure label="Detectors" value={t.detectors} />
-        <Figure label="Overdue" value={t.overdue} note={`${percent(t.overdue, t.detectors)} of detectors`} tone="text-late" />
-        <Figure label="Due within 30 days" value={t.dueSoon} tone="text-soon" />
-        <Figure label="In trouble" value={t.inTrouble} tone="text-trouble" />
-        <Figure label="Out of service" value={t.outOfService} />
-        <Figure label="Delay differs from policy" value={t.delayDisagrees} tone="text-late" />
+        <Figure label="Sites" value={t.sites} href={`/sites?customer=${c.id}`} />
+        {/* There is no fleet list of units: each site's row counts its units. */}
+        <Figure label="Units" value={t.units} href={`/sites?customer=${c.id}`} />
+        <Figure label="Detectors" value={t.detectors} href={`/devices?customer=${c.id}`} />
+        <Figure label="Overdue" value={t.overdue} note={`${percent(t.overdue, t.detectors)} of detectors`} tone="text-late" href={`/devices?customer=${c.id}&due=overdue`} />
+        <Figure label="Due within 30 days" value={t.dueSoon} tone="text-soon" href={`/devices?customer=${c.id}&due=due-soon`} />
+        <Figure label="In trouble" value={t.inTrouble} tone="text-trouble" href={`/devices?customer=${c.id}&state=trouble`} />
+        <Figure label="Out of service" value={t.outOfService} href={`/devices?customer=${c.id}&state=out-of-service`} />
+        <Figure label="Delay differs from policy" value={t.delayDisagrees} tone="text-late" href={`/devices?customer=${c.id}&delay=disagree`} />
       </section>
 
       <section aria-labelledby="due-h" className="rounded-md border border-line bg-panel">

@@ -35,8 +35,8 @@ export default function Overview({ loaderData }: Route.ComponentProps) {
       <section aria-label="Fleet" className="grid grid-cols-2 gap-3 sm:grid-cols-3 lg:grid-cols-6">
         <Tile label="Customers" value={f.customers} href="/customers" />
         <Tile label="Sites" value={f.sites} href="/sites" />
-        {/* Units are listed on their sites' pages; there is no fleet list of units to open. */}
-        <Tile label="Units" value={f.units} />
+        {/* There is no fleet list of units: the sites list counts each site's units. */}
+        <Tile label="Units" value={f.units} href="/sites" />
         <Tile label="Detectors" value={f.detectors} href="/devices" />
         <Tile
           label="Overdue"
@@ -75,7 +75,7 @@ export default function Overview({ loaderData }: Route.ComponentProps) {
                   <th className="px-2 py-2 font-medium">Site</th>
                   <th className="hidden px-2 py-2 font-medium sm:table-cell">Work</th>
                   <th className="hidden px-2 py-2 font-medium sm:table-cell">Technician</th>
-                  <th className="px-4 py-2 text-right font-medium">Detectors</th>
+                  <th className="hidden px-4 py-2 text-right font-medium sm:table-cell">Detectors</th>
                 </tr>
               </thead>
               <tbody>
@@ -88,14 +88,19 @@ export default function Overview({ loaderData }: Route.ComponentProps) {
                       </Link>
                       <div className="text-xs text-ink-faint">
                         {v.city}
+                        {/* On a phone the site takes the room: its work and detector count go under its name. */}
                         <span className="capitalize sm:hidden"> · {v.kind}</span>
+                        <span className="sm:hidden">
+                          {' '}
+                          · {v.detectors} {v.detectors === 1 ? 'detector' : 'detectors'}
+                        </span>
                       </div>
                     </td>
                     <td className="hidden px-2 py-2 capitalize sm:table-cell">{v.kind}</td>
                     <td className="hidden px-2 py-2 sm:table-cell">
                       {v.technician ?? <span className="text-late">Not assigned</span>}
                     </td>
-                    <td className="px-4 py-2 text-right font-mono">{v.detectors}</td>
+                    <td className="hidden px-4 py-2 text-right font-mono sm:table-cell">{v.detectors}</td>
                   </tr>
                 ))}
               </tbody>
@@ -115,8 +120,9 @@ export default function Overview({ loaderData }: Route.ComponentProps) {
               {f.attention.map((d) => (
                 <li key={d.id} className="flex items-center justify-between gap-2">
                   <Link to={`/devices/${d.id}`} className="flex min-h-11 min-w-0 items-center hover:underline md:min-h-0">
-                    <span className="truncate">
-                    <span className="font-mono">{d.tag}</span> <span className="text-ink-soft">· {d.siteName}</span>
+                    {/* Wraps rather than cutting the site's name short. */}
+                    <span className="min-w-0 break-words">
+                      <span className="font-mono">{d.tag}</span> <span className="text-ink-soft">· {d.siteName}</span>
                     </span>
                   </Link>
                   <span className="flex shrink-0 items-center gap-1.5">

@@ -61,6 +61,10 @@ describe('admin pages in Chromium', () => {
     const { page, close } = await adminPage(390)
     await page.goto(`${t.server.url}/admin/audit`)
     expect(await noSidewaysScroll(page)).toBe(true)
+    // On a phone each kind of change is a finger-sized choice.
+    const chips = await page.getByRole('navigation', { name: 'Kind of change' }).getByRole('link').evaluateAll((as) => as.map((a) => a.getBoundingClientRect().height))
+    expect(chips.length).toBeGreaterThan(5)
+    expect(Math.min(...chips)).toBeGreaterThanOrEqual(44)
     // The deactivation above reads as a sentence.
     await page.getByText('Ada Whitlock deactivated Helen Sato and ended their sessions and API tokens').waitFor()
 
@@ -84,6 +88,32 @@ describe('admin pages in Chromium', () => {
     expect(await page.getByLabel('Show sign-ins').isChecked()).toBe(false)
     expect(await page.getByRole('link', { name: 'Everything' }).getAttribute('aria-current')).toBe('page')
     expect(await page.getByText('Ada Whitlock signed in').count()).toBe(0)
+    await close()
+  })
+
+  it('the company calendar fits a phone with no date broken across lines', async () => {
+    const { page, close } = await adminPage(390)
+    await page.goto(`${t.server.url}/admin/calendar`)
+    expect(await noSidewaysScroll(page)).toBe(true)
+    // Every ISO date on the page, measured as laid out: one that wraps has more than one box.
+    const dates = await page.evaluate(() => {
+      const out: Array<{ date: string; lines: number }> = []
+      const walk = document.createTreeWalker(document.querySelector('main')!, NodeFilter.SHOW_TEXT)
+      for (let n = walk.nextNode(); n; n = walk.nextNode()) {
+        for (const m of (n.textContent ?? '').matchAll(/\d{4}-\d{2}-\d{2}/g)) {
+          const r = document.createRange()
+          r.setStart(n, m.index)
+          r.setEnd(n, m.index + m[0].length)
+          const boxes = [...r.getClientRects()].filter((b) => b.width > 0)
+          if (boxes.length) out.push({ date: m[0], lines: new Set(boxes.map((b) => Math.round(b.top))).size })
+        }
+      }
+      return out
+    })
+    expect(dates.length).toBeGreaterThan(5)
+    expect(dates.filter((d) => d.lines > 1)).toEqual([])
+    const offs = await page.getByRole('button', { name: 'Take this day off' }).evaluateAll((bs) => bs.map((b) => b.getBoundingClientRect()).map((b) => ({ right: b.right, height: b.height })))
+    for (const b of offs) expect(b.right).toBeLessThanOrEqual(390)
     await close()
   })
 

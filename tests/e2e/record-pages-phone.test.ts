@@ -145,6 +145,118 @@ describe('record pages on a phone', () => {
     }
   })
 
+  /** Where each breadcrumb link sits on the page, with where it leads. */
+  const crumbs = (page: Page) =>
+    page.locator('nav[aria-label=Breadcrumb] a').evaluateAll((as) =>
+      as.map((a) => {
+        const b = a.getBoundingClientRect()
+        return { href: a.getAttribute('href'), top: Math.round(b.top), bottom: Math.round(b.bottom), height: b.height, right: b.right }
+      }),
+    )
+
+  it('the breadcrumb is a stack of finger-sized rows on a phone, one record to a row with no gap between them, and one line on a desk', async () => {
+    const d = sql().prepare('select id, unit_id as unitId, site_id as siteId, customer_id as customerId from detectors order by id limit 1').get() as Record<string, number>
+    const visit = sql().prepare("select id from visits where status = 'done' order by id limit 1").get() as { id: number }
+    const customerOfVisit = (sql().prepare('select s.customer_id as id from visits v join sites s on s.id = v.site_id where v.id = ?').get(visit.id) as { id: number }).id
+    const expected: Array<[string, string[]]> = [
+      [`/devices/${d.id}`, [`/customers/${d.customerId}`, `/sites/${d.siteId}`, `/units/${d.unitId}`]],
+      [`/units/${d.unitId}`, [`/customers/${d.customerId}`, `/sites/${d.siteId}`]],
+      [`/visits/${visit.id}`, ['/visits', `/customers/${customerOfVisit}`]],
+    ]
+    for (const [path, hrefs] of expected) {
+      const phone = await open(path)
+      const rows = await crumbs(phone)
+      expect(rows.map((r) => r.href), path).toEqual(hrefs)
+      for (const r of rows) {
+        expect(r.height, `${path} ${r.href}`).toBeGreaterThanOrEqual(44)
+        expect(r.right, `${path} ${r.href}`).toBeLessThanOrEqual(PHONE.width)
+      }
+      // Each record starts its own row right under the one before: no two on one line, no empty band between.
+      for (let i = 1; i < rows.length; i++) expect(rows[i].top - rows[i - 1].bottom, `${path} row ${i}`).toBe(0)
+      await phone.context().close()
+
+      const desk = await open(path, DESK)
+      const line = await crumbs(desk)
+      expect(new Set(line.map((r) => r.top)).size, `${path} on a desk`).toBe(1)
+      await desk.context().close()
+    }
+  })
+
+  it("a visit's printed record reads on a phone: each detector's head in lines that do not overlap, times in the site's zone", async () => {
+    const v = sql()
+      .prepare(
+        `select v.id, s.time_zone as tz from visits v join sites s on s.id = v.site_id where v.status = 'done'
+           and exists (select 1 from notifications n where n.visit_id = v.id) order by v.id limit 1`,
+      )
+      .get() as { id: number; tz: string }
+    const page = await open(`/visits/${v.id}/record`)
+    const o = await overflow(page)
+    expect(o.scrollWidth).toBeLessThanOrEqual(PHONE.width)
+    const overlaps = await page.locator('.record-detector-head').evaluateAll((heads) =>
+      heads.flatMap((h) => {
+        const parts = [...h.children].map((c) => ({ text: c.textContent, b: c.getBoundingClientRect() }))
+        const out: string[] = []
+        for (const [i, a] of parts.entries())
+          for (const c of parts.slice(i + 1))
+            if (a.b.left < c.b.right - 0.5 && c.b.left < a.b.right - 0.5 && a.b.top < c.b.bottom - 0.5 && c.b.top < a.b.bottom - 0.5) out.push(`${a.text} over ${c.text}`)
+        // A part squeezed to a sliver wraps a letter or two to a line.
+        for (const p of parts) if (p.b.width < 40) out.push(`${p.text} is ${p.b.width} px wide`)
+        return out
+      }),
+    )
+    expect(overlaps.length).toBe(0)
+    await expect(page.locator('.record-detector-head').count()).resolves.toBeGreaterThan(0)
+    // The notice's times carry the zone's usual letters for the site, as the detector page does.
+    const letters = new Intl.DateTimeFormat('en-US', { timeZone: v.tz, timeZoneName: 'short' }).formatToParts(new Date('2026-01-15T12:00:00Z')).find((p) => p.type === 'timeZoneName')!.value
+    const summer = new Intl.DateTimeFormat('en-US', { timeZone: v.tz, timeZoneName: 'short' }).formatToParts(new Date('2026-07-15T12:00:00Z')).find((p) => p.type === 'timeZoneName')!.value
+    const text = await page.locator('main').innerText()
+    expect(text).not.toMatch(/GMT[+-]\d/)
+    expect(text.includes(` ${letters}`) || text.includes(` ${summer}`)).toBe(true)
+    await page.context().close()
+  })
+
+  it("every figure on a customer's page opens the list it counts", async () => {
+    const { id } = sql().prepare('select customer_id as id from detectors group by customer_id order by count(*) desc limit 1').get() as { id: number }
+    const count = (where: string) => (sql().prepare(`select count(*) as n from detectors where customer_id = ? ${where}`).get(id) as { n: number }).n
+    const expected: Record<string, [string, number]> = {
+      Sites: [`/sites?customer=${id}`, (sql().prepare('select count(*) as n from sites where customer_id = ?').get(id) as { n: number }).n],
+      // No fleet list of units: the sites list counts each site's units.
+      Units: [`/sites?customer=${id}`, (sql().prepare('select count(*) as n from units u join sites s on s.id = u.site_id where s.customer_id = ?').get(id) as { n: number }).n],
+      Detectors: [`/devices?customer=${id}`, count('')],
+      Overdue: [`/devices?customer=${id}&due=overdue`, count("and due_status = 'overdue'")],
+      'Due within 30 days': [`/devices?customer=${id}&due=due-soon`, count("and due_status = 'due-soon'")],
+      'In trouble': [`/devices?customer=${id}&state=trouble`, count("and state = 'trouble'")],
+      'Out of service': [`/devices?customer=${id}&state=out-of-service`, count("and state = 'out-of-service'")],
+      'Delay differs from policy': [`/devices?customer=${id}&delay=disagree`, count("and delay_agreement = 'disagree'")],
+    }
+    const page = await open(`/customers/${id}`)
+    const figures = await page.locator('section[aria-label=Totals] > *').evaluateAll((els) =>
+      els.map((e) => ({ tag: e.tagName, href: e.getAttribute('href'), label: e.firstElementChild?.textContent, value: e.children[1]?.textContent })),
+    )
+    expect(figures.map((f) => f.label)).toEqual(Object.keys(expected))
+    for (const f of figures) {
+      const [href, n] = expected[f.label!]
+      expect(f.tag, f.label!).toBe('A')
+      expect(f.href, f.label!).toBe(href)
+      expect(f.value, f.label!).toBe(n.toLocaleString('en-US'))
+    }
+    // The list behind a figure holds as many as the figure says.
+    const [href, n] = expected.Overdue
+    await page.locator(`section[aria-label=Totals] a[href="${href}"]`).click()
+    await page.waitForURL((u) => u.pathname + u.search === href)
+    await expect.poll(() => page.getByRole('status').filter({ hasText: /detectors?$/ }).first().innerText()).toBe(`${n.toLocaleString('en-US')} ${n === 1 ? 'detector' : 'detectors'}`)
+    await page.context().close()
+
+    // The overview's tiles likewise: each one opens a list.
+    const overview = await open('/overview')
+    const tiles = await overview.locator('section[aria-label=Fleet] > *').evaluateAll((els) =>
+      els.map((e) => [e.querySelector('span')?.textContent, e.querySelector('a')?.getAttribute('href') ?? null]),
+    )
+    expect(tiles.length).toBe(6)
+    for (const [label, href] of tiles) expect(href, label ?? '').toMatch(/^\/(customers|sites|devices)\b/)
+    await overview.context().close()
+  })
+
   it('on a desk the drawing fits whole, unscaled, with no hint to scroll', async () => {
     const page = await open('/devices/1', DESK)
     const labels = await drawingLabels(page)
