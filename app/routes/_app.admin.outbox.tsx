@@ -128,7 +128,7 @@ export default function Outbox({ loaderData, actionData }: Route.ComponentProps)
                 <Form method="post">
                   <input type="hidden" name="intent" value="send-digest" />
                   <input type="hidden" name="userId" value={r.userId} />
-                  <button className={`${buttonClass} min-h-8`} disabled={busy}>
+                  <button className={`${buttonClass} min-h-11 sm:min-h-8`} disabled={busy}>
                     Send now
                   </button>
                 </Form>

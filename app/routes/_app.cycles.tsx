@@ -74,7 +74,7 @@ export default function Cycles({ loaderData }: Route.ComponentProps) {
           <fieldset className="flex flex-col gap-1 text-sm">
             <legend className="mb-1 text-xs font-medium text-ink-soft">Locations</legend>
             {ENVIRONMENTS.map((e) => (
-              <label key={e} className="flex min-h-8 items-center gap-2">
+              <label key={e} className="flex min-h-11 items-center gap-2 sm:min-h-8">
                 <input type="checkbox" className="size-4" checked={environments.includes(e)} onChange={() => choose(() => setEnvironments(flip(environments, e)))} />
                 {ENV_WORDS[e] ?? e}
               </label>
@@ -94,11 +94,11 @@ export default function Cycles({ loaderData }: Route.ComponentProps) {
           <fieldset className="flex flex-col gap-1 text-sm">
             <legend className="mb-1 text-xs font-medium text-ink-soft">Technicians</legend>
             {d.technicians.map((t) => (
-              <label key={t.id} className="flex min-h-8 flex-wrap items-center gap-x-2">
+              <label key={t.id} className="flex min-h-11 flex-wrap items-center gap-x-2 sm:min-h-8">
                 <input type="checkbox" className="size-4" checked={techIds.includes(t.id)} onChange={() => choose(() => setTechIds(flip(techIds, t.id)))} />
                 <span>{t.name}</span>
                 <span className="text-xs text-ink-faint">
-                  {t.regions || 'every region'} · {t.dailyCapacity === null ? 'no daily limit' : `${t.dailyCapacity} ${t.capacityUnit} a day`}
+                  {t.regions ? t.regions.split(',').join(', ') : 'every region'} · {t.dailyCapacity === null ? 'no daily limit' : `${t.dailyCapacity} ${t.capacityUnit} a day`}
                 </span>
               </label>
             ))}

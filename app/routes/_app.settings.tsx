@@ -82,7 +82,7 @@ export default function Settings({ loaderData, actionData }: Route.ComponentProp
               : 'No digest has been sent to you yet.'}
           </p>
         </div>
-        <label className="flex items-center gap-2 text-sm font-medium">
+        <label className="flex min-h-11 items-center gap-2 text-sm font-medium sm:min-h-0">
           <input type="checkbox" name="enabled" defaultChecked={settings.enabled} className="size-4 accent-accent" /> Send me the weekly digest
         </label>
         <div className="grid gap-4 sm:grid-cols-2">
@@ -110,7 +110,7 @@ export default function Settings({ loaderData, actionData }: Route.ComponentProp
           <p className="text-xs text-ink-soft">None ticked: the digest covers the whole fleet.</p>
           <div className="mt-2 grid max-h-72 gap-1 overflow-auto rounded-sm border border-line p-2 sm:grid-cols-2">
             {customers.map((c) => (
-              <label key={c.id} className="flex items-center gap-2 py-1 text-sm">
+              <label key={c.id} className="flex min-h-11 items-center gap-2 py-1 text-sm sm:min-h-0">
                 <input type="checkbox" name="customerIds" value={c.id} defaultChecked={settings.customerIds.includes(c.id)} className="size-4 accent-accent" /> {c.name}
               </label>
             ))}

@@ -56,6 +56,12 @@ describe('every main page at phone and desk width, for every role', () => {
       { path: '/admin/users', needs: 'manage:users' },
       { path: '/admin/audit', needs: 'view:audit' },
       { path: '/admin/tokens', needs: 'manage:tokens' },
+      { path: '/cycles', needs: 'schedule:visits' },
+      { path: '/delay-audit', needs: 'schedule:visits' },
+      { path: '/import', needs: 'edit:records' },
+      { path: '/settings', needs: 'receive:digest' },
+      { path: '/admin/calendar', needs: 'manage:settings' },
+      { path: '/admin/outbox', needs: 'manage:settings' },
     ]
   })
 
@@ -88,6 +94,10 @@ describe('every main page at phone and desk width, for every role', () => {
           const controls = [...document.querySelectorAll('main button, main select, main input:not([type=checkbox]):not([type=radio]):not([type=hidden])')].filter(shown)
           const short = controls.filter((c) => c.getBoundingClientRect().height < minTouch)
           if (short.length) out.push(`controls shorter than ${minTouch} px: ${short.slice(0, 5).map((c) => (c.textContent || c.getAttribute('aria-label') || c.getAttribute('name') || c.tagName).trim().slice(0, 30)).join(' | ')}`)
+          // A tick box is pressed through its label: the label is the finger's target.
+          const ticks = [...document.querySelectorAll('main label:has(> input[type=checkbox]), main label:has(> input[type=radio])')].filter(shown)
+          const shortTicks = ticks.filter((l) => l.getBoundingClientRect().height < minTouch)
+          if (shortTicks.length) out.push(`tick box labels shorter than ${minTouch} px: ${shortTicks.slice(0, 5).map((l) => (l.textContent ?? '').trim().slice(0, 30)).join(' | ')}`)
         }
         if (drawing) {
           const texts = [...document.querySelectorAll('main svg[role="img"] text')].filter(shown)

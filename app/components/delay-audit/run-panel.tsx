@@ -106,7 +106,7 @@ export function RunPanel(p: {
   return (
     <div className="flex flex-col gap-3 text-sm">
       <div className="flex flex-wrap items-center gap-2">
-        <button type="button" className={quietButtonClass + ' min-h-9'} disabled={busy || p.disabled} onClick={() => void runPreview()}>
+        <button type="button" className={quietButtonClass + ' min-h-11 sm:min-h-9'} disabled={busy || p.disabled} onClick={() => void runPreview()}>
           Preview {p.label}
         </button>
         {phase === 'previewed' && preview && !stale && (
@@ -115,7 +115,7 @@ export function RunPanel(p: {
           </button>
         )}
         {phase === 'done' && result?.changeId && (
-          <button type="button" className={quietButtonClass + ' min-h-9'} onClick={() => void undo()}>
+          <button type="button" className={quietButtonClass + ' min-h-11 sm:min-h-9'} onClick={() => void undo()}>
             Undo
           </button>
         )}

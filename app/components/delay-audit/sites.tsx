@@ -48,7 +48,7 @@ export function AuditSites(p: {
         return (
           <article key={s.id} aria-label={s.name} className="rounded-md border border-line bg-panel">
             <header className="flex flex-wrap items-center justify-between gap-2 border-b border-line px-3 py-2">
-              <label className="flex min-h-9 items-center gap-2 font-medium">
+              <label className="flex min-h-11 items-center gap-2 font-medium sm:min-h-9">
                 <input type="checkbox" className="size-4" checked={all} onChange={(e) => toggle(ids, e.target.checked)} aria-label={`Choose every detector at ${s.name}`} />
                 <Link to={`/sites/${s.id}`} className="underline">
                   {s.name}
@@ -87,12 +87,12 @@ export function AuditSites(p: {
       {page.pages > 1 && (
         <nav aria-label="Pages of sites" className="flex items-center gap-3 text-sm">
           {page.page > 1 && (
-            <Link className="inline-flex min-h-9 items-center text-accent underline" to={`?outcome=${page.outcome}&page=${page.page - 1}`}>
+            <Link className="inline-flex min-h-11 items-center text-accent underline sm:min-h-9" to={`?outcome=${page.outcome}&page=${page.page - 1}`}>
               Previous sites
             </Link>
           )}
           {page.page < page.pages && (
-            <Link className="inline-flex min-h-9 items-center text-accent underline" to={`?outcome=${page.outcome}&page=${page.page + 1}`}>
+            <Link className="inline-flex min-h-11 items-center text-accent underline sm:min-h-9" to={`?outcome=${page.outcome}&page=${page.page + 1}`}>
               Next sites
             </Link>
           )}
