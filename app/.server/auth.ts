@@ -5,9 +5,10 @@ import { allows, isRole, type Access, type Role } from '~/domain/permissions'
 import { safeReturnTo } from '~/utils/return-to'
 import { getDb } from './db'
 import { env, secureCookies } from './env'
+import { perDb } from './repos/statements'
 import { userForToken } from './repos/tokens'
 import { BACKGROUND_HEADER } from '~/utils/fetch-json'
-import { sessionStorage, sessionUserWithoutTouch } from './sessions'
+import { sessionUser } from './sessions'
 
 export interface CurrentUser {
   id: number
@@ -141,10 +142,13 @@ export function getAuthenticator(request: Request): Promise<Authenticator<Identi
   return authenticator
 }
 
+// Read on every request: prepared once per database.
+const activeUser = perDb((db) =>
+  db.$client.prepare<[number], { id: number; email: string; name: string; role: string }>('select id, email, name, role from users where id = ? and active = 1'),
+)
+
 function loadUser(id: number, via: CurrentUser['via']): CurrentUser | null {
-  const row = getDb()
-    .$client.prepare('select id, email, name, role from users where id = ? and active = 1')
-    .get(id) as { id: number; email: string; name: string; role: string } | undefined
+  const row = activeUser(getDb()).get(id)
   if (!row || !isRole(row.role)) return null
   return { ...row, role: row.role, via }
 }
@@ -156,13 +160,9 @@ export async function userFromRequest(request: Request): Promise<CurrentUser | n
     return userId === null ? null : loadUser(userId, 'token')
   }
   // A page's own timed refresh says so: it is not the person at work, so the idle timer keeps running.
-  if (request.headers.get(BACKGROUND_HEADER) === '1') {
-    const userId = await sessionUserWithoutTouch(request.headers.get('Cookie'))
-    return userId === null ? null : loadUser(userId, 'session')
-  }
-  const session = await sessionStorage.getSession(request.headers.get('Cookie'))
-  const userId = session.get('userId')
-  return typeof userId === 'number' ? loadUser(userId, 'session') : null
+  const touch = request.headers.get(BACKGROUND_HEADER) !== '1'
+  const userId = await sessionUser(request.headers.get('Cookie'), touch)
+  return userId === null ? null : loadUser(userId, 'session')
 }
 
 const isApi = (request: Request) => new URL(request.url).pathname.startsWith('/api/')

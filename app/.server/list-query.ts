@@ -1,4 +1,4 @@
-import { and, asc, Column, count, desc, eq, getTableName, inArray, is, sql, type SQL } from 'drizzle-orm'
+import { and, asc, Column, count, desc, eq, getTableName, inArray, is, SQL, sql } from 'drizzle-orm'
 import type { SelectResultFields } from 'drizzle-orm/query-builders/select.types'
 import { alias, QueryBuilder, SQLiteSyncDialect, type SelectedFields, type SQLiteColumn, type SQLiteSelect, type SQLiteTable } from 'drizzle-orm/sqlite-core'
 import { z } from 'zod'
@@ -204,7 +204,27 @@ function parameterized(text: string, values: unknown[]): SQL | null {
   return sql.join(parts.map((part, i) => (i === 0 ? sql.raw(part) : sql`${sql.placeholder(`w${i - 1}`)}${sql.raw(part)}`)))
 }
 
-type PageStatement = { all: (values: Record<string, unknown>) => unknown[] }
+/**
+ * A prepared page statement and how to read its rows: it is run for raw value arrays, each field
+ * decoded by its own column or expression (looked up once here, not per value per row as the ORM's
+ * row mapper does: that lookup cost more than the SQL of an indexed page), and the order terms follow
+ * the fields, undecoded, for anchors.
+ */
+interface PageStatement {
+  values: (values: Record<string, unknown>) => unknown[][]
+  names: string[]
+  decoders: Array<{ mapFromDriverValue: (value: unknown) => unknown }>
+}
+
+/** The decoder of a selected field, as the ORM picks it: a column decodes its own values. */
+function decoderOf(field: unknown): PageStatement['decoders'][number] {
+  // An expression's decoder is the one `mapWith` set (the ORM keeps it on the SQL, untyped).
+  const decoderOfSql = (q: SQL) => (q as unknown as { decoder: PageStatement['decoders'][number] }).decoder
+  if (is(field, Column)) return field
+  if (is(field, SQL)) return decoderOfSql(field)
+  if (is(field, SQL.Aliased)) return decoderOfSql(field.sql)
+  throw new Error('A list selects columns and expressions only, each at the top level')
+}
 // Per database and list: the prepared page statements by sort, direction, anchor and filter text.
 const pageStatements = perDb(() => new WeakMap<object, Map<string, PageStatement>>())
 const MAX_STATEMENTS = 200
@@ -350,7 +370,9 @@ export function runList<F extends Paging, S extends SelectedFields>(db: Db, spec
     // Widened to any selection for the join function; the rows are typed from `spec.select` below.
     // The order's terms come back too (unmapped, as stored), to anchor later pages on.
     const selection: SelectedFields = { ...spec.select, ...Object.fromEntries(terms.map((t, i) => [`__order${i}`, sql`${t}`])) }
-    statement = spec.from(db.select(selection).from(table).$dynamic()).where(inArray(table.id, window)).orderBy(...order).prepare()
+    const prepared = spec.from(db.select(selection).from(table).$dynamic()).where(inArray(table.id, window)).orderBy(...order).prepare()
+    // The columns come back in the selection's order (the ORM builds the select list from its entries).
+    statement = { values: (v) => prepared.values(v), names: Object.keys(spec.select), decoders: Object.values(spec.select).map(decoderOf) }
     if (shared !== null) {
       // Every distinct filter shape adds one: keep the newest couple of hundred.
       if (statements.size >= MAX_STATEMENTS) statements.delete(statements.keys().next().value as string)
@@ -360,12 +382,14 @@ export function runList<F extends Paging, S extends SelectedFields>(db: Db, spec
   const values: Record<string, unknown> = { ...placeholders, limit, offset: walk.skip }
   filter.params.forEach((value, i) => (values[`w${i}`] = value))
   walk.after?.forEach((value, i) => (values[`a${i}`] = value))
-  const found = statement.all(values) as Array<Record<string, unknown>>
+  const found = statement.values(values)
   if (walk.reversed) found.reverse()
 
-  const rows = found.map((row) => {
+  const { names, decoders } = statement
+  const width = names.length
+  const rows = found.map((raw) => {
     const out: Record<string, unknown> = {}
-    for (const k in row) if (!k.startsWith('__order')) out[k] = row[k]
+    for (let i = 0; i < width; i++) out[names[i]] = raw[i] === null ? null : decoders[i].mapFromDriverValue(raw[i])
     return out as ListRow<S>
   })
   if (canAnchor && found.length) {
@@ -375,7 +399,7 @@ export function runList<F extends Paging, S extends SelectedFields>(db: Db, spec
       anchorsByList.set(listKey, anchors)
     }
     if (anchors.rows.size < MAX_ANCHORS) {
-      const valuesOf = (row: Record<string, unknown>) => terms.map((_, i) => row[`__order${i}`])
+      const valuesOf = (raw: unknown[]) => raw.slice(width, width + terms.length)
       anchors.rows.set(params.offset, valuesOf(found[0]))
       anchors.rows.set(params.offset + found.length - 1, valuesOf(found[found.length - 1]))
     }

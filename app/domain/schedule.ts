@@ -44,9 +44,23 @@ export const WINDOW_BASIS: Record<Task, string> = {
   cleaning: 'no window: the cleaning interval is our own (common practice)',
 }
 
+// Window ends already worked out, by task and date: the fleet's derivation and every row of a Triage
+// page ask again and again for the same few thousand dates, and each is a calendar sum of months.
+const windowEnds = new Map<string, IsoDate>()
+const MAX_WINDOW_ENDS = 20_000
+
 /** The last day a task is still inside its window; the day after, it is overdue. */
 export function overdueAfter(task: Task, dueOn: IsoDate): IsoDate {
-  return WINDOW_MONTHS[task] ? addMonths(dueOn, WINDOW_MONTHS[task]) : dueOn
+  const months = WINDOW_MONTHS[task]
+  if (!months) return dueOn
+  const key = `${task} ${dueOn}`
+  let end = windowEnds.get(key)
+  if (end === undefined) {
+    if (windowEnds.size >= MAX_WINDOW_ENDS) windowEnds.clear()
+    end = addMonths(dueOn, months)
+    windowEnds.set(key, end)
+  }
+  return end
 }
 
 /** Worst first: the order a detector's several tasks are summed up in. */
@@ -177,8 +191,10 @@ export function overdueTasks(dues: Record<Task, IsoDate | null>, today: IsoDate)
   for (const task of Object.keys(dues) as Task[]) {
     const dueOn = dues[task]
     if (dueOn === null) continue
-    const s = taskStanding(task, dueOn, today)
-    if (s.status === 'overdue') out.push({ task, days: s.daysOverdue })
+    // taskStanding's overdue test and lateness, with the window's end worked out once: this runs for
+    // every task of every row of a Triage page.
+    const end = overdueAfter(task, dueOn)
+    if (today > end) out.push({ task, days: daysBetween(end, today) })
   }
   return out
 }

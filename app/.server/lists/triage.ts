@@ -56,6 +56,9 @@ const keptReasons = perDb((db) =>
     .prepare(),
 )
 
+// Read with every window of the queue: prepared once per database.
+const allReasonCounts = perDb((db) => db.select({ code: reasonCountsTable.code, n: reasonCountsTable.n }).from(reasonCountsTable).prepare())
+
 /**
  * Open detectors carrying one reason, counted: for a code the kept totals have no row for yet (a row
  * per code is added by migration; until then the triggers have nothing to keep it in).
@@ -119,7 +122,7 @@ export function triageList(db: Db, query: TriageQuery, today: string): ListResul
 /** How many open (unacknowledged) detectors carry each reason, from the totals the triggers keep. */
 export function reasonCounts(db: Db): Record<ReasonCode | 'open', number> {
   const counts = Object.fromEntries(['open', ...REASON_CODES].map((c) => [c, -1])) as Record<ReasonCode | 'open', number>
-  for (const row of db.select().from(reasonCountsTable).all()) counts[row.code as ReasonCode | 'open'] = row.n
+  for (const row of allReasonCounts(db).all()) counts[row.code as ReasonCode | 'open'] = row.n
   for (const code of REASON_CODES) if (counts[code] < 0) counts[code] = countOpen(db, code)
   if (counts.open < 0) counts.open = 0
   return counts
