@@ -5,13 +5,20 @@ import { columnIndexes } from '~/.server/csv/parse-rows'
 import { checkImport, commitImport } from '~/.server/csv/run'
 import { importIdParam, loadImport, removeImport } from '~/.server/csv/store'
 import { getDb } from '~/.server/db'
-import { readJson } from '~/.server/http'
+import { methodNotAllowed, readJson } from '~/.server/http'
 import { officeToday } from '~/.server/today'
 import { mappingSchema } from '~/domain/import-schemas'
 import type { RouteAccess } from '~/domain/permissions'
 import type { Route } from './+types/api.import.$importId'
 
-export const handle = { access: { action: 'edit:records' } satisfies RouteAccess }
+// Served only by POST; `methods` tells the route × role test that a GET answers 405.
+export const handle = { access: { loader: 'edit:records', action: 'edit:records' } satisfies RouteAccess, methods: ['POST'] as const }
+
+/** A GET is refused as a method the route does not serve, not as a malformed request. */
+export async function loader({ request }: Route.LoaderArgs) {
+  await requireUser(request, 'edit:records')
+  return methodNotAllowed(request, handle.methods)
+}
 
 const body = z.discriminatedUnion('intent', [
   z.object({ intent: z.literal('check'), mapping: mappingSchema }),
@@ -29,6 +36,7 @@ const encoder = new TextEncoder()
  */
 export async function action({ request, params }: Route.ActionArgs) {
   const user = await requireUser(request, 'edit:records')
+  if (request.method !== 'POST') return methodNotAllowed(request, handle.methods)
   const id = importIdParam.safeParse(params.importId)
   if (!id.success) return Response.json({ error: 'That upload is not kept here. Upload the file again.' }, { status: 404 })
   const input = await readJson(request, body)

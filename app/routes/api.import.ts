@@ -3,11 +3,19 @@ import { ImportRefusal, scanFile, sniffDelimiter } from '~/.server/csv/read'
 import { mappingFor } from '~/.server/csv/run'
 import { receiveCsv, removeImport, saveImport, sweepImports, uploadFields } from '~/.server/csv/store'
 import { getDb } from '~/.server/db'
+import { methodNotAllowed } from '~/.server/http'
 import { FIELDS_OF } from '~/domain/import-schemas'
 import type { RouteAccess } from '~/domain/permissions'
 import type { Route } from './+types/api.import'
 
-export const handle = { access: { action: 'edit:records' } satisfies RouteAccess }
+// Served only by POST; `methods` tells the route × role test that a GET answers 405.
+export const handle = { access: { loader: 'edit:records', action: 'edit:records' } satisfies RouteAccess, methods: ['POST'] as const }
+
+/** A GET is refused as a method the route does not serve, not as a missing upload. */
+export async function loader({ request }: Route.LoaderArgs) {
+  await requireUser(request, 'edit:records')
+  return methodNotAllowed(request, handle.methods)
+}
 
 /**
  * Takes the CSV (multipart: `kind`, `source`, then `file`), keeps it under an id and answers with
@@ -15,6 +23,7 @@ export const handle = { access: { action: 'edit:records' } satisfies RouteAccess
  */
 export async function action({ request }: Route.ActionArgs) {
   const user = await requireUser(request, 'edit:records')
+  if (request.method !== 'POST') return methodNotAllowed(request, handle.methods)
   sweepImports()
   let upload: Awaited<ReturnType<typeof receiveCsv>> | null = null
   try {
