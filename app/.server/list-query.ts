@@ -35,6 +35,11 @@ export interface ListSpec<F, S extends SelectedFields = SelectedFields> {
    * every matching row. Offered only while the filters leave at most `COSTLY_SORT_ROWS`.
    */
   costlySorts?: readonly string[]
+  /**
+   * Sort keys whose whole order is worked out once and kept, on the same terms as totals: a count per
+   * row over a small table, where counting for every row costs far more than reading the page's rows.
+   */
+  keptOrders?: readonly string[]
   /** Facts about the filters that need the database (whether a word is broad), added before the query is built. */
   refine?: (db: Db, filters: F) => F
   /** A kept total for some filtered views (a reader of a counter table), or null to count. */
@@ -126,6 +131,7 @@ export function listsChanged() {
   writeVersion++
   totals.clear()
   anchorsByList.clear()
+  orders.clear()
 }
 
 /**
@@ -341,6 +347,10 @@ export function runList<F extends Paging, S extends SelectedFields>(db: Db, spec
 
   const limit = totalCapped ? params.limit : Math.max(0, Math.min(params.limit, total - params.offset))
   if (limit === 0) return { rows: [], total, offset: params.offset, limit: params.limit, totalCapped }
+  if (spec.keptOrders?.includes(key)) {
+    const ids = keptOrder(db, spec, listKey, where, key, dir, placeholders).slice(params.offset, params.offset + limit)
+    return { rows: rowsInOrder(db, spec, ids, placeholders), total, offset: params.offset, limit: params.limit, totalCapped }
+  }
   const walk = chooseWalk(params.offset, limit, totalCapped ? null : total, anchors?.rows)
   // The direction SQLite walks in: the list's, or the other way for a walk from the end.
   const walkDir = walk.reversed === (dir === 'asc') ? 'desc' : 'asc'
@@ -405,6 +415,38 @@ export function runList<F extends Paging, S extends SelectedFields>(db: Db, spec
     }
   }
   return { rows, total, offset: params.offset, limit: params.limit, totalCapped }
+}
+
+// Kept orders: every matching id in a costly order, per list, filter and sort, kept on the terms of
+// totals (dropped on any write here, and after 30 s).
+const orders = new Map<string, { ids: number[]; at: number; version: number }>()
+const MAX_ORDERS = 50
+
+/** The ids of every row the filters keep, in the list's order: worked out once, then kept a while. */
+function keptOrder<F>(db: Db, spec: ListSpec<F>, listKey: string, where: SQL | undefined, key: string, dir: 'asc' | 'desc', placeholders: Record<string, unknown>) {
+  const hit = orders.get(listKey)
+  if (hit && hit.version === writeVersion && Date.now() - hit.at < TOTAL_TTL_MS) return hit.ids
+  const join = spec.sortJoins?.[key] ?? ((q: ListSelect) => q)
+  const found = join(db.select({ id: spec.table.id }).from(spec.table).$dynamic())
+    .where(where)
+    .orderBy(...orderBy(spec, key, dir))
+    .prepare()
+    .all(placeholders) as Array<{ id: number }>
+  const ids = found.map((r) => r.id)
+  if (orders.size >= MAX_ORDERS) orders.delete(orders.keys().next().value as string)
+  orders.set(listKey, { ids, at: Date.now(), version: writeVersion })
+  return ids
+}
+
+/** The rows of these ids, in the ids' order. */
+function rowsInOrder<F, S extends SelectedFields>(db: Db, spec: ListSpec<F, S>, ids: number[], placeholders: Record<string, unknown>): Array<ListRow<S>> {
+  if (!ids.length) return []
+  const found = spec.from(db.select(spec.select as SelectedFields).from(spec.table).$dynamic()).where(inArray(spec.table.id, ids)).prepare().all(placeholders) as Array<Record<string, unknown> & { id: number }>
+  const byId = new Map(found.map((r) => [r.id, r]))
+  return ids.flatMap((id) => {
+    const row = byId.get(id)
+    return row ? [row as ListRow<S>] : []
+  })
 }
 
 /** The list's total: kept, counted up to a cap, or counted (and kept a while). */
