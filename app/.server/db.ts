@@ -62,6 +62,25 @@ const globalForDb = globalThis as unknown as { __ductkeeperDb?: Db }
  * What is wrong with the database, in words an operator can act on, when `error` is SQLite saying it
  * cannot be opened or written (read-only, disk full, not there, lock held); null for any other error.
  */
+/**
+ * Runs a write that may be skipped (an activity mark) only if the write lock is free now: while the
+ * background worker holds it for a bulk change, waiting in SQLite's busy loop would stall every request
+ * on this thread. Returns whether it ran.
+ */
+export function writeIfFree(sqlite: Database.Database, fn: () => void): boolean {
+  const wait = sqlite.pragma('busy_timeout', { simple: true }) as number
+  sqlite.pragma('busy_timeout = 0')
+  try {
+    fn()
+    return true
+  } catch (error) {
+    if (((error as { code?: string }).code ?? '').startsWith('SQLITE_BUSY')) return false
+    throw error
+  } finally {
+    sqlite.pragma(`busy_timeout = ${wait}`)
+  }
+}
+
 export function databaseProblem(error: unknown): string | null {
   const code = String((error as { code?: unknown } | null)?.code ?? '')
   if (error instanceof DatabaseUnavailable) return error.problem

@@ -1,5 +1,6 @@
 import { getDb } from './db'
 import { startDigestSchedule } from './email/schedule'
+import { isOffloadWorker, warmOffload } from './offload'
 import { refreshIfNewDay } from './refresh'
 
 const globalJobs = globalThis as unknown as { __ductkeeperJobs?: NodeJS.Timeout }
@@ -7,7 +8,10 @@ const EVERY_MS = 10 * 60_000
 
 /** Starts once per process: keeps the derived fleet columns true to the office's calendar day. */
 export function startBackgroundJobs() {
-  if (globalJobs.__ductkeeperJobs || process.env.DUCTKEEPER_JOBS === 'off') return
+  // The offload worker loads this same build; it runs jobs handed to it, never timers of its own.
+  if (isOffloadWorker || globalJobs.__ductkeeperJobs) return
+  warmOffload()
+  if (process.env.DUCTKEEPER_JOBS === 'off') return
   const tick = async () => {
     try {
       const result = await refreshIfNewDay(getDb())

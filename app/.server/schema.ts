@@ -415,7 +415,11 @@ export const readings = sqliteTable(
     open: integer('open', { mode: 'boolean' }).notNull().default(false),
     takenBy: integer('taken_by').references(() => users.id),
   },
-  (t) => [index('readings_detector_idx').on(t.detectorId, t.takenAt)],
+  (t) => [
+    index('readings_detector_idx').on(t.detectorId, t.takenAt),
+    // A visit's own readings, for its page and record (a scan of every reading without it).
+    index('readings_visit_idx').on(t.visitId, t.detectorId),
+  ],
 )
 
 export const notifications = sqliteTable(

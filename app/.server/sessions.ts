@@ -1,6 +1,6 @@
 import { randomBytes } from 'node:crypto'
 import { createCookie, createSessionStorage } from 'react-router'
-import { getDb, type Db } from './db'
+import { getDb, writeIfFree, type Db } from './db'
 import { env, secureCookies, sessionSecret } from './env'
 
 interface SessionData {
@@ -35,7 +35,8 @@ function readSession(id: string, touch: boolean): SessionData | null {
   if (now - Date.parse(row.lastSeenAt) > env.SESSION_IDLE_MINUTES * 60_000) return null
   // Touch at most once a minute: every request would otherwise write.
   if (touch && now - Date.parse(row.lastSeenAt) > 60_000) {
-    q.prepare('update sessions set last_seen_at = ? where id = ?').run(new Date(now).toISOString(), id)
+    // Skipped while another connection writes; the next request marks it.
+    writeIfFree(q, () => q.prepare('update sessions set last_seen_at = ? where id = ?').run(new Date(now).toISOString(), id))
   }
   return { userId: row.userId }
 }

@@ -2,6 +2,7 @@ import { statfsSync } from 'node:fs'
 import { dirname } from 'node:path'
 import type { RouteAccess } from '~/domain/permissions'
 import { databaseProblem, getDb } from '~/.server/db'
+import { offloadBusy } from '~/.server/offload'
 
 export const handle = { access: { loader: 'public' } satisfies RouteAccess }
 
@@ -25,19 +26,10 @@ function freeBytes(path: string): number | null {
   }
 }
 
-/**
- * Up means writable, not just readable: the probe takes the write lock and rewrites the header's
- * user_version to itself, then rolls back, so nothing is ever changed.
- */
-export function loader() {
-  let sqlite: ReturnType<typeof getDb>['$client']
-  try {
-    sqlite = getDb().$client
-  } catch (error) {
-    return Response.json({ ok: false, error: databaseProblem(error) ?? 'The database could not be opened.' }, { status: 503, headers: noStore })
-  }
+/** Takes the write lock without waiting for it: SQLITE_BUSY at once if another connection holds it. */
+function probeOnce(sqlite: ReturnType<typeof getDb>['$client']) {
   const wait = sqlite.pragma('busy_timeout', { simple: true }) as number
-  sqlite.pragma(`busy_timeout = ${PROBE_WAIT_MS}`)
+  sqlite.pragma('busy_timeout = 0')
   try {
     sqlite.exec('begin immediate')
     try {
@@ -45,6 +37,41 @@ export function loader() {
       sqlite.pragma(`user_version = ${version}`)
     } finally {
       sqlite.exec('rollback')
+    }
+  } finally {
+    sqlite.pragma(`busy_timeout = ${wait}`)
+  }
+}
+
+const isBusy = (error: unknown) => ((error as { code?: string }).code ?? '').startsWith('SQLITE_BUSY')
+
+/**
+ * Up means writable, not just readable: the probe takes the write lock and rewrites the header's
+ * user_version to itself, then rolls back, so nothing is ever changed. While another connection holds
+ * the lock, the probe tries again every few ms between other requests, never blocking the thread in
+ * SQLite's own busy wait; while that connection is the background worker's, at work, it answers up.
+ */
+export async function loader() {
+  let sqlite: ReturnType<typeof getDb>['$client']
+  try {
+    sqlite = getDb().$client
+  } catch (error) {
+    return Response.json({ ok: false, error: databaseProblem(error) ?? 'The database could not be opened.' }, { status: 503, headers: noStore })
+  }
+  const deadline = performance.now() + PROBE_WAIT_MS
+  try {
+    for (;;) {
+      try {
+        probeOnce(sqlite)
+        break
+      } catch (error) {
+        if (!isBusy(error)) throw error
+        // The background worker writing a bulk change holds the lock for as long as that takes: the
+        // database is being written, so it is up. A lock held with no such job running is a stall.
+        if (offloadBusy()) break
+        if (performance.now() > deadline) throw error
+        await new Promise((resolve) => setTimeout(resolve, 5))
+      }
     }
     // The probe writes nothing to the disk, so a full disk is seen from the folder's free space.
     const free = freeBytes(sqlite.name)
@@ -62,7 +89,5 @@ export function loader() {
           ? 'The disk holding the database is full.'
           : 'The database cannot be written.'
     return Response.json({ ok: false, error: reason, code: code || undefined }, { status: 503, headers: noStore })
-  } finally {
-    sqlite.pragma(`busy_timeout = ${wait}`)
   }
 }

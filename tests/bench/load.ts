@@ -52,6 +52,12 @@ const someSite = (q.prepare('select min(id) as id from sites').get() as { id: nu
 q.close()
 
 const server = await startServer(path, derivedDay ? { OFFICE_TODAY: derivedDay } : {})
+// Bounded: a run that has not finished well after its length stops, saying where it stood.
+setTimeout(() => {
+  console.error(`FAILED: the run did not finish in ${seconds + 90} s. Steps done: ${steps.map((x) => `${x.name} ${x.status}`).join(', ') || 'none'}`)
+  console.error(server.output().split('\n').slice(-40).join('\n'))
+  process.exit(1)
+}, (seconds + 90) * 1000).unref()
 const auth = (t: string) => ({ authorization: `Bearer ${t}`, 'content-type': 'application/json' })
 
 // The list reads the console makes most: first pages, sorts, filters, a text search and a deep page.

@@ -78,4 +78,18 @@ describe('POST /api/bulk/:action and /api/bulk/undo', () => {
     expect(((await applied.json()) as { applied: number }).applied).toBe(2)
     expect((q().prepare('select notes from visits where id = ?').get(ids[0]) as { notes: string }).notes).toBe('Gate code changed')
   })
+
+  it('runs the change on its background worker, and the lists\' kept totals follow what it wrote', async () => {
+    // A list's total is kept between requests; the worker writes on its own connection.
+    const total = async () => ((await (await fetch(`${server.url}/api/visits?from=2026-06-16&to=2026-06-16&limit=1`, { headers: { Cookie: cookie.office } })).json()) as { total: number }).total
+    const before = await total()
+    expect(before).toBeGreaterThanOrEqual(ids.length)
+    const preview = (await (await post('/api/bulk/reschedule', { preview: true, ids, mode: 'shift', days: 2 })).json()) as { previewId: string }
+    const applied = (await (await post('/api/bulk/reschedule', { preview: false, previewId: preview.previewId, mode: 'shift', days: 2 })).json()) as { changeId: number; applied: number }
+    expect(applied.applied).toBe(ids.length)
+    expect(await total()).toBe(before - ids.length)
+    expect((await post('/api/bulk/undo', { changeId: applied.changeId })).status).toBe(200)
+    expect(await total()).toBe(before)
+    expect(server.output()).toContain('Background worker ready for bulk changes')
+  })
 })

@@ -16,9 +16,51 @@ describe('/healthz', () => {
   it('answers 503 with a plain reason when the database can be read but not written', async () => {
     createDb(file.path).$client.close()
     holder.__ductkeeperDb = drizzle(new Database(file.path, { readonly: true }))
-    const res = loader()
+    const res = await loader()
     expect(res.status).toBe(503)
     expect(res.headers.get('cache-control')).toBe('no-store')
     expect(await res.json()).toMatchObject({ ok: false, error: 'The database is read-only.' })
+  })
+
+  it("waits for another connection's write lock without holding up this thread, then answers up", async () => {
+    const path = tempDbPath()
+    try {
+      holder.__ductkeeperDb = createDb(path.path)
+      // Another connection (as the background worker applying a bulk change) holds the write lock.
+      const other = new Database(path.path)
+      other.exec('begin immediate')
+      const started = performance.now()
+      const answer = loader()
+      // The thread stays free: a timer set now fires on time, not after SQLite's busy wait.
+      const tick = await new Promise<number>((resolve) => setTimeout(() => resolve(performance.now() - started), 20))
+      expect(tick).toBeLessThan(200)
+      setTimeout(() => other.exec('rollback'), 150)
+      const res = await answer
+      expect(res.status).toBe(200)
+      expect(performance.now() - started).toBeGreaterThanOrEqual(140)
+      other.close()
+    } finally {
+      ;(holder.__ductkeeperDb as { $client: Database.Database }).$client.close()
+      delete holder.__ductkeeperDb
+      path.cleanup()
+    }
+  })
+
+  it('answers 503 when another connection has held the write lock for over a second', async () => {
+    const path = tempDbPath()
+    try {
+      holder.__ductkeeperDb = createDb(path.path)
+      const other = new Database(path.path)
+      other.exec('begin immediate')
+      const res = await loader()
+      other.exec('rollback')
+      other.close()
+      expect(res.status).toBe(503)
+      expect(await res.json()).toMatchObject({ ok: false, code: 'SQLITE_BUSY' })
+    } finally {
+      ;(holder.__ductkeeperDb as { $client: Database.Database }).$client.close()
+      delete holder.__ductkeeperDb
+      path.cleanup()
+    }
   })
 })

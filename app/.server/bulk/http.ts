@@ -1,16 +1,11 @@
 import { z } from 'zod'
 import { can } from '~/domain/permissions'
 import type { CurrentUser } from '../auth'
-import { getDb } from '../db'
 import { readJson } from '../http'
 import { idParam } from '../list-query'
-import { officeToday } from '../today'
-import { BulkError, type BulkContext } from './action'
-import { loadCompanyCalendar } from './calendar'
+import { runJob } from '../offload'
 import { bulkAction } from './registry'
-import { applyBulk, previewBulk, previewed } from './runner'
-import { resolveScope, selectionSchema, type Selection } from './selection'
-import { undoBulk } from './undo'
+import { selectionSchema } from './selection'
 
 const body = selectionSchema
   .extend({
@@ -20,11 +15,6 @@ const body = selectionSchema
   })
   .loose()
 const OWN_KEYS = ['preview', 'previewId', 'versions', 'ids', 'filter', 'list']
-
-const errorResponse = (error: unknown): Response => {
-  if (error instanceof BulkError) return Response.json({ error: error.message }, { status: error.status })
-  throw error
-}
 
 /** POST /api/bulk/:action — preview or apply one bulk action for the signed-in user. */
 export async function bulkRequest(request: Request, name: string, user: CurrentUser): Promise<Response> {
@@ -40,32 +30,15 @@ export async function bulkRequest(request: Request, name: string, user: CurrentU
   if (b.list && !action.through?.includes(b.list)) {
     return Response.json({ error: `${action.title} is not offered on a selection of ${b.list}` }, { status: 400 })
   }
-  const db = getDb()
-  const resolve = (s: Selection) => resolveScope(db, action.entity, s)
-  const ctx: BulkContext = { actor: user, today: officeToday(), calendar: loadCompanyCalendar(db), now: new Date().toISOString() }
-  try {
-    if (b.preview) {
-      const { ids, through } = resolve(b)
-      return Response.json(previewBulk(db, action, ids, parsed.data, ctx, through))
-    }
-    if (b.previewId) {
-      const p = previewed(b.previewId, action, parsed.data, user.id)
-      return Response.json(applyBulk(db, action, parsed.data, p.ids, p.versions, ctx))
-    }
-    if (!b.versions) throw new BulkError(400, 'Preview first, then apply with the previewId, or with the selection and the versions the preview gave')
-    const versions = new Map(Object.entries(b.versions).map(([id, v]) => [Number(id), v]))
-    return Response.json(applyBulk(db, action, parsed.data, resolve(b).ids, versions, ctx))
-  } catch (error) {
-    return errorResponse(error)
-  }
+  // The selection and settings are checked here; resolving, previewing and writing run off this thread.
+  const selection = { ids: b.ids, filter: b.filter, list: b.list, preview: b.preview, previewId: b.previewId, versions: b.versions }
+  const { status, body: answer } = await runJob('bulk', { name, selection, input: parsed.data, user })
+  return Response.json(answer, { status })
 }
 
 /** POST /api/bulk/undo {changeId}. */
 export async function undoRequest(request: Request, user: CurrentUser): Promise<Response> {
   const { changeId } = await readJson(request, z.object({ changeId: idParam }))
-  try {
-    return Response.json(undoBulk(getDb(), changeId, user, officeToday()))
-  } catch (error) {
-    return errorResponse(error)
-  }
+  const { status, body: answer } = await runJob('undo', { changeId, user })
+  return Response.json(answer, { status })
 }

@@ -1,6 +1,6 @@
 import { createHash, randomBytes } from 'node:crypto'
 import { and, desc, eq, gt, isNotNull, isNull, sql } from 'drizzle-orm'
-import { writeTx, type Db } from '../db'
+import { writeIfFree, writeTx, type Db } from '../db'
 import { writeAudit } from '../audit'
 import { apiTokens, users } from '../schema'
 import { perDb } from './statements'
@@ -85,6 +85,6 @@ export function userForToken(db: Db, token: string): number | null {
   const row = s.find.get({ hash: hash(token), now })
   if (!row) return null
   // Record use at most once a minute: a busy integration would otherwise write on every call.
-  if (!row.lastUsedAt || Date.now() - Date.parse(row.lastUsedAt) > 60_000) s.touch.run({ now, id: row.id })
+  if (!row.lastUsedAt || Date.now() - Date.parse(row.lastUsedAt) > 60_000) writeIfFree(db.$client, () => s.touch.run({ now, id: row.id }))
   return row.userId
 }
