@@ -11,6 +11,7 @@ import { StateBadge } from '~/components/state-badge'
 import { taskWords } from '~/components/visit/detector-entry-form'
 import { addDays } from '~/domain/dates'
 import { can, type RouteAccess } from '~/domain/permissions'
+import { Day } from '~/components/day'
 import { formatDay } from '~/utils/format'
 import type { Route } from './+types/_app.my-day'
 
@@ -55,7 +56,7 @@ export default function MyDay({ loaderData }: Route.ComponentProps) {
         <div>
           <h1 className="text-2xl font-semibold">{own ? 'My day' : `${technicianName}’s day`}</h1>
           <p className="text-ink-soft">
-            {formatDay(today)} <span className="font-mono text-sm">{today}</span>
+            <Day iso={today} />
           </p>
         </div>
         {technicians.length > 0 && (
@@ -105,7 +106,7 @@ function VisitCard({ v, showDay = false }: { v: Visit; showDay?: boolean }) {
   const address = `${v.site.street}, ${v.site.city} ${v.site.postalCode}`
   const mc = v.monitoring
   return (
-    <article aria-label={`${v.site.name}, ${v.scheduledOn}`} className="rounded-md border border-line bg-panel">
+    <article aria-label={`${v.site.name}, ${formatDay(v.scheduledOn)}`} className="rounded-md border border-line bg-panel">
       <Link to={`/visits/${v.id}`} className="block rounded-t-md px-4 pt-3 pb-2 hover:bg-sunken">
         <div className="flex flex-wrap items-center justify-between gap-2">
           <span className="text-lg font-semibold text-accent underline decoration-accent/40 underline-offset-2">{v.site.name}</span>
@@ -114,7 +115,7 @@ function VisitCard({ v, showDay = false }: { v: Visit; showDay?: boolean }) {
         <div className="text-ink-soft">
           {showDay && (
             <>
-              {formatDay(v.scheduledOn)} <span className="font-mono text-sm">{v.scheduledOn}</span> ·{' '}
+              <Day iso={v.scheduledOn} /> ·{' '}
             </>
           )}
           {v.windowFrom ? (

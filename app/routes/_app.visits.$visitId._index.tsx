@@ -16,7 +16,7 @@ import { EmailAllClearForm, EmailNoticeForm, VisitEmailLine } from '~/components
 import { OfficeActions } from '~/components/visit/office-actions'
 import { siteClock } from '~/components/visit/site-time'
 import { can, type RouteAccess } from '~/domain/permissions'
-import { formatDay } from '~/utils/format'
+import { Day } from '~/components/day'
 import type { Route } from './+types/_app.visits.$visitId._index'
 
 export const handle = { access: { loader: 'view:fleet' } satisfies RouteAccess }
@@ -89,7 +89,7 @@ export default function Visit({ loaderData }: Route.ComponentProps) {
         <p className="mt-1 flex flex-wrap items-center gap-x-3 gap-y-1 text-ink-soft">
           <StateBadge value={v.status} />
           <span>
-            {formatDay(v.scheduledOn)} <span className="font-mono text-sm">{v.scheduledOn}</span>
+            <Day iso={v.scheduledOn} />
             {v.windowFrom && (
               <>
                 , <span className="font-mono">{v.windowFrom}</span>–<span className="font-mono">{v.windowUntil ?? '…'}</span>

@@ -110,6 +110,16 @@ describe('visit page and my day', () => {
     const mine = page.todays.find((v) => v.id === visitId)
     expect(mine).toMatchObject({ detectors: 3, windowFrom: '07:30' })
     expect(Object.fromEntries(mine!.tasks.map((t) => [t.task, t.n]))).toEqual({ visual: 3, functional: 1, cleaning: 1 })
+    // Each day is written once, in words, with the ISO date kept for machines only.
+    const html = await (await fetch(`${running.server.url}/my-day`, { headers: { Cookie: cookies.technician } })).text()
+    // What shows: the markup without its scripts (the page's data rides in them) and without tags.
+    const shown = (page: string) => page.replace(/<script[\s\S]*?<\/script>/g, ' ').replace(/<[^>]+>/g, ' ')
+    const text = shown(html)
+    expect(html).toContain(`<time dateTime="${TEST_TODAY}">Mon, 15 Jun 2026</time>`)
+    expect(text).not.toMatch(/\b\d{4}-\d{2}-\d{2}\b/)
+    const visitHtml = await (await fetch(`${running.server.url}/visits/${visitId}`, { headers: { Cookie: cookies.technician } })).text()
+    expect(visitHtml).toContain(`<time dateTime="${TEST_TODAY}">Mon, 15 Jun 2026</time>`)
+    expect(shown(visitHtml)).not.toContain(TEST_TODAY)
     // A technician cannot look at someone else's day by changing the address.
     const asked = await myDay('technician', `technician=${otherTechId}`)
     expect(asked.technicianId).toBe(techId)
