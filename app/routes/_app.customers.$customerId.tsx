@@ -52,8 +52,10 @@ export default function Customer({ loaderData }: Route.ComponentProps) {
           <h1 className="text-2xl font-semibold break-words">{c.name}</h1>
           <p className="text-sm text-ink-faint">Figures as of {formatDay(today)}</p>
         </div>
-        <p className="mt-1 flex flex-wrap items-center gap-x-3 gap-y-0.5 text-sm text-ink-soft">
-          <span>{c.contactName ?? 'No contact on record'}</span>
+        {/* On a phone each detail has its own 44 px line, so the two links stack evenly instead of wrapping
+            with a gap; from sm up they sit on one line. */}
+        <p className="mt-1 flex flex-col items-start text-sm text-ink-soft sm:flex-row sm:flex-wrap sm:items-center sm:gap-x-3">
+          <span className="flex min-h-11 items-center sm:min-h-0">{c.contactName ?? 'No contact on record'}</span>
           {c.contactPhone && (
             <a href={`tel:${c.contactPhone}`} className={`${TAP} font-mono text-accent hover:underline`}>
               {c.contactPhone}
