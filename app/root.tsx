@@ -1,6 +1,7 @@
-import { isRouteErrorResponse, Links, Meta, Outlet, Scripts, ScrollRestoration } from 'react-router'
+import { Links, Meta, Outlet, Scripts, ScrollRestoration } from 'react-router'
 import type { Route } from './+types/root'
 import './app.css'
+import { ErrorMessage } from '~/components/error-message'
 import { apiHeaders } from '~/.server/http'
 import { databaseUnavailable } from '~/.server/unavailable'
 
@@ -32,21 +33,10 @@ export default function App() {
 }
 
 export function ErrorBoundary({ error }: Route.ErrorBoundaryProps) {
-  let title = 'Something went wrong'
-  let detail = 'The page could not be shown. Try again; if it keeps failing, tell an administrator.'
-  if (isRouteErrorResponse(error)) {
-    title = error.status === 404 ? 'Not found' : error.status === 403 ? 'Not allowed' : `Error ${error.status}`
-    detail = typeof error.data === 'string' && error.data ? error.data : error.statusText || detail
-  } else if (import.meta.env.DEV && error instanceof Error) {
-    detail = error.message
-  }
+  // Outside the signed-in console (sign-in, or the console itself failing): no menu to show.
   return (
     <main className="mx-auto max-w-xl p-10">
-      <h1 className="text-xl font-semibold">{title}</h1>
-      <p className="mt-2 text-ink-soft">{detail}</p>
-      <a className="mt-6 inline-block text-accent underline" href="/">
-        Back to the overview
-      </a>
+      <ErrorMessage error={error} back={{ to: '/', label: 'Back to the overview' }} />
     </main>
   )
 }

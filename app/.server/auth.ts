@@ -1,7 +1,7 @@
 import { data, redirect } from 'react-router'
 import { Authenticator } from 'remix-auth'
 import { OAuth2Strategy } from 'remix-auth-oauth2'
-import { allows, isRole, type Access, type Role } from '~/domain/permissions'
+import { allows, isRole, refusal, type Access, type Role } from '~/domain/permissions'
 import { safeReturnTo } from '~/utils/return-to'
 import { getDb } from './db'
 import { env, secureCookies } from './env'
@@ -207,7 +207,7 @@ export async function authorize(request: Request, access: Access): Promise<Curre
     throw redirect(`/sign-in?returnTo=${encodeURIComponent(safeReturnTo(url.pathname + url.search))}`)
   }
   if (foreignWrite()) refuse(request, 403, 'Refused: this change did not come from a Ductkeeper page.')
-  if (!allows(user.role, access)) refuse(request, 403, 'Your role does not allow this.')
+  if (!allows(user.role, access)) refuse(request, 403, access === 'signed-in' ? 'Your role does not allow this.' : refusal(user.role, access))
   return user
 }
 

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { allows, can, capabilitiesOf, isRole, PERMISSIONS, ROLE_KEYS, type Capability, type Role } from './permissions'
+import { allows, can, capabilitiesOf, CAPABILITY_WORDS, isRole, PERMISSIONS, refusal, ROLE_KEYS, type Capability, type Role } from './permissions'
 
 // The permission table written out by hand, one row per capability, so a change to permissions.ts
 // has to be made twice, on purpose. Columns: admin, lead, office, technician, manager.
@@ -54,5 +54,11 @@ describe('permission table', () => {
     expect(isRole('Office')).toBe(false)
     expect(isRole('owner')).toBe(false)
     expect(isRole('')).toBe(false)
+  })
+
+  it('says in one plain sentence what a role cannot do', () => {
+    expect(refusal('office', 'view:audit')).toBe('The Office role cannot read the audit log.')
+    expect(refusal('technician', 'manage:users')).toBe('The Technician role cannot invite people, change their roles or deactivate them.')
+    for (const c of Object.keys(PERMISSIONS) as Capability[]) expect(CAPABILITY_WORDS[c]).toMatch(/^[a-z][^.]+[a-z]$/)
   })
 })

@@ -69,3 +69,24 @@ export function allows(role: Role | null, access: Access): boolean {
   if (role === null) return false
   return access === 'signed-in' || can(role, access)
 }
+
+/** Each capability as what a person does with it, to finish "The Office role cannot …". */
+export const CAPABILITY_WORDS: Record<Capability, string> = {
+  'view:fleet': 'read the customer, site and detector records',
+  'record:work': 'record work on visits',
+  'record:any-visit': 'record work on visits assigned to someone else',
+  'edit:records': 'change customer, site, unit or detector records',
+  'schedule:visits': 'book, move or assign visits',
+  'triage:fleet': 'acknowledge or assign detectors from the triage queue',
+  'run:bulk': 'make bulk changes across the fleet',
+  'view:audit': 'read the audit log',
+  'receive:digest': 'receive the weekly digest or change its settings',
+  'manage:users': 'invite people, change their roles or deactivate them',
+  'manage:tokens': 'create or revoke API tokens',
+  'manage:settings': 'change the company calendar, the outbox or other settings',
+}
+
+/** Why a role is refused a capability, in one plain sentence. */
+export function refusal(role: Role, capability: Capability): string {
+  return `The ${ROLE_LABELS[role]} role cannot ${CAPABILITY_WORDS[capability]}.`
+}

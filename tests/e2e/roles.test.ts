@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest'
 import { DEMO_EMAIL, useSeededServer } from '#tests/setup/fixture'
-import { can, ROLE_KEYS } from '~/domain/permissions'
+import { can, ROLE_KEYS, ROLE_LABELS } from '~/domain/permissions'
 import { SECTIONS } from '~/utils/sections'
 import { signInAs } from '#tests/setup/sign-in-browser'
 
@@ -16,10 +16,18 @@ describe('each role in Chromium', () => {
       const visible = await nav.getByRole('link', { name: s.label, exact: true }).count()
       expect(visible, `${role} ${s.label}`).toBe(can(role, s.capability) ? 1 : 0)
     }
-    // A page outside the role answers "not allowed" rather than showing anything.
+    // A page outside the role answers "not allowed" rather than showing anything, inside the console:
+    // the menu stays, the sentence says what the role cannot do, and a link leads back home.
     const usersPage = await page.goto(`${t.server.url}/admin/users`)
     expect(usersPage?.status()).toBe(can(role, 'manage:users') ? 200 : 403)
-    if (!can(role, 'manage:users')) await expect(page.getByRole('heading', { name: 'Not allowed' }).isVisible()).resolves.toBe(true)
+    if (!can(role, 'manage:users')) {
+      await expect(page.getByRole('heading', { name: 'Not allowed' }).isVisible()).resolves.toBe(true)
+      await expect(nav.isVisible()).resolves.toBe(true)
+      await page.getByText(`The ${ROLE_LABELS[role]} role cannot invite people, change their roles or deactivate them.`).waitFor()
+      const home = can(role, 'triage:fleet') || can(role, 'schedule:visits') ? 'Triage' : can(role, 'record:work') ? 'My day' : 'Overview'
+      await page.getByRole('link', { name: `Back to ${home}` }).click()
+      await page.waitForURL((u) => u.pathname === SECTIONS.find((s) => s.label === home)!.to)
+    }
 
     await page.goto(t.server.url)
     await page.getByRole('button', { name: 'Sign out' }).click()
