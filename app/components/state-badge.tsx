@@ -35,9 +35,15 @@ const LABELS: Record<string, { tone: Tone; label: string }> = {
   cancelled: { tone: 'idle', label: 'Cancelled' },
 }
 
-export function StateBadge({ value, label }: { value: string; label?: string }) {
-  // A word this list does not know still reads in sentence case, like every other badge and filter.
-  const known = LABELS[value] ?? { tone: 'idle' as Tone, label: value.charAt(0).toUpperCase() + value.slice(1).replace(/-/g, ' ') }
+// A word this list does not know still reads in sentence case, like every other badge and filter.
+const lookUp = (value: string) => LABELS[value] ?? { tone: 'idle' as Tone, label: value.charAt(0).toUpperCase() + value.slice(1).replace(/-/g, ' ') }
+
+/** The words a badge shows for a value, for text that names it beside other words ("Loop: Pass"). */
+export const stateLabel = (value: string) => lookUp(value).label
+
+/** A value's badge; `prefix` names what it judges ("Loop") ahead of the house word for the value. */
+export function StateBadge({ value, label, prefix }: { value: string; label?: string; prefix?: string }) {
+  const known = lookUp(value)
   const tone = TONES[known.tone]
   return (
     <span
@@ -46,7 +52,7 @@ export function StateBadge({ value, label }: { value: string; label?: string }) 
       <span aria-hidden="true" className="font-mono text-[0.7rem] leading-none">
         {tone.glyph}
       </span>
-      {label ?? known.label}
+      {label ?? (prefix ? `${prefix}: ${known.label}` : known.label)}
     </span>
   )
 }

@@ -79,7 +79,7 @@ export default function Device({ loaderData }: Route.ComponentProps) {
           <div role="group" aria-label="State" data-first="state" className="flex flex-wrap items-center gap-2">
             <StateBadge value={d.state} />
             <StateBadge value={r.stored.dueStatus} />
-            <StateBadge value={r.loop.verdict} label={`Loop: ${r.loop.verdict}`} />
+            <StateBadge value={r.loop.verdict} prefix="Loop" />
           </div>
           <span className="text-sm text-ink-soft">
             Risk {r.risk.score}

@@ -60,7 +60,8 @@ describe('device page', () => {
       expect(status).toBe(200)
       const text = html.replaceAll('<!-- -->', '')
       expect(text, `detector ${d.id}`).toContain(`Risk ${d.risk}`)
-      expect(text).toContain(`Loop: ${d.loop}`)
+      // The verdict in the house's Title Case words, as every other badge reads.
+      expect(text).toContain(`Loop: ${({ pass: 'Pass', fail: 'Fail', incomplete: 'Incomplete' } as Record<string, string>)[d.loop]}`)
       // Each task in words with its date: due (before or inside the window) or overdue past it.
       for (const day of [d.visual, d.functional, d.sensitivity, d.cleaning]) expect(text).toMatch(new RegExp(`(Due|Overdue: due) ${day}`))
       expect(text).toMatch(new RegExp(`(Due|Overdue: due) ${d.nextDue}`))
