@@ -12,7 +12,10 @@ const names: Named = {
     12: { tag: 'SD-103', siteId: 5, siteName: 'Harbor Lantern Eastlake' },
   },
   sites: { 5: { name: 'Harbor Lantern Eastlake' } },
-  visits: { 40: { scheduledOn: '2026-06-18', kind: 'test', siteId: 5, siteName: 'Harbor Lantern Eastlake' } },
+  visits: {
+    40: { scheduledOn: '2026-06-18', kind: 'test', siteId: 5, siteName: 'Harbor Lantern Eastlake' },
+    41: { scheduledOn: '2026-06-19', kind: 'inspection', siteId: 5, siteName: 'Harbor Lantern Eastlake' },
+  },
   customers: { 7: { name: 'Copper Kettle Kitchens' } },
   tokens: { 9: { name: 'Nightly export', prefix: 'ab12cd34' } },
   bulk: {
@@ -46,6 +49,17 @@ group('audit sentences', () => {
     expect(sentenceText(item.parts)).toBe('Priya Castellano acknowledged 3 detectors at Harbor Lantern Eastlake')
     expect(item.parts).toContainEqual({ text: 'Harbor Lantern Eastlake', href: '/sites/5' })
     expect(item.records.map(sentenceText)).toEqual(['detector SD-101 at Harbor Lantern Eastlake', 'detector SD-102 at Harbor Lantern Eastlake', 'detector SD-103 at Harbor Lantern Eastlake'])
+  })
+
+  it("tells a line of several grouped entries without any one entry's details", () => {
+    const at = '2026-06-15T14:00:00.000Z'
+    const book = (id: string, detectors: number, technicianId: number) =>
+      row({ action: 'visit.book', entity: 'visit', entityId: id, at, after: { siteId: 5, kind: 'test', technicianId, detectors: Array.from({ length: detectors }, (_, i) => ({ detectorId: 10 + i, tasks: ['visual'] })) } })
+    const groups = groupEntries([book('41', 1, 2), book('40', 2, 2)])
+    expect(groups).toHaveLength(1)
+    expect(say(groups[0])).toBe('Priya Castellano booked 2 visits at Harbor Lantern Eastlake')
+    const done = (id: string, result: string) => row({ action: 'visit.complete', entity: 'visit', entityId: id, at, after: { status: 'done', detectors: [{ detectorId: 10, result }] } })
+    expect(say(groupEntries([done('41', 'fail'), done('40', 'pass')])[0])).toBe('Priya Castellano completed 2 visits at Harbor Lantern Eastlake')
   })
 
   it('keeps entries apart when the person, the action or the moment differs', () => {

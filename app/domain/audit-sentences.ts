@@ -363,6 +363,9 @@ function resultTally(list: unknown): string | null {
 type Sentence = (c: Ctx) => Part[]
 
 const onRecords = (c: Ctx) => c.n.records(c.head.entity, c.ids)
+// Entries grouped into one line share their action, not their details: a tally, a technician or a
+// date is told only when the line stands for one entry.
+const one = (c: Ctx) => c.rows.length === 1
 
 const SENTENCES: Record<string, Sentence> = {
   'user.invite': (c) => [c.actor, ' invited ', ...onRecords(c), ...(text(c.after.email) ? [` (${c.after.email})`] : []), ' as ', role(c.after.role)],
@@ -375,26 +378,26 @@ const SENTENCES: Record<string, Sentence> = {
   'triage.acknowledge': (c) => [c.actor, ' acknowledged ', ...onRecords(c), ...(text(c.after.note) ? [` with the note ${quoted(String(c.after.note))}`] : [])],
   'triage.assign': (c) => [c.actor, ' assigned ', ...onRecords(c), ' to ', c.n.person(numeric(c.after.assignedTo))],
   'visit.book': (c) => {
-    const n = Array.isArray(c.after.detectors) ? c.after.detectors.length : null
-    return [c.actor, ' booked ', ...onRecords(c), ...(n ? [` for ${plural(n, 'detector')}`] : []), ...(numeric(c.after.technicianId) ? [' with ', c.n.person(numeric(c.after.technicianId))] : [])]
+    const n = one(c) && Array.isArray(c.after.detectors) ? c.after.detectors.length : null
+    return [c.actor, ' booked ', ...onRecords(c), ...(n ? [` for ${plural(n, 'detector')}`] : []), ...(one(c) && numeric(c.after.technicianId) ? [' with ', c.n.person(numeric(c.after.technicianId))] : [])]
   },
   'visit.notify': (c) => [c.actor, ' logged the notice to the monitoring company for ', ...onRecords(c)],
   'visit.start': (c) => [c.actor, ' started ', ...onRecords(c)],
   'visit.record': (c) => {
-    const tally = resultTally(c.after.recorded)
-    return [c.actor, ' recorded work', ...(Array.isArray(c.after.recorded) ? [` on ${plural(c.after.recorded.length, 'detector')}`] : []), ' for ', ...onRecords(c), ...(tally ? [` (${tally})`] : [])]
+    const tally = one(c) ? resultTally(c.after.recorded) : null
+    return [c.actor, ' recorded work', ...(one(c) && Array.isArray(c.after.recorded) ? [` on ${plural(c.after.recorded.length, 'detector')}`] : []), ' for ', ...onRecords(c), ...(tally ? [` (${tally})`] : [])]
   },
   'visit.complete': (c) => {
-    const tally = resultTally(c.after.detectors)
+    const tally = one(c) ? resultTally(c.after.detectors) : null
     return [c.actor, ' completed ', ...onRecords(c), ...(tally ? [`: ${tally}`] : [])]
   },
-  'visit.all-clear': (c) => [c.actor, ' logged the all-clear for ', ...onRecords(c), ...(text(c.after.clearedWith) ? [`, confirmed with ${c.after.clearedWith}`] : [])],
+  'visit.all-clear': (c) => [c.actor, ' logged the all-clear for ', ...onRecords(c), ...(one(c) && text(c.after.clearedWith) ? [`, confirmed with ${c.after.clearedWith}`] : [])],
   'visit.email-notice': (c) => [c.actor, ' e-mailed the notice of work to the monitoring company for ', ...onRecords(c)],
   'visit.email-all-clear': (c) => [c.actor, ' e-mailed the all-clear to the monitoring company for ', ...onRecords(c)],
   'visit.retry-email': (c) => [c.actor, ' sent a failed e-mail to the monitoring company again for ', ...onRecords(c)],
   'outbox.retry': (c) => [c.actor, ' sent failed e-mail message ', String(c.ids[0] ?? ''), ' again'],
   'visit.cancel': (c) => [c.actor, ' cancelled ', ...onRecords(c), ...(text(c.after.reason) ? [`: ${quoted(String(c.after.reason))}`] : [])],
-  'visit.reschedule': (c) => [c.actor, ' moved ', ...c.n.record('visit', c.ids[0]), ...(dayOf(c.before.scheduledOn) && dayOf(c.after.scheduledOn) ? [` from ${dayOf(c.before.scheduledOn)} to ${dayOf(c.after.scheduledOn)}`] : [])],
+  'visit.reschedule': (c) => [c.actor, ' moved ', ...(one(c) ? c.n.record('visit', c.ids[0]) : onRecords(c)), ...(one(c) && dayOf(c.before.scheduledOn) && dayOf(c.after.scheduledOn) ? [` from ${dayOf(c.before.scheduledOn)} to ${dayOf(c.after.scheduledOn)}`] : [])],
   'visit.assign': (c) => (numeric(c.after.technicianId) ? [c.actor, ' assigned ', ...onRecords(c), ' to ', c.n.person(numeric(c.after.technicianId))] : [c.actor, ' took the technician off ', ...onRecords(c)]),
   'visit.edit': (c) => [c.actor, ' changed the ', fieldList(c.changes) || 'details', ' of ', ...onRecords(c)],
   'attachment.add': (c) => {

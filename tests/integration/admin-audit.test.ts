@@ -187,8 +187,14 @@ describe('the audit log in sentences, and the admin pages that write it', () => 
 
     const now = new Date()
     const today = new Intl.DateTimeFormat('en-CA', { timeZone: 'America/Chicago' }).format(now)
-    expect((await audit(`?from=${today}&to=${today}`)).items.length).toBe(plain.length)
-    expect((await audit(`?to=${addDays(today, -2)}`)).items).toEqual([])
+    // The seed's history lies before its day (TEST_TODAY); what the app wrote above, today.
+    const everything = await audit()
+    const written = everything.items.filter((i) => i.at > `${TEST_TODAY}T23:59:59.999Z`)
+    expect(written.length).toBeGreaterThan(0)
+    expect((await audit(`?from=${today}&to=${today}`)).items.map((i) => i.id)).toEqual(written.map((i) => i.id))
+    const older = await audit(`?to=${addDays(today, -2)}`)
+    expect(older.items.length).toBeGreaterThan(0)
+    expect(older.items.every((i) => i.at <= `${TEST_TODAY}T23:59:59.999Z`)).toBe(true)
     // Nonsense in the query falls back to no filter rather than an error.
     expect(sentences(await audit('?kind=nope&actor=abc&from=2026-13-40'))).toEqual(plain)
 
@@ -249,5 +255,59 @@ describe('the audit log in sentences, and the admin pages that write it', () => 
     const entry = q().prepare("select before, after from audit_log where action = 'user.update' and entity_id = ? order by id desc").get(tech) as { before: string; after: string }
     expect(JSON.parse(entry.before)).toEqual(Object.fromEntries(changed.map((k) => [k, prior[k]])))
     expect(JSON.parse(entry.after)).toEqual(Object.fromEntries(changed.map((k) => [k, wanted[k as keyof typeof wanted]])))
+  })
+})
+
+// A fresh demo's log holds the history the seed made (visits booked, notified, started, completed,
+// cleared): every kind of entry reads as a sentence naming real people and places.
+describe("a fresh demo's audit log", () => {
+  let server: Awaited<ReturnType<typeof startServer>>
+  let data: ReturnType<typeof seededDb>
+  let cookie = ''
+  beforeAll(async () => {
+    data = seededDb('demo')
+    server = await startServer(data.path)
+    cookie = (await sessionCookieFor(data.db, userIdByEmail(data.db, 'admin@ductkeeper.test'))).cookie
+  })
+  afterAll(async () => {
+    await server?.stop()
+    data?.cleanup()
+  })
+
+  it('reads each kind of entry the seed wrote as a sentence with names, never raw JSON or bare ids', async () => {
+    const q = data.db.$client
+    const kinds = q.prepare('select action, max(id) as id from audit_log group by action order by action').all() as Array<{ action: string; id: number }>
+    // What the history implies for a visit, from booking to all-clear.
+    expect(kinds.map((k) => k.action)).toEqual(['visit.all-clear', 'visit.book', 'visit.complete', 'visit.notify', 'visit.start'])
+    const expected: Record<string, RegExp> = {
+      // Visits booked in the same few seconds read as one line, without any one visit's details.
+      'visit.book': / booked (the (test|inspection) visit on \w{3}, \d{1,2} \w{3} \d{4} at .+ for \d+ detectors?( with .+)?|\d+ visits at .+)$/,
+      'visit.notify': / logged the notice to the monitoring company for (the (test|inspection) visit on .+ at .+|\d+ visits at .+)$/,
+      'visit.start': / started (the (test|inspection) visit on .+ at .+|\d+ visits at .+)$/,
+      'visit.complete': / completed (the (test|inspection) visit on .+ at .+: (\d+ (passed|failed)(, )?)+|\d+ visits at .+)$/,
+      'visit.all-clear': / logged the all-clear for (the .+, confirmed with .+|\d+ visits at .+)$/,
+    }
+    for (const k of kinds) {
+      const entry = q.prepare('select actor_id as actorId, entity_id as entityId from audit_log where id = ?').get(k.id) as { actorId: number; entityId: string }
+      const actor = (q.prepare('select name from users where id = ?').get(entry.actorId) as { name: string }).name
+      const site = (q.prepare('select s.name from visits v join sites s on s.id = v.site_id where v.id = ?').get(Number(entry.entityId)) as { name: string }).name
+      // The page that starts with this entry.
+      const params = new URLSearchParams({ before: String(k.id + 1), _routes: 'routes/_app.admin.audit' })
+      const res = await fetch(`${server.url}/admin/audit.data?${params}`, { headers: { Cookie: cookie } })
+      expect(res.status).toBe(200)
+      const decoded = await decodeTurboStream(res.body!, globalThis)
+      const page = JSON.parse(JSON.stringify((decoded.value as Record<string, { data: Page }>)['routes/_app.admin.audit'].data)) as Page
+      const item = page.items[0]
+      const sentence = sentenceText(item.parts)
+      expect(item.kind, k.action).toBe('visits')
+      expect(sentence.startsWith(`${actor} `), sentence).toBe(true)
+      expect(sentence, k.action).toMatch(expected[k.action])
+      if (!/ \d+ visits at \d+ sites/.test(sentence)) expect(sentence).toContain(site)
+      expect(sentence).not.toMatch(/[{}"]|\b(detector|user|visit|site|person|customer) #?\d+\b|\bvisit\.[a-z-]+/i)
+      for (const c of item.changes) expect(`${c.field} ${c.before} ${c.after}`).not.toMatch(/[{}[\]]|"/)
+    }
+    const html = await (await fetch(`${server.url}/admin/audit`, { headers: { Cookie: cookie } })).text()
+    expect(html).not.toContain('Nothing recorded yet')
+    expect(html).not.toContain('{&quot;')
   })
 })

@@ -23,6 +23,7 @@ import {
   UNIT_LOCATIONS,
   UNIT_MIX,
 } from './names'
+import { writeHistoryAudit } from './audit'
 import { withBulkLoad } from './bulk'
 import type { Awg } from '~/domain/conductors'
 import { correctTerminals, expectedReadings, type Arrangement, type Reading, type Readings } from '~/domain/loop'
@@ -31,11 +32,12 @@ import { detectorRequirements } from '~/domain/requirements'
 export type Scale = 'small' | 'demo' | 'stress'
 
 // historyYears: how long ago the contractor took the program over; its records (visits, results,
-// notices) begin then, and every detector's record is worked out from them.
-export const SCALES: Record<Scale, { detectors: number; eventsPerDetector: number; customers: number; historyYears: number }> = {
-  small: { detectors: 200, eventsPerDetector: 10, customers: 5, historyYears: 5 },
-  demo: { detectors: 10_500, eventsPerDetector: 26, customers: 40, historyYears: 5 },
-  stress: { detectors: 101_000, eventsPerDetector: 21, customers: 320, historyYears: 3 },
+// notices) begin then, and every detector's record is worked out from them. auditDays: how far back
+// the audit log holds that history's entries (recent weeks are what people read it for).
+export const SCALES: Record<Scale, { detectors: number; eventsPerDetector: number; customers: number; historyYears: number; auditDays: number }> = {
+  small: { detectors: 200, eventsPerDetector: 10, customers: 5, historyYears: 5, auditDays: 14 },
+  demo: { detectors: 10_500, eventsPerDetector: 26, customers: 40, historyYears: 5, auditDays: 28 },
+  stress: { detectors: 101_000, eventsPerDetector: 21, customers: 320, historyYears: 3, auditDays: 7 },
 }
 
 /** mulberry32: a small, fast, seeded generator, so the same scale always yields the same data. */
@@ -72,6 +74,7 @@ export interface SeedCounts {
   visits: number
   results: number
   notifications: number
+  audit: number
 }
 
 const EOL_BY_MONITOR = [15_000, 4_700, 3_900, 10_000]
@@ -84,7 +87,7 @@ const DELAY_POLICIES = [0, 0, 180, 300]
 export function seed(sqlite: Database.Database, scale: Scale, today: IsoDate): SeedCounts {
   const cfg = SCALES[scale]
   const r = rng(0xd5c7 + cfg.detectors)
-  const counts: SeedCounts = { customers: 0, sites: 0, units: 0, detectors: 0, events: 0, readings: 0, visits: 0, results: 0, notifications: 0 }
+  const counts: SeedCounts = { customers: 0, sites: 0, units: 0, detectors: 0, events: 0, readings: 0, visits: 0, results: 0, notifications: 0, audit: 0 }
   const now = `${today}T12:00:00.000Z`
 
   const ins = (table: string, cols: string[]) =>
@@ -106,7 +109,7 @@ export function seed(sqlite: Database.Database, scale: Scale, today: IsoDate): S
   const insResult = ins('task_results', ['detector_id', 'visit_id', 'task', 'done_on', 'outcome', 'value', 'recorded_by', 'created_at'])
   const insHoliday = ins('observed_holidays', ['region', 'name'])
   const insClosed = ins('closed_days', ['day', 'label'])
-  const insNotice = ins('notifications', ['site_id', 'visit_id', 'monitoring_company_id', 'notified_at', 'notified_by', 'method', 'spoke_with', 'confirmation', 'in_test_from', 'in_test_until', 'site_contact_told', 'cleared_at'])
+  const insNotice = ins('notifications', ['site_id', 'visit_id', 'monitoring_company_id', 'notified_at', 'notified_by', 'method', 'spoke_with', 'confirmation', 'in_test_from', 'in_test_until', 'site_contact_told', 'cleared_at', 'cleared_with', 'cleared_by'])
 
   // Each site's work goes to a technician who covers its region.
   const techsByRegion = new Map<string, number[]>()
@@ -318,7 +321,7 @@ export function seed(sqlite: Database.Database, scale: Scale, today: IsoDate): S
     counts.visits++
     const spoke = r.pick(['Operator 14', 'Dispatcher Ruiz', 'Desk K. Amani', 'Operator 7'])
     const confirmation = `CF${String(v.id * 91 + 10000).slice(-5)}`
-    insNotice.run(v.site, v.id, v.monitor, `${v.on}T14:05:00.000Z`, v.tech, m.method, spoke, confirmation, `${v.on}T14:10:00.000Z`, `${v.on}T18:10:00.000Z`, 'Manager on duty', `${v.on}T18:02:00.000Z`)
+    insNotice.run(v.site, v.id, v.monitor, `${v.on}T14:05:00.000Z`, v.tech, m.method, spoke, confirmation, `${v.on}T14:10:00.000Z`, `${v.on}T18:10:00.000Z`, 'Manager on duty', `${v.on}T18:02:00.000Z`, spoke, v.tech)
     counts.notifications++
     // The notice's own entry in the site's timeline: one per logged notice, so counts and timeline agree.
     insEvent.run(v.site, null, `${v.on}T14:05:00.000Z`, 'notice', `Monitoring company told (${spoke}, confirmation ${confirmation}); system in test`, v.tech)
@@ -523,6 +526,7 @@ export function seed(sqlite: Database.Database, scale: Scale, today: IsoDate): S
 
   withBulkLoad(sqlite, ['events', 'readings', 'visits', 'visit_detectors', 'task_results', 'notifications'], writeFleet)
   sqlite.transaction(writeObservedHolidays)()
+  counts.audit = writeHistoryAudit(sqlite, today, cfg.auditDays)
   // Every detector's facts were derived for `today` above: the refresh starts from there.
   sqlite.prepare("insert into app_state (key, value) values ('derived-day', ?) on conflict(key) do update set value = excluded.value").run(today)
   return counts
