@@ -174,7 +174,7 @@ try {
   if (!skip.has('work')) {
     try {
       for (const w of await benchWork(path, join(dir, 'work.db'), today, { visits: 10_000, cycleDetectors: 5_000, runs: 3 })) {
-        record(w.name, w.ms, null)
+        record(w.name, w.ms, w.floor ?? null)
         if (w.note) console.log(`${w.name}: ${w.note}`)
       }
     } catch (e) {

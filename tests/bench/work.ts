@@ -1,6 +1,7 @@
 // Fleet-wide work, timed in this process on a copy of the database (it writes): a bulk reschedule of
 // many visits (selection, preview, apply, undo), the delay audit over every detector, a cleaning
 // cycle planned for thousands of detectors, and the weekly digest for every recipient.
+import type Database from 'better-sqlite3'
 import { copyFileSync, rmSync } from 'node:fs'
 import { loadCompanyCalendar } from '~/.server/bulk/calendar'
 import { bulkAction } from '~/.server/bulk/registry'
@@ -16,6 +17,26 @@ export interface Timed {
   name: string
   ms: number[]
   note: string
+  /** The same writes as one raw SQL transaction, where the work is a write. */
+  floor?: number[]
+}
+
+/**
+ * The floor of a bulk reschedule's writes: one IMMEDIATE transaction of plain prepared statements
+ * moving each visit to `to` with its version bumped, plus the change's record and audit row. Run on
+ * the copy after the undo; moved back afterwards by the same statements.
+ */
+function rawReschedule(q: Database.Database, moves: Array<{ id: number; to: string }>): number {
+  const move = q.prepare('update visits set scheduled_on = ?, version = version + 1 where id = ?')
+  const change = q.prepare("insert into bulk_changes (actor_id, action, summary, record_count, records) values (1, 'raw', 'raw', ?, ?)")
+  const audit = q.prepare("insert into audit_log (actor_id, action, entity, entity_id, after) values (1, 'bulk.raw', 'visit', ?, ?)")
+  const t = performance.now()
+  q.transaction(() => {
+    for (const m of moves) move.run(m.to, m.id)
+    const id = Number(change.run(moves.length, JSON.stringify(moves)).lastInsertRowid)
+    audit.run(id, JSON.stringify({ count: moves.length }))
+  }).immediate()
+  return performance.now() - t
 }
 
 function timed<T>(ms: number[], fn: () => T): T {
@@ -64,12 +85,21 @@ export async function benchWork(source: string, scratch: string, today: string, 
     const plan = reschedule.preview(db, ids, shift, ctx())
     const apply: number[] = []
     const applied = timed(apply, () => applyBulk(db, reschedule, shift, ids, new Map(plan.changes.map((c) => [c.id, c.version])), ctx()))
-    out.push({ name: `bulk reschedule: apply ${ids.length} visits`, ms: apply, note: `${applied.applied} applied in one transaction` })
+    const moves = plan.changes.map((c) => ({ id: c.id, to: String(c.to.scheduledOn) }))
+    const back = plan.changes.map((c) => ({ id: c.id, to: String(c.from.scheduledOn) }))
     if (applied.changeId) {
       const undo: number[] = []
       timed(undo, () => undoBulk(db, applied.changeId!, office, today))
-      out.push({ name: `bulk reschedule: undo ${ids.length} visits`, ms: undo, note: '' })
-    }
+      // The floor, interleaved: the same moves there and back as raw statements, three times each.
+      const floor: number[] = []
+      const floorBack: number[] = []
+      for (let i = 0; i < o.runs; i++) {
+        floor.push(rawReschedule(q, moves))
+        floorBack.push(rawReschedule(q, back))
+      }
+      out.push({ name: `bulk reschedule: apply ${ids.length} visits`, ms: apply, note: `${applied.applied} applied in one transaction (the preview judged again inside it)`, floor })
+      out.push({ name: `bulk reschedule: undo ${ids.length} visits`, ms: undo, note: '', floor: floorBack })
+    } else out.push({ name: `bulk reschedule: apply ${ids.length} visits`, ms: apply, note: 'nothing applied' })
 
     const detectors = (q.prepare('select id from detectors order by id').all() as Array<{ id: number }>).map((d) => d.id)
     const audit = bulkAction('delay-audit')!
