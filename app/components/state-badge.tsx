@@ -38,9 +38,6 @@ const LABELS: Record<string, { tone: Tone; label: string }> = {
 // A word this list does not know still reads in sentence case, like every other badge and filter.
 const lookUp = (value: string) => LABELS[value] ?? { tone: 'idle' as Tone, label: value.charAt(0).toUpperCase() + value.slice(1).replace(/-/g, ' ') }
 
-/** The words a badge shows for a value, for text that names it beside other words ("Loop: Pass"). */
-export const stateLabel = (value: string) => lookUp(value).label
-
 /** A value's badge; `prefix` names what it judges ("Loop") ahead of the house word for the value. */
 export function StateBadge({ value, label, prefix }: { value: string; label?: string; prefix?: string }) {
   const known = lookUp(value)
