@@ -32,6 +32,14 @@ export function linkCell<Row>(href: (r: Row) => string, text: (r: Row) => React.
   )
 }
 
+/**
+ * A cell whose text may take a second line instead of being cut, for tables whose rows grow to fit
+ * (DataTable's `wrapRows`): a long site name reads in full.
+ */
+export function wrapCell<Row>(cell: ColumnDef<Row>['cell']): ColumnDef<Row>['cell'] {
+  return (ctx) => <span className="block py-1.5 leading-snug break-words whitespace-normal">{typeof cell === 'function' ? cell(ctx) : cell}</span>
+}
+
 export function badgeCell<Row>(value: (r: Row) => string | null): ColumnDef<Row>['cell'] {
   return ({ row }) => {
     const v = value(row.original)

@@ -66,9 +66,12 @@ export interface DataTableProps<Row extends { id: number }> {
 
 const PAGE = WINDOW_ROWS
 const ROW_PX = 36
-// A phone card: title line and two lines of detail, every one a single truncated line, so the
-// virtualizer can place rows without measuring them.
-const PHONE_ROW_PX = 84
+// A phone card: a title line and two lines of detail, each of which may wrap onto a second line (a
+// site's name and town rarely fit 390 px on one). The height always leaves room for both to wrap, so
+// every card is the same height and the virtualizer places rows without measuring them. A card whose
+// lines fit on one each sits in the middle of its height.
+const PHONE_LINE_PX = 20
+const PHONE_ROW_PX = 16 + PHONE_LINE_PX + 2 * 2 * PHONE_LINE_PX
 const PHONE_QUERY = '(max-width: 47.99rem)'
 // Browsers cap an element's height (about 33 million px in Chromium): 2 million rows at 36 px do not
 // fit. Past this height the scroll box is shrunk and offsets are scaled between it and the virtualizer.
@@ -476,13 +479,14 @@ export function DataTable<Row extends { id: number }>(p: DataTableProps<Row>) {
                     )}
                     <div role="cell" className={`min-w-0 flex-1 ${pick ? '' : 'pl-3'}`}>
                       {card && data ? (
-                        <Link to={p.rowHref?.(data) ?? '#'} onClick={() => setCursor(v.index)} className="block h-full py-2 pr-3 text-sm">
+                        <Link to={p.rowHref?.(data) ?? '#'} onClick={() => setCursor(v.index)} className="flex h-full flex-col justify-center py-2 pr-3 text-sm">
                           <span className="flex items-center justify-between gap-2">
                             <span className="min-w-0 truncate font-medium">{card.title}</span>
                             {card.badges && <span className="flex shrink-0 items-center gap-1">{card.badges}</span>}
                           </span>
                           {card.lines.slice(0, 2).map((line, i) => (
-                            <span key={i} className={`block text-ink-soft ${p.wrapRows ? '' : 'truncate'}`}>
+                            // Broken between words, never cut mid-word; past two lines (rare) clamped.
+                            <span key={i} className={`block text-ink-soft break-words ${p.wrapRows ? '' : 'line-clamp-2'}`}>
                               {line}
                             </span>
                           ))}

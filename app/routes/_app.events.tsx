@@ -9,6 +9,7 @@ import { eventList, eventQuery, type EventListRow } from '~/.server/lists/events
 import { linkCell, monoCell, selectColumn } from '~/components/columns'
 import { KeyHint, ListPage, options, sentence } from '~/components/list-page'
 import type { RouteAccess } from '~/domain/permissions'
+import { siteDateTime } from '~/utils/time-format'
 import type { Route } from './+types/_app.events'
 
 export const handle = { access: { loader: 'view:fleet' } satisfies RouteAccess }
@@ -27,9 +28,13 @@ export async function loader({ request }: Route.LoaderArgs) {
 const KINDS = ['alarm', 'trouble', 'supervisory', 'restore', 'test', 'reset', 'cleaning', 'notice', 'change'] as const
 const GLYPH: Record<string, string> = { alarm: '◆', trouble: '▲', supervisory: '◆', restore: '✓', test: '⚑', reset: '↺', cleaning: '✧', notice: '☎', change: '✎' }
 
+// On the site's clock with its zone, as the record pages show an event; a row without a site's
+// zone says UTC rather than pass the office's clock off as the site's.
+const when = (r: EventListRow) => siteDateTime(r.occurredAt, r.timeZone ?? 'UTC')
+
 const columns: ColumnDef<EventListRow>[] = [
   selectColumn(),
-  { id: 'occurredAt', header: 'When (UTC)', size: 150, cell: monoCell((r) => r.occurredAt.slice(0, 16).replace('T', ' ')) },
+  { id: 'occurredAt', header: 'When', size: 190, cell: monoCell(when) },
   {
     id: 'kind',
     header: 'Kind',
@@ -86,7 +91,7 @@ export default function Events({ loaderData }: Route.ComponentProps) {
             {sentence(r.kind)}
           </>
         ),
-        badges: <span className="font-mono text-xs text-ink-soft">{r.occurredAt.slice(0, 16).replace('T', ' ')} UTC</span>,
+        badges: <span className="font-mono text-xs text-ink-soft">{when(r)}</span>,
         lines: [`${r.detectorTag ?? 'Whole site'} · ${r.site}`, r.detail ?? (r.by ? `By ${r.by}` : 'From the panel')],
       })}
     />

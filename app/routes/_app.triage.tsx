@@ -7,7 +7,7 @@ import { getDb } from '~/.server/db'
 import { firstWindow } from '~/.server/list-answers'
 import { deviceList } from '~/.server/lists/devices'
 import { triageQuery, type TriageRow } from '~/.server/lists/triage'
-import { badgeCell, linkCell, monoCell, selectColumn } from '~/components/columns'
+import { badgeCell, linkCell, monoCell, selectColumn, wrapCell } from '~/components/columns'
 import { usePaletteActions } from '~/components/command-palette'
 import { DataTable } from '~/components/data-table'
 import { ExportButton } from '~/components/export-button'
@@ -64,7 +64,7 @@ const REASON_LABELS: Record<string, string> = {
 const columns: ColumnDef<TriageRow>[] = [
   selectColumn(),
   { id: 'risk', header: 'Risk', size: 76, cell: monoCell((r) => r.risk) },
-  { id: 'tag', header: 'Tag', size: 104, cell: linkCell((r) => `/devices/${r.id}`, (r) => r.tag, true) },
+  { id: 'tag', header: 'Tag', size: 96, cell: linkCell((r) => `/devices/${r.id}`, (r) => r.tag, true) },
   {
     id: 'reasons',
     header: 'Why',
@@ -73,10 +73,13 @@ const columns: ColumnDef<TriageRow>[] = [
     enableSorting: false,
     cell: ({ row }) => <Reasons reasons={row.original.reasons} followUp={row.original.followUp} />,
   },
-  { id: 'site', header: 'Site', size: 2, minSize: 180, cell: linkCell((r) => `/sites/${r.siteId}`, (r) => r.site) },
-  { id: 'state', header: 'State', size: 132, cell: badgeCell((r) => r.state) },
-  { id: 'due', header: 'Due', size: 116, cell: badgeCell((r) => r.due) },
-  { id: 'assignee', header: 'Assigned', size: 140, enableSorting: false, cell: ({ row }) => row.original.assignee ?? <span className="text-ink-faint">—</span> },
+  // Wide enough that the longest site names take two lines; rows grow to fit (wrapRows), so a long
+  // name wraps rather than being cut.
+  { id: 'site', header: 'Site', size: 2, minSize: 250, cell: wrapCell(linkCell((r) => `/sites/${r.siteId}`, (r) => r.site)) },
+  { id: 'state', header: 'State', size: 124, cell: badgeCell((r) => r.state) },
+  { id: 'due', header: 'Due', size: 108, cell: badgeCell((r) => r.due) },
+  // Narrow, so the width goes to the site: most rows have no one yet, and a long name takes two lines.
+  { id: 'assignee', header: 'Assigned', size: 104, enableSorting: false, cell: wrapCell(({ row }) => row.original.assignee ?? <span className="text-ink-faint">—</span>) },
 ]
 
 interface Answer {

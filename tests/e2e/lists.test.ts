@@ -23,6 +23,12 @@ describe('list pages in Chromium', () => {
     return page
   }
 
+  /** An instant on a site's clock, worked out by the runtime's own zone data, beside its UTC clock. */
+  const onSiteClock = ({ at, zone }: { at: string; zone: string }) => {
+    const p = Object.fromEntries(new Intl.DateTimeFormat('en-US', { timeZone: zone, hour: '2-digit', minute: '2-digit', hourCycle: 'h23', timeZoneName: 'short' }).formatToParts(new Date(at)).map((x) => [x.type, x.value]))
+    return { clock: `${p.hour}:${p.minute}`, letters: p.timeZoneName, utcClock: at.slice(11, 16) }
+  }
+
   /** The text of each shown row's cell under the header whose name starts with `header`, top first. */
   async function cells(page: Page, header: string, rows = 5): Promise<string[]> {
     return page.evaluate(
@@ -68,6 +74,32 @@ describe('list pages in Chromium', () => {
     await expect(page.getByRole('columnheader', { name: /^Site/ }).getAttribute('aria-sort')).resolves.toBe('none')
     expect((page as Page & { errors: string[] }).errors).toEqual([])
     await page.context().close()
+  })
+
+  it('shows each event on its site’s clock with the zone’s letters, at desk and phone width', async () => {
+    // The newest events as stored (UTC instants) with their sites' zones.
+    const newest = sql().prepare('select e.occurred_at as at, s.time_zone as zone from events e join sites s on s.id = e.site_id order by e.occurred_at desc, e.id desc limit 5').all() as Array<{ at: string; zone: string }>
+    const expected = newest.map(onSiteClock)
+    // The seed's sites keep their own zones: the check below tells a site's clock from UTC.
+    expect(expected.some((e) => e.letters !== 'UTC' && e.clock !== e.utcClock)).toBe(true)
+    const readsRight = (text: string, e: ReturnType<typeof onSiteClock>) => text.includes(`${e.clock} ${e.letters}`) && (e.letters === 'UTC' || !/UTC/.test(text))
+
+    const page = await signedInPage()
+    await page.goto(`${t.server.url}/events`, { waitUntil: 'networkidle' })
+    const when = page.getByRole('columnheader', { name: /^When/ })
+    await expect(when.innerText()).resolves.not.toMatch(/UTC/)
+    await expect.poll(async () => (await cells(page, 'When', 5)).map((text, i) => readsRight(text, expected[i]) || text)).toEqual(expected.map(() => true))
+    await page.context().close()
+
+    const { cookie } = await sessionCookieFor(t.data.db, userIdByEmail(t.data.db, DEMO_EMAIL.lead))
+    const context = await t.browser.newContext({ viewport: { width: 390, height: 844 }, isMobile: true, hasTouch: true })
+    const [name, ...value] = cookie.split('=')
+    await context.addCookies([{ name, value: value.join('='), domain: '127.0.0.1', path: '/' }])
+    const phone = await context.newPage()
+    await phone.goto(`${t.server.url}/events`, { waitUntil: 'networkidle' })
+    const card = (i: number) => phone.locator(`[role=row][aria-rowindex="${i + 2}"] a`).innerText()
+    await expect.poll(async () => Promise.all(expected.map(async (e, i) => readsRight(await card(i), e) || (await card(i))))).toEqual(expected.map(() => true))
+    await context.close()
   })
 
   it('offers only the orders the server accepts', async () => {
@@ -232,9 +264,13 @@ describe('list pages in Chromium', () => {
     // A move through the rail: the newest events, from the page's own data.
     await page.locator('nav a[href="/events"]').first().click()
     await page.waitForURL(`${t.server.url}/events`)
+    // Each shown on its site's clock: the time and zone after the day ("15 Jun 2026, 03:45 PDT").
     const newest = (kind?: string) =>
-      column<string>(`select substr(replace(occurred_at, 'T', ' '), 1, 16) from events ${kind ? 'where kind = ?' : ''} order by occurred_at desc, id desc limit 3`, ...(kind ? [kind] : []))
-    await expect.poll(() => cells(page, 'When', 3)).toEqual(newest())
+      (sql().prepare(`select e.occurred_at as at, s.time_zone as zone from events e join sites s on s.id = e.site_id ${kind ? 'where e.kind = ?' : ''} order by e.occurred_at desc, e.id desc limit 3`).all(...(kind ? [kind] : [])) as Array<{ at: string; zone: string }>).map(
+        (e) => `${onSiteClock(e).clock} ${onSiteClock(e).letters}`,
+      )
+    const whenShown = async () => (await cells(page, 'When', 3)).map((text) => text.split(', ').pop())
+    await expect.poll(whenShown).toEqual(newest())
 
     // Scrolling on asks the route for the next window, as before.
     await page.locator('[role="table"]').locator('xpath=..').evaluate((el) => el.scrollTo({ top: 150 * 36 }))
@@ -243,7 +279,7 @@ describe('list pages in Chromium', () => {
     // A filter chosen on the page: its first rows come with the page's data too.
     await page.locator('label', { hasText: /^Kind/ }).locator('select').selectOption('alarm')
     await page.waitForURL(/[?&]kind=alarm/)
-    await expect.poll(() => cells(page, 'When', 3)).toEqual(newest('alarm'))
+    await expect.poll(whenShown).toEqual(newest('alarm'))
     await page.waitForLoadState('networkidle')
     expect(firstWindows('events')).toEqual([])
     expect(complaints).toEqual([])

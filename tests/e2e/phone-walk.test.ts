@@ -116,6 +116,14 @@ describe('every main page at phone and desk width, for every role', () => {
           if (rows.length === 0) out.push('no row links')
           const small = rows.filter((a) => a.getBoundingClientRect().height < minTouch)
           if (small.length) out.push(`${small.length} row links shorter than ${minTouch} px`)
+          // A card's lines (site and town, next due, who) wrap: none cut short at the side or the foot,
+          // and none reaching past its row.
+          const lines = rows.flatMap((a) => [...a.children].slice(1)) as HTMLElement[]
+          const cut = lines.filter((l) => {
+            const row = l.closest('[role=row]')!.getBoundingClientRect()
+            return l.scrollWidth > l.clientWidth + 1 || l.scrollHeight > l.clientHeight + 1 || l.getBoundingClientRect().bottom > row.bottom + 1
+          })
+          if (cut.length) out.push(`${cut.length} card lines cut short: ${cut.slice(0, 3).map((l) => (l.textContent ?? '').slice(0, 50)).join(' | ')}`)
         }
         return out
       },

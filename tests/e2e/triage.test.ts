@@ -68,6 +68,30 @@ describe('triage in Chromium', () => {
     await phone.context().close()
   })
 
+  it('reads site names in full at desk width, the longest in the queue included', async () => {
+    const desk = await signedInPage({ width: 1440, height: 900 })
+    const uncut = (page: Page) =>
+      page.evaluate(() => {
+        const heads = [...document.querySelectorAll('[role=columnheader]')].map((h) => h.textContent ?? '')
+        const at = heads.findIndex((h) => h.startsWith('Site'))
+        return [...document.querySelectorAll('[role=row][data-index]')].map((row) => {
+          const cell = row.querySelectorAll<HTMLElement>('[role=cell]')[at]
+          const link = cell.querySelector<HTMLElement>('a')!
+          const cut = [cell, ...cell.querySelectorAll<HTMLElement>('*')].some((el) => el.scrollWidth > el.clientWidth + 1 || (el !== cell && el.getBoundingClientRect().bottom > row.getBoundingClientRect().bottom + 1))
+          return { site: link.textContent, cut }
+        })
+      })
+    const shown = await uncut(desk)
+    expect(shown.length).toBeGreaterThan(5)
+    expect(shown.filter((s) => s.cut)).toEqual([])
+
+    // The longest site name among the open queue, found by its own words.
+    const longest = sql().prepare("select s.name from detectors d join sites s on s.id = d.site_id where d.risk_reasons != '' and d.acknowledged_at is null order by length(s.name) desc limit 1").get() as { name: string }
+    await desk.goto(`${t.server.url}/triage?q=${encodeURIComponent(longest.name)}`, { waitUntil: 'networkidle' })
+    await expect.poll(async () => (await uncut(desk)).filter((s) => s.site === longest.name)).toEqual([{ site: longest.name, cut: false }])
+    await desk.context().close()
+  })
+
   it('books from the palette by keyboard: usual technician and next working day filled in, Esc closes, Enter books, the open visit shown next time', async () => {
     const page = await signedInPage({ width: 1440, height: 900 })
     const first = sql().prepare("select id, tag, site_id as siteId from detectors where risk_reasons != '' and acknowledged_at is null order by risk_score desc, id desc limit 1").get() as { id: number; tag: string; siteId: number }

@@ -401,7 +401,7 @@ describe('list rows carry the right figures', () => {
     const figures = data.db.$client
       .prepare(
         `select e.id, e.occurred_at as occurredAt, e.kind, e.detail, e.detector_id as detectorId, d.tag as detectorTag,
-                e.site_id as siteId, s.name as site, e.user_id as userId, u.name as by
+                e.site_id as siteId, s.name as site, s.time_zone as timeZone, e.user_id as userId, u.name as by
          from events e left join detectors d on d.id = e.detector_id join sites s on s.id = e.site_id
          left join users u on u.id = e.user_id where e.site_id = ? order by e.occurred_at desc, e.id desc`,
       )

@@ -96,12 +96,18 @@ describe('console lists: visit filters, the visits page default, background refr
 
   it('puts the first events of a kind in the page’s own HTML, newest first', async () => {
     const { cookie } = await cookieFor('office@ductkeeper.test')
-    const expected = sql().prepare("select occurred_at as at from events where kind = 'alarm' order by occurred_at desc, id desc").all() as Array<{ at: string }>
+    const expected = sql().prepare("select e.occurred_at as at, s.time_zone as zone from events e join sites s on s.id = e.site_id where e.kind = 'alarm' order by e.occurred_at desc, e.id desc").all() as Array<{ at: string; zone: string }>
     expect(expected.length).toBeGreaterThan(1)
+    // Each on its site's calendar and clock, with the zone's letters, by the runtime's own zone data.
+    const onSiteClock = ({ at, zone }: { at: string; zone: string }) => {
+      const options = { timeZone: zone, day: 'numeric', month: 'short', year: 'numeric', hour: '2-digit', minute: '2-digit', hourCycle: 'h23', timeZoneName: 'short' } as const
+      const p = Object.fromEntries(new Intl.DateTimeFormat('en-US', options).formatToParts(new Date(at)).map((x) => [x.type, x.value]))
+      return `${p.day} ${p.month} ${p.year}, ${p.hour}:${p.minute} ${p.timeZoneName}`
+    }
     const rows = rowsOf(await page('/events?kind=alarm', cookie))
     expect(rows.length).toBeGreaterThan(1)
     rows.forEach((r, i) => {
-      expect(r.text.startsWith(expected[i].at.slice(0, 16).replace('T', ' '))).toBe(true)
+      expect(r.text.startsWith(onSiteClock(expected[i]))).toBe(true)
       expect(r.text).toMatch(/ alarm /)
     })
   })

@@ -70,6 +70,8 @@ const select = {
   detectorTag: orNull(detectors.tag),
   siteId: events.siteId,
   site: sites.name,
+  // The site's IANA zone: a list shows each event on its site's clock, as the record pages do.
+  timeZone: orNull(sites.timeZone),
   userId: events.userId,
   by: orNull(users.name),
 }
