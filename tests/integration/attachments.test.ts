@@ -274,7 +274,7 @@ describe('refusals leave nothing behind', () => {
 
   it("refuses a technician on someone else's visit (403), a manager (403), nobody (401) and an unknown visit (404)", async () => {
     await expectRefused(() => upload(otherVisit, cookies.tech, [{ name: 'a.jpg', bytes: jpeg }]), 403, /not assigned to you/)
-    await expectRefused(() => upload(techVisit, cookies.manager, [{ name: 'a.jpg', bytes: jpeg }]), 403, /role does not allow/)
+    await expectRefused(() => upload(techVisit, cookies.manager, [{ name: 'a.jpg', bytes: jpeg }]), 403, /The Manager role cannot record work on visits/)
     await expectRefused(() => upload(techVisit, '', [{ name: 'a.jpg', bytes: jpeg }]), 401, /Sign in/)
     await expectRefused(() => upload(999_999, cookies.office, [{ name: 'a.jpg', bytes: jpeg }]), 404, /No such visit/)
   })

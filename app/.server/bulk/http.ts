@@ -1,5 +1,5 @@
 import { z } from 'zod'
-import { can } from '~/domain/permissions'
+import { can, refusal } from '~/domain/permissions'
 import type { CurrentUser } from '../auth'
 import { readJson } from '../http'
 import { idParam } from '../list-query'
@@ -20,7 +20,7 @@ const OWN_KEYS = ['preview', 'previewId', 'versions', 'ids', 'filter', 'list']
 export async function bulkRequest(request: Request, name: string, user: CurrentUser): Promise<Response> {
   const action = bulkAction(name)
   if (!action) return Response.json({ error: `No bulk action '${name}'` }, { status: 404 })
-  if (!can(user.role, action.capability)) return Response.json({ error: 'Your role does not allow this.' }, { status: 403 })
+  if (!can(user.role, action.capability)) return Response.json({ error: refusal(user.role, action.capability) }, { status: 403 })
   const b = await readJson(request, body)
   const rest = Object.fromEntries(Object.entries(b).filter(([k]) => !OWN_KEYS.includes(k)))
   const parsed = action.input.safeParse(rest)
