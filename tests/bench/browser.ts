@@ -100,7 +100,8 @@ export async function listTimes(page: Page, url: string, runs: number, part: (na
     for (let i = 0; i < runs; i++) {
       await page.goto(url + '/devices')
       await hydrated(page)
-      const state = ['trouble', 'alarm', 'supervisory', 'out-of-service'][i % 4]
+      // States every scale holds detectors in (a fleet may have none in alarm at the time).
+      const state = ['trouble', 'supervisory', 'out-of-service'][i % 3]
       // Timed by the driver: from the choice to the first row of the narrowed list, no longer dimmed.
       const t = performance.now()
       await page.locator('label', { hasText: /^State/ }).locator('select').selectOption(state)
