@@ -1,3 +1,4 @@
+import { setPriority } from 'node:os'
 import { isMainThread, parentPort, Worker, workerData } from 'node:worker_threads'
 import { runBulkJob, runUndoJob, type JobAnswer } from './bulk/jobs'
 import { getDb, type Db } from './db'
@@ -34,6 +35,13 @@ export const isOffloadWorker = !isMainThread && (workerData as { role?: string }
 
 // In the worker: answer each job in turn, on the worker's own connection.
 if (isOffloadWorker) {
+  // Below the request thread: on a machine with few cores a long preview takes what the requests leave.
+  // On Linux a thread's nice value is its own, so this lowers the worker only.
+  try {
+    setPriority(10)
+  } catch {
+    // Not allowed here: the worker runs at the server's priority.
+  }
   parentPort!.on('message', ({ id, job, args }: Request) => {
     let reply: Reply
     try {
@@ -104,7 +112,8 @@ export async function runJob<N extends JobName>(job: N, args: JobArgs<N>): Promi
   try {
     return await answer
   } finally {
-    // The worker's writes are invisible to this thread's caches.
-    listsChanged()
+    // The worker's writes are invisible to this thread's caches. A preview writes nothing, and dropping
+    // every kept total makes the next requests of each list count afresh at once.
+    if (!(job === 'bulk' && (args as { selection: { preview: boolean } }).selection.preview)) listsChanged()
   }
 }
