@@ -10,8 +10,7 @@ const EVERY_MS = 10 * 60_000
 export function startBackgroundJobs() {
   // The offload worker loads this same build; it runs jobs handed to it, never timers of its own.
   if (isOffloadWorker || globalJobs.__ductkeeperJobs) return
-  warmOffload()
-  if (process.env.DUCTKEEPER_JOBS === 'off') return
+  if (process.env.DUCTKEEPER_JOBS === 'off') return warmOffload(3_000)
   const tick = async () => {
     try {
       const result = await refreshIfNewDay(getDb())
@@ -21,7 +20,8 @@ export function startBackgroundJobs() {
     }
   }
   // After start-up, so the first request is not kept waiting (tests set a later start to watch it run).
-  setTimeout(tick, Number(process.env.REFRESH_START_DELAY_MS ?? 200)).unref()
+  // The bulk worker loads once the start's refresh is done, so the two do not share the CPU.
+  setTimeout(() => void tick().finally(() => warmOffload(0)), Number(process.env.REFRESH_START_DELAY_MS ?? 200)).unref()
   globalJobs.__ductkeeperJobs = setInterval(tick, EVERY_MS)
   globalJobs.__ductkeeperJobs.unref()
   startDigestSchedule(getDb)

@@ -91,10 +91,10 @@ function startWorker(): Worker {
 }
 
 /**
- * Starts the worker a little after start-up, ahead of the first job, so that job does not wait for the
- * build to load; not at once, so a start is not slowed by it.
+ * Starts the worker ahead of the first job, so that job does not wait for the build to load; after
+ * the start's own work (`jobs.ts`), so a start is not slowed by it.
  */
-export function warmOffload(afterMs = 3_000) {
+export function warmOffload(afterMs: number) {
   if (!canOffload()) return
   setTimeout(() => (worker ??= startWorker()), afterMs).unref()
 }
