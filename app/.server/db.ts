@@ -59,28 +59,37 @@ export function writeTx<T>(db: Db | Database.Database, fn: () => T): T {
 const globalForDb = globalThis as unknown as { __ductkeeperDb?: Db }
 
 /**
- * What is wrong with the database, in words an operator can act on, when `error` is SQLite saying it
- * cannot be opened or written (read-only, disk full, not there, lock held); null for any other error.
+ * Runs `fn` with SQLite's busy wait off: a statement that needs the write lock while another
+ * connection (the background worker applying a bulk change) holds it throws SQLITE_BUSY at once,
+ * instead of holding up every request on this thread for as long as SQLite waits.
  */
-/**
- * Runs a write that may be skipped (an activity mark) only if the write lock is free now: while the
- * background worker holds it for a bulk change, waiting in SQLite's busy loop would stall every request
- * on this thread. Returns whether it ran.
- */
-export function writeIfFree(sqlite: Database.Database, fn: () => void): boolean {
+export function withoutWaiting<T>(sqlite: Database.Database, fn: () => T): T {
   const wait = sqlite.pragma('busy_timeout', { simple: true }) as number
   sqlite.pragma('busy_timeout = 0')
   try {
-    fn()
-    return true
-  } catch (error) {
-    if (((error as { code?: string }).code ?? '').startsWith('SQLITE_BUSY')) return false
-    throw error
+    return fn()
   } finally {
     sqlite.pragma(`busy_timeout = ${wait}`)
   }
 }
 
+export const isBusy = (error: unknown) => ((error as { code?: string }).code ?? '').startsWith('SQLITE_BUSY')
+
+/** Runs a write that may be skipped (an activity mark) only if the write lock is free now; says whether it ran. */
+export function writeIfFree(sqlite: Database.Database, fn: () => void): boolean {
+  try {
+    withoutWaiting(sqlite, fn)
+    return true
+  } catch (error) {
+    if (isBusy(error)) return false
+    throw error
+  }
+}
+
+/**
+ * What is wrong with the database, in words an operator can act on, when `error` is SQLite saying it
+ * cannot be opened or written (read-only, disk full, not there, lock held); null for any other error.
+ */
 export function databaseProblem(error: unknown): string | null {
   const code = String((error as { code?: unknown } | null)?.code ?? '')
   if (error instanceof DatabaseUnavailable) return error.problem

@@ -22,6 +22,13 @@ const JOBS = {
 type JobName = keyof typeof JOBS
 type JobArgs<N extends JobName> = Parameters<(typeof JOBS)[N]>[1]
 
+// Whether a job writes: the request thread's kept list totals are dropped after one that does. A
+// preview writes nothing, and dropping every kept total makes each list's next request count afresh.
+const WRITES: { [N in JobName]: (args: JobArgs<N>) => boolean } = {
+  bulk: (args) => !args.selection.preview,
+  undo: () => true,
+}
+
 const ROLE = 'ductkeeper-offload'
 interface Request {
   id: number
@@ -112,8 +119,7 @@ export async function runJob<N extends JobName>(job: N, args: JobArgs<N>): Promi
   try {
     return await answer
   } finally {
-    // The worker's writes are invisible to this thread's caches. A preview writes nothing, and dropping
-    // every kept total makes the next requests of each list count afresh at once.
-    if (!(job === 'bulk' && (args as { selection: { preview: boolean } }).selection.preview)) listsChanged()
+    // The worker's writes are invisible to this thread's caches.
+    if ((WRITES[job] as (a: JobArgs<N>) => boolean)(args)) listsChanged()
   }
 }

@@ -1,7 +1,7 @@
 import { statfsSync } from 'node:fs'
 import { dirname } from 'node:path'
 import type { RouteAccess } from '~/domain/permissions'
-import { databaseProblem, getDb } from '~/.server/db'
+import { databaseProblem, getDb, isBusy, withoutWaiting } from '~/.server/db'
 import { offloadBusy } from '~/.server/offload'
 
 export const handle = { access: { loader: 'public' } satisfies RouteAccess }
@@ -28,9 +28,7 @@ function freeBytes(path: string): number | null {
 
 /** Takes the write lock without waiting for it: SQLITE_BUSY at once if another connection holds it. */
 function probeOnce(sqlite: ReturnType<typeof getDb>['$client']) {
-  const wait = sqlite.pragma('busy_timeout', { simple: true }) as number
-  sqlite.pragma('busy_timeout = 0')
-  try {
+  withoutWaiting(sqlite, () => {
     sqlite.exec('begin immediate')
     try {
       const version = sqlite.pragma('user_version', { simple: true }) as number
@@ -38,12 +36,8 @@ function probeOnce(sqlite: ReturnType<typeof getDb>['$client']) {
     } finally {
       sqlite.exec('rollback')
     }
-  } finally {
-    sqlite.pragma(`busy_timeout = ${wait}`)
-  }
+  })
 }
-
-const isBusy = (error: unknown) => ((error as { code?: string }).code ?? '').startsWith('SQLITE_BUSY')
 
 /**
  * Up means writable, not just readable: the probe takes the write lock and rewrites the header's

@@ -22,13 +22,26 @@ describe('/healthz', () => {
     expect(await res.json()).toMatchObject({ ok: false, error: 'The database is read-only.' })
   })
 
-  it("waits for another connection's write lock without holding up this thread, then answers up", async () => {
+  /** Runs `fn` with the app's database on a fresh file and another connection holding its write lock. */
+  async function withLockHeld(fn: (other: Database.Database) => Promise<void>) {
     const path = tempDbPath()
+    holder.__ductkeeperDb = createDb(path.path)
+    // Another connection (as the background worker applying a bulk change) holds the write lock.
+    const other = new Database(path.path)
+    other.exec('begin immediate')
     try {
-      holder.__ductkeeperDb = createDb(path.path)
-      // Another connection (as the background worker applying a bulk change) holds the write lock.
-      const other = new Database(path.path)
-      other.exec('begin immediate')
+      await fn(other)
+    } finally {
+      if (other.inTransaction) other.exec('rollback')
+      other.close()
+      ;(holder.__ductkeeperDb as { $client: Database.Database }).$client.close()
+      delete holder.__ductkeeperDb
+      path.cleanup()
+    }
+  }
+
+  it("waits for another connection's write lock without holding up this thread, then answers up", () =>
+    withLockHeld(async (other) => {
       const started = performance.now()
       const answer = loader()
       // The thread stays free: a timer set now fires on time, not after SQLite's busy wait.
@@ -38,29 +51,12 @@ describe('/healthz', () => {
       const res = await answer
       expect(res.status).toBe(200)
       expect(performance.now() - started).toBeGreaterThanOrEqual(140)
-      other.close()
-    } finally {
-      ;(holder.__ductkeeperDb as { $client: Database.Database }).$client.close()
-      delete holder.__ductkeeperDb
-      path.cleanup()
-    }
-  })
+    }))
 
-  it('answers 503 when another connection has held the write lock for over a second', async () => {
-    const path = tempDbPath()
-    try {
-      holder.__ductkeeperDb = createDb(path.path)
-      const other = new Database(path.path)
-      other.exec('begin immediate')
+  it('answers 503 when another connection has held the write lock for over a second', () =>
+    withLockHeld(async () => {
       const res = await loader()
-      other.exec('rollback')
-      other.close()
       expect(res.status).toBe(503)
       expect(await res.json()).toMatchObject({ ok: false, code: 'SQLITE_BUSY' })
-    } finally {
-      ;(holder.__ductkeeperDb as { $client: Database.Database }).$client.close()
-      delete holder.__ductkeeperDb
-      path.cleanup()
-    }
-  })
+    }))
 })
