@@ -23,6 +23,18 @@ export async function freePort(): Promise<number> {
  * identity provider beside it; resolves once /healthz answers.
  */
 export async function startServer(databasePath: string, extraEnv: Record<string, string> = {}) {
+  // A port found free can be taken by another suite's server before this one listens on it: try again
+  // on another port rather than fail the suite.
+  for (let attempt = 1; ; attempt++) {
+    try {
+      return await startOnce(databasePath, extraEnv)
+    } catch (error) {
+      if (attempt >= 3 || !String(error).includes('EADDRINUSE')) throw error
+    }
+  }
+}
+
+async function startOnce(databasePath: string, extraEnv: Record<string, string>) {
   const port = await freePort()
   const url = `http://127.0.0.1:${port}`
   const idp = await startIdentityProvider({
@@ -54,7 +66,10 @@ export async function startServer(databasePath: string, extraEnv: Record<string,
   child.stderr.on('data', (d) => (output += d))
   const deadline = Date.now() + 20_000
   for (;;) {
-    if (child.exitCode !== null) throw new Error(`server exited early:\n${output}`)
+    if (child.exitCode !== null) {
+      await idp.close()
+      throw new Error(`server exited early:\n${output}`)
+    }
     try {
       const res = await fetch(`${url}/healthz`)
       if (res.ok) break
