@@ -5,7 +5,7 @@ import { Link, useLocation, useNavigate, useSearchParams } from 'react-router'
 import { useSWRConfig } from 'swr'
 import { FetchError, messageOf } from '~/utils/fetch-json'
 import { formatCount } from '~/utils/format'
-import { WINDOW_ROWS, windowUrl } from '~/utils/list-window'
+import { readWindow, WINDOW_ROWS, windowUrl, type ReadWindow, type SentWindow } from '~/utils/list-window'
 import { useShortcut } from './keyboard'
 import { LoadError } from './load-error'
 import { useJson } from './use-json'
@@ -19,11 +19,8 @@ export interface Page<Row> {
   totalCapped?: boolean
 }
 
-/**
- * The first window as the page's loader read it on the server (`firstWindow`): its rows, or the list
- * route's refusal of the address, under the URL the table would ask for them (the cache's key).
- */
-export type FirstWindow<Row> = { key: string; page: Page<Row> } | { key: string; refused: { error: string; issues: Array<{ path: string; message: string }> } }
+/** A window of rows as the table keeps it: the route's answer, or its refusal of the address. */
+type FirstWindow<Row> = ReadWindow<Page<Row>>
 
 /** How one row reads on a phone: a title, its states in words, and up to two short lines. */
 export interface PhoneCard {
@@ -61,7 +58,7 @@ export interface DataTableProps<Row extends { id: number }> {
    * the console, and taken as the cache's answer for its URL, so it is not asked for again. Used only
    * while its key is the current first window's URL.
    */
-  first?: FirstWindow<Row>
+  first?: SentWindow
 }
 
 const PAGE = WINDOW_ROWS
@@ -72,6 +69,9 @@ const ROW_PX = 36
 // lines fit on one each sits in the middle of its height.
 const PHONE_LINE_PX = 20
 const PHONE_ROW_PX = 16 + PHONE_LINE_PX + 2 * 2 * PHONE_LINE_PX
+// A row that grows to fit (`wrapRows`) takes about three lines at desk width: placed at that height
+// before it is measured, the server's HTML holds the rows on a desk screen and few beyond.
+const WRAP_ROW_PX = 64
 const PHONE_QUERY = '(max-width: 47.99rem)'
 // Browsers cap an element's height (about 33 million px in Chromium): 2 million rows at 36 px do not
 // fit. Past this height the scroll box is shrunk and offsets are scaled between it and the virtualizer.
@@ -188,7 +188,7 @@ export function DataTable<Row extends { id: number }>(p: DataTableProps<Row>) {
 
   // The loader's first window for this address, taken in while rendering: its rows are in the
   // server's HTML and show in the same render as a move within the console, with no request.
-  const loaded = p.first?.key === urlFor(0) ? p.first : undefined
+  const loaded = p.first?.key === urlFor(0) ? readWindow<Page<Row>>(p.first) : undefined
   const [taken, setTaken] = useState<FirstWindow<Row>>()
   // Kept until window 0 leaves the screen: coming back to it later asks the route again, as before.
   const [firstFresh, setFirstFresh] = useState(true)
@@ -250,8 +250,10 @@ export function DataTable<Row extends { id: number }>(p: DataTableProps<Row>) {
   const virtualizer = useVirtualizer({
     count: placed,
     getScrollElement: () => scrollRef.current,
-    estimateSize: () => rowPx,
-    overscan: 12,
+    estimateSize: () => (p.wrapRows && !cards ? WRAP_ROW_PX : rowPx),
+    // The rows beyond the screen wait for the browser: every row the server writes costs the page's
+    // answer time (about 3 KB of HTML a Triage row).
+    overscan: laidOut ? 12 : 1,
     // Before the box is measured (the server's render, and hydration), rows are placed for a box of
     // about a desk screen's height, so the server's HTML holds the rows a person first sees.
     initialRect: { width: 0, height: 720 },

@@ -6,7 +6,8 @@ import { BulkBar } from './bulk/bulk-bar'
 import type { Technician } from './bulk/action-fields'
 import type { BulkList } from './bulk/catalog'
 import { listQuery } from '~/utils/list-window'
-import { DataTable, type FirstWindow, type PhoneCard } from './data-table'
+import type { SentWindow } from '~/utils/list-window'
+import { DataTable, type PhoneCard } from './data-table'
 import { ExportButton } from './export-button'
 import { FilterBar, type FilterOption } from './filter-bar'
 import { SavedViews } from './saved-views'
@@ -31,7 +32,7 @@ export function ListPage<Row extends { id: number }>(p: {
   /** Acts on many rows at once: the selection bar and its palette entries (`today`: the office's day). */
   bulk?: { list: BulkList; technicians: Technician[]; today: string }
   /** The first window of rows, read by the page's loader (`firstWindow`). */
-  first?: FirstWindow<Row>
+  first?: SentWindow
 }) {
   const [params] = useSearchParams()
   const query = useMemo(() => listQuery(params), [params])

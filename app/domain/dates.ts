@@ -4,6 +4,9 @@ export type IsoDate = string
 const DAY_MS = 86_400_000
 
 export function toUtc(date: IsoDate): number {
+  // Read by position when the date has its usual shape: this runs for every date of every row of a
+  // list page, and splitting made arrays each time.
+  if (date.length === 10 && date[4] === '-' && date[7] === '-') return Date.UTC(+date.slice(0, 4), +date.slice(5, 7) - 1, +date.slice(8, 10))
   const [y, m, d] = date.split('-').map(Number)
   return Date.UTC(y, m - 1, d)
 }

@@ -49,7 +49,9 @@ export function overduePoints(task: Task, days: number): number {
 }
 
 const SHORT: Record<Task, string> = { functional: 'functional test', sensitivity: 'sensitivity', visual: 'visual check', cleaning: 'cleaning' }
-const dayWord = (n: number) => `${n.toLocaleString('en-US')} day${n === 1 ? '' : 's'}`
+// One formatter for every row (toLocaleString builds its own each call).
+const thousands = new Intl.NumberFormat('en-US')
+const dayWord = (n: number) => `${thousands.format(n)} day${n === 1 ? '' : 's'}`
 
 // Weights are the product's own call, set so that a live trouble outranks paperwork and an
 // unreported fault outranks a late test; each reason shows its points so the order explains itself.

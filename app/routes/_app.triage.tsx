@@ -22,7 +22,7 @@ import { buttonClass, inputClass, Notice, PageHeader, quietButtonClass } from '~
 import { can, type RouteAccess } from '~/domain/permissions'
 import { FetchError, fetchJson } from '~/utils/fetch-json'
 import { formatCount } from '~/utils/format'
-import { listQuery } from '~/utils/list-window'
+import { listQuery, readWindow } from '~/utils/list-window'
 import type { Route } from './+types/_app.triage'
 
 export const handle = { access: { loader: 'view:fleet' } satisfies RouteAccess }
@@ -97,7 +97,12 @@ export default function Triage({ loaderData }: Route.ComponentProps) {
   const [busy, setBusy] = useState(false)
   const { mutate } = useSWRConfig()
   // The counts ride along with any window of the queue; this one asks for the smallest.
-  const { data: summary, error: summaryError, retry: retrySummary } = useJson<Answer>('/api/triage?limit=1', { refreshMs: REFRESH_MS })
+  // The page's own first window brought them, so the header and the reasons read at once.
+  const firstRead = readWindow<Answer>(first)
+  const { data: summary, error: summaryError, retry: retrySummary } = useJson<Answer>('/api/triage?limit=1', {
+    refreshMs: REFRESH_MS,
+    fallbackData: 'page' in firstRead ? { counts: firstRead.page.counts } : undefined,
+  })
   const ids = Object.keys(selection).map(Number)
   const activeReasons = new Set((params.get('reason') ?? '').split(',').filter(Boolean))
 

@@ -18,3 +18,30 @@ export function listQuery(params: URLSearchParams): string {
 export function windowUrl(endpoint: string, query: string, w: number): string {
   return `${endpoint}?${query ? `${query}&` : ''}offset=${w * WINDOW_ROWS}&limit=${WINDOW_ROWS}`
 }
+
+/** A list route's refusal of an address, as it answers it (status 400). */
+export interface Refusal {
+  error: string
+  issues: Array<{ path: string; message: string }>
+}
+
+/**
+ * A list page's first window as its loader sends it, under the URL the table would ask for it: the
+ * JSON route's answer as its own text, or the route's refusal of the address.
+ */
+export type SentWindow = { key: string; json: string } | { key: string; refused: Refusal }
+
+/** A window as the table keeps it: the route's answer read, or its refusal. */
+export type ReadWindow<P> = { key: string; page: P } | { key: string; refused: Refusal }
+
+const read = new WeakMap<SentWindow, ReadWindow<unknown>>()
+
+/**
+ * The sent window read, once per window sent: the same object for every caller, so the table can
+ * tell a new first window from the one it already took by identity.
+ */
+export function readWindow<P>(sent: SentWindow): ReadWindow<P> {
+  let out = read.get(sent)
+  if (!out) read.set(sent, (out = 'json' in sent ? { key: sent.key, page: JSON.parse(sent.json) as unknown } : sent))
+  return out as ReadWindow<P>
+}

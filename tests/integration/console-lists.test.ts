@@ -112,6 +112,27 @@ describe('console lists: visit filters, the visits page default, background refr
     })
   })
 
+  it('puts the queue’s open total, its reason counts and its first rows in Triage’s own HTML', async () => {
+    const { cookie } = await cookieFor('lead@ductkeeper.test')
+    const open = (sql().prepare("select count(*) as n from detectors where risk_score > 0 and acknowledged_at is null").get() as { n: number }).n
+    const trouble = (sql().prepare("select count(*) as n from detectors where state = 'trouble' and risk_score > 0 and acknowledged_at is null").get() as { n: number }).n
+    const worst = sql().prepare('select tag, risk_score as risk from detectors where risk_score > 0 and acknowledged_at is null order by risk_score desc, id desc limit 5').all() as Array<{ tag: string; risk: number }>
+    expect(open).toBeGreaterThan(5)
+    const html = await page('/triage', cookie)
+    // Read from the kept totals on the server: no "Loading…" in place of the counts before scripts run.
+    expect(html).toContain(`${open.toLocaleString('en-US')} open · ranked by risk`)
+    expect(html).toMatch(new RegExp(`In trouble <span[^>]*>${trouble.toLocaleString('en-US')}</span>`))
+    const rows = rowsOf(html)
+    expect(rows.length).toBeGreaterThan(3)
+    rows.slice(0, worst.length).forEach((r, i) => expect(r.text.startsWith(`${worst[i].risk} ${worst[i].tag} `)).toBe(true))
+
+    // A row of the queue carries what the queue shows, its reasons in words, not the fields they came from.
+    const api = (await (await get('/api/triage?limit=1', cookie)).json()) as { rows: Array<Record<string, unknown>> }
+    expect(Object.keys(api.rows[0]).sort()).toEqual(
+      ['id', 'tag', 'risk', 'siteId', 'site', 'city', 'customerId', 'customer', 'unitId', 'unit', 'position', 'state', 'due', 'assignee', 'acknowledgedAt', 'followUp', 'reasons'].sort(),
+    )
+  })
+
   it('says what was wrong with a refused address in the page’s HTML, with a way back, instead of failing', async () => {
     const { cookie } = await cookieFor('office@ductkeeper.test')
     const html = await page('/devices?state=melted', cookie)

@@ -45,7 +45,16 @@ const select = {
     where vd.detector_id = ${detectors.id} and vd.result = 'fail' and v.status = 'done'
     order by vd.completed_at desc limit 1) end)`,
 }
-export type TriageRow = ListRow<typeof select> & { reasons: TriageReason[] }
+type QueueRead = ListRow<typeof select>
+/**
+ * A row of the queue as the page and the JSON route send it: who and where, the state and due
+ * badges, and the reasons in the engine's words with their points. The stored fields the reasons
+ * were worked out from stay on the server (the detector's own route has them all): a window of the
+ * queue is a third the size, on every page load and refresh.
+ */
+export type TriageRow = Pick<QueueRead, 'id' | 'tag' | 'risk' | 'siteId' | 'site' | 'city' | 'customerId' | 'customer' | 'unitId' | 'unit' | 'position' | 'state' | 'due' | 'assignee' | 'acknowledgedAt' | 'followUp'> & {
+  reasons: TriageReason[]
+}
 
 // Read on every plain queue page: prepared once per database.
 const keptReasons = perDb((db) =>
@@ -102,7 +111,22 @@ export function triageList(db: Db, query: TriageQuery, today: string): ListResul
   return {
     ...page,
     rows: page.rows.map((r) => ({
-      ...r,
+      id: r.id,
+      tag: r.tag,
+      risk: r.risk,
+      siteId: r.siteId,
+      site: r.site,
+      city: r.city,
+      customerId: r.customerId,
+      customer: r.customer,
+      unitId: r.unitId,
+      unit: r.unit,
+      position: r.position,
+      state: r.state,
+      due: r.due,
+      assignee: r.assignee,
+      acknowledgedAt: r.acknowledgedAt,
+      followUp: r.followUp,
       reasons: triage({
         state: r.state,
         overdue: overdueTasks({ visual: r.nextVisualOn, functional: r.nextFunctionalOn, sensitivity: r.nextSensitivityOn, cleaning: r.nextCleaningOn }, today),
