@@ -251,6 +251,8 @@ export const detectors = sqliteTable(
     index('detectors_due_idx').on(t.dueStatus, t.nextDueOn),
     index('detectors_due_sort_idx').on(t.dueStatus),
     index('detectors_due_risk_idx').on(t.dueStatus, t.riskScore),
+    // The overview's overdue count per environment, read from the index alone.
+    index('detectors_due_env_idx').on(t.dueStatus, t.environment),
     index('detectors_next_due_idx').on(t.nextDueOn),
     index('detectors_risk_idx').on(t.riskScore),
     index('detectors_env_idx').on(t.environment, t.housing),

@@ -24,7 +24,7 @@ describe('migrations', () => {
     const again = createDb(tmp.path)
     const raw = new Database(tmp.path, { readonly: true })
     const applied = raw.prepare('select count(*) as n from __drizzle_migrations').get() as { n: number }
-    expect(applied.n).toBe(18)
+    expect(applied.n).toBe(19)
     expect((raw.prepare("select name from sqlite_master where type in ('table','index','trigger') order by name").all() as Array<{ name: string }>).map((r) => r.name)).toEqual(before)
     raw.close()
     again.$client.close()

@@ -3,7 +3,7 @@ import { addDays, type IsoDate } from '~/domain/dates'
 import { OPEN_VISIT_STATUSES } from '~/domain/vocabulary'
 import type { Db } from '../db'
 import { customers, detectors, sites, tableCounts, users, visitDetectors, visits } from '../schema'
-import { countWhere, perDb } from './statements'
+import { perDb } from './statements'
 
 const overdue = eq(detectors.dueStatus, 'overdue')
 const dueSoon = eq(detectors.dueStatus, 'due-soon')
@@ -31,12 +31,10 @@ const statements = perDb((db: Db) => {
     inTrouble: countOf(inTrouble),
     outOfService: countOf(outOfService),
     delayDisagrees: countOf(delayDisagrees),
-    byEnvironment: db
-      .select({ environment: detectors.environment, detectors: count(), overdue: countWhere(overdue) })
-      .from(detectors)
-      .groupBy(detectors.environment)
-      .orderBy(desc(count()))
-      .prepare(),
+    // Two counts, each along an index alone: one pass counting both read every detector's row (70 ms
+    // at 100,000 detectors), the overdue ones through (due status, environment) take a few.
+    byEnvironment: db.select({ environment: detectors.environment, detectors: count() }).from(detectors).groupBy(detectors.environment).prepare(),
+    overdueByEnvironment: db.select({ environment: detectors.environment, n: count() }).from(detectors).where(overdue).groupBy(detectors.environment).prepare(),
     worstCustomers: db
       .select({
         id: customers.id,
@@ -107,9 +105,15 @@ export function overviewFigures(db: Db, today: IsoDate) {
     inTrouble: s.inTrouble.get()!.n,
     outOfService: s.outOfService.get()!.n,
     delayDisagrees: s.delayDisagrees.get()!.n,
-    byEnvironment: s.byEnvironment.all(),
+    byEnvironment: byEnvironment(s.byEnvironment.all(), s.overdueByEnvironment.all()),
     worstCustomers: s.worstCustomers.all(),
     attention: s.attention.all(),
     upcomingVisits: s.upcomingVisits.all({ from: today, to: addDays(today, 14) }),
   }
+}
+
+/** Detectors and overdue detectors per environment, most detectors first. */
+function byEnvironment(all: Array<{ environment: string; detectors: number }>, overdueRows: Array<{ environment: string; n: number }>) {
+  const late = new Map(overdueRows.map((r) => [r.environment, r.n]))
+  return all.map((r) => ({ ...r, overdue: late.get(r.environment) ?? 0 })).sort((a, b) => b.detectors - a.detectors || a.environment.localeCompare(b.environment))
 }
