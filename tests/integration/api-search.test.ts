@@ -17,6 +17,9 @@ let cookie = ''
 // Two detectors retagged so that plain bm25 prefers the one that is not the tag typed.
 let exactId = 0
 let lookalikeId = 0
+// Two sites: one named with the words searched, one whose street holds them, the lower id.
+let namedSiteId = 0
+let streetSiteId = 0
 
 beforeAll(async () => {
   data = seededDb('small')
@@ -24,6 +27,9 @@ beforeAll(async () => {
   ;[exactId, lookalikeId] = (sql.prepare('select id from detectors order by id desc limit 2').all() as Array<{ id: number }>).map((r) => r.id)
   sql.prepare('update detectors set tag = ? where id = ?').run('ZQ-7', exactId)
   sql.prepare('update detectors set tag = ? where id = ?').run('ZQ-7-ZQ-7-ZQ', lookalikeId)
+  ;[streetSiteId, namedSiteId] = (sql.prepare('select id from sites order by id limit 2').all() as Array<{ id: number }>).map((r) => r.id)
+  sql.prepare('update sites set name = ? where id = ?').run('Quellmoor Depot', namedSiteId)
+  sql.prepare('update sites set street = ? where id = ?').run('12 Quellmoor Depot Lane', streetSiteId)
   server = await startServer(data.path)
   cookie = (await sessionCookieFor(data.db, userIdByEmail(data.db, 'manager@ductkeeper.test'))).cookie
 })
@@ -99,6 +105,14 @@ describe('GET /api/search', () => {
       const detectors = group((await search(q)).body, 'detector')
       expect(detectors.map((d) => d.id), q).toEqual([exactId, lookalikeId])
       expect(detectors[0].title).toBe('ZQ-7')
+    }
+  })
+
+  it('puts a record named with the words typed before one that holds them only in its details', async () => {
+    for (const q of ['quellmoor depot', 'quell dep']) {
+      const sites = group((await search(q)).body, 'site')
+      expect(sites.map((x) => x.id), q).toEqual([namedSiteId, streetSiteId])
+      expect(sites[1].detail).toContain('Quellmoor Depot Lane')
     }
   })
 

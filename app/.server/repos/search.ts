@@ -22,10 +22,11 @@ export interface SearchResult {
 }
 
 export const PER_KIND = 8
-// bm25 costs a few microseconds a row: ranking every match of a common prefix ('rtu' matches
-// ~150,000 rows at stress scale) took ~150 ms, ranking the first 1,000 of a kind takes ~5 ms.
-// Below the cap the ranking is exact; above it, it ranks the first matches in rowid order.
-const CANDIDATES = 1000
+// Candidates read per kind, in rowid order. Every candidate matches every word typed, so what sets
+// them apart is where the words fall (title or detail) and how long the title is: ranked here, from
+// the row's own text. bm25() would work out each word's rarity by reading its whole list of matches,
+// once per kind (3–4 ms each for a common prefix at stress scale), to rank rows that all share it.
+const CANDIDATES = 250
 
 // What a person needs to tell two hits apart (tags repeat from site to site), read from the record.
 const DETAILS: Record<SearchKind, { href: string; details: (db: Db, ids: number[]) => Array<{ id: number; detail: string }> }> = {
@@ -68,18 +69,22 @@ const DETAILS: Record<SearchKind, { href: string; details: (db: Db, ids: number[
   },
 }
 
-// FTS5's MATCH, bm25() and the kind-in-rowid test have no word in the query builder: raw SQL, prepared once.
+// FTS5's MATCH and the kind-in-rowid test have no word in the query builder: raw SQL, prepared once.
 const candidateStatements = perDb((db: Db) =>
   Object.fromEntries(
     searchKinds.map((kind) => [
       kind,
-      db.$client.prepare<[string], { id: number; title: string; score: number }>(
-        `select rowid / 4 as id, title, bm25(search_index, 0, 0, 4, 1) as score
-         from search_index where search_index match ? and ${ftsKindRows(kind)} limit ${CANDIDATES}`,
+      db.$client.prepare<[string], Candidate>(
+        `select rowid / 4 as id, title from search_index where search_index match ? and ${ftsKindRows(kind)} limit ${CANDIDATES}`,
       ),
     ]),
-  ) as Record<SearchKind, Statement<[string], { id: number; title: string; score: number }>>,
+  ) as Record<SearchKind, Statement<[string], Candidate>>,
 )
+
+interface Candidate {
+  id: number
+  title: string
+}
 
 /**
  * As `ftsQuery`, but a one-character word matches a whole token (the 's' of 'rtu 1 s'): a
@@ -90,21 +95,37 @@ export function paletteQuery(text: string): string | null {
   return terms ? terms.map((t) => (/^"[^"]"\*$/u.test(t) ? t.slice(0, -1) : t)).join(' ') : null
 }
 
-/** Words only, lower case: 'Zq 7', 'zq-7' and 'ZQ-7' all read as the tag ZQ-7. */
-const words = (text: string) => text.toLowerCase().split(/[^\p{L}\p{N}]+/u).filter(Boolean).join(' ')
+/** Words only, lower case, without accents (as the index's tokenizer reads them): 'Zq 7', 'zq-7' and 'ZQ-7' all read as the tag ZQ-7. */
+const wordList = (text: string) =>
+  text
+    .normalize('NFD')
+    .replace(/\p{M}/gu, '')
+    .toLowerCase()
+    .split(/[^\p{L}\p{N}]+/u)
+    .filter(Boolean)
+const words = (text: string) => wordList(text).join(' ')
+
+/** The FTS query's terms: each a word, matched whole or (with `*`) as the start of a word. */
+const termsOf = (fts: string) => fts.split(' ').map((t) => ({ word: t.replace(/^"|"\*?$/g, ''), prefix: t.endsWith('*') }))
 
 /**
- * The palette's search: per kind, the best matches by bm25 with titles weighted over details, and a
- * title typed in full (an exact tag) ahead of the rest.
+ * The palette's search: per kind, a title typed in full (an exact tag) first, then by how many of the
+ * words typed are in the title (the others matched on the details: street, town, site), shorter
+ * titles (closer to what was typed) before longer, then the oldest record.
  */
 export function search(db: Db, q: string): SearchResult {
   const fts = paletteQuery(q)
   if (!fts) return { q, groups: [] }
   const typed = words(q)
+  const terms = termsOf(fts)
+  const inTitle = (title: string[]) => terms.filter((t) => title.some((w) => (t.prefix ? w.startsWith(t.word) : w === t.word))).length
   const candidates = candidateStatements(db)
   const groups = searchKinds.map((kind) => {
-    const ranked = candidates[kind].all(fts).map((c) => ({ ...c, exact: words(c.title) === typed ? 0 : 1 }))
-    const best = ranked.sort((a, b) => a.exact - b.exact || a.score - b.score || a.id - b.id).slice(0, PER_KIND)
+    const ranked = candidates[kind].all(fts).map((c) => {
+      const title = wordList(c.title)
+      return { ...c, exact: title.join(' ') === typed ? 0 : 1, inTitle: inTitle(title), length: title.length }
+    })
+    const best = ranked.sort((a, b) => a.exact - b.exact || b.inTitle - a.inTitle || a.length - b.length || a.title.length - b.title.length || a.id - b.id).slice(0, PER_KIND)
     if (best.length === 0) return { kind, items: [] }
     const k = DETAILS[kind]
     const details = new Map(k.details(db, best.map((b) => b.id)).map((d) => [d.id, d.detail]))
