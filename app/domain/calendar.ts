@@ -33,6 +33,7 @@ export interface CalendarOptions {
 const MON_TO_FRI = [1, 2, 3, 4, 5]
 // A search that finds no working day within ten years has a calendar with no working days at all.
 const MAX_SEARCH_DAYS = 3660
+const MAX_REMEMBERED = 20_000
 
 // One Holidays instance and one holiday map per region and year, shared by every calendar: the
 // planner asks about the same few regions thousands of times.
@@ -153,19 +154,32 @@ function buildCalendar(key: string, parts: string[], o: CalendarOptions): WorkCa
     throw new Error(`No working day within ten years of ${date} in ${key}`)
   }
 
+  // A bulk shift asks the same (date, n) for thousands of visits, each step a date parsed and
+  // printed again: remember each answer too, within a bound for a calendar kept all process long.
+  const stepped = new Map<string, IsoDate>()
+  const addWorkingDays = (date: IsoDate, n: number): IsoDate => {
+    if (!Number.isInteger(n)) throw new Error(`Working days must be a whole number, got ${n}`)
+    const memo = `${date}|${n}`
+    let d = stepped.get(memo)
+    if (d === undefined) {
+      if (n === 0) d = seek(date, 1)
+      else {
+        const step = n > 0 ? 1 : -1
+        d = date
+        for (let left = Math.abs(n); left > 0; left--) d = seek(addDays(d, step), step)
+      }
+      if (stepped.size >= MAX_REMEMBERED) stepped.clear()
+      stepped.set(memo, d)
+    }
+    return d
+  }
+
   return {
     region: key,
     isWorkingDay,
     holidayName,
     nextWorkingDay: (date) => seek(date, 1),
-    addWorkingDays(date, n) {
-      if (!Number.isInteger(n)) throw new Error(`Working days must be a whole number, got ${n}`)
-      if (n === 0) return seek(date, 1)
-      const step = n > 0 ? 1 : -1
-      let d = date
-      for (let left = Math.abs(n); left > 0; left--) d = seek(addDays(d, step), step)
-      return d
-    },
+    addWorkingDays,
     workingDaysBetween(from, to) {
       check(from)
       check(to)

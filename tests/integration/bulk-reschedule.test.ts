@@ -1,4 +1,4 @@
-import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { afterAll, afterEach, beforeAll, describe, expect, it, vi } from 'vitest'
 import { seededDb, TEST_TODAY } from '#tests/setup/temp-db'
 import { bulkAction } from '~/.server/bulk/registry'
 import { applyBulk, previewBulk } from '~/.server/bulk/runner'
@@ -122,5 +122,76 @@ describe('bulk reschedule', () => {
     q().prepare(`delete from visit_detectors where visit_id in (${[...existing, ...ids].join(',')})`).run()
     q().prepare(`delete from visits where id in (${[...existing, ...ids].join(',')})`).run()
     q().prepare('update users set daily_capacity = null where id = ?').run(techId)
+  })
+
+  describe('between preview and apply', () => {
+    // Two one-detector visits on Wednesday move to Thursday, where the technician has room for four.
+    const input = { mode: 'shift', days: 1 }
+    let ids: number[] = []
+    let extra: number[] = []
+    const setUp = () => {
+      q().prepare("update users set daily_capacity = 4, capacity_unit = 'detectors' where id = ?").run(techId)
+      ids = makeVisits(data.db, { n: 2, siteId, date: '2026-06-24', technicianId: techId, detectors: 1 })
+      extra = []
+      return previewBulk(data.db, reschedule, ids, input, office())
+    }
+    afterEach(() => {
+      const all = [...ids, ...extra].join(',')
+      q().exec(`delete from visit_detectors where visit_id in (${all}); delete from visits where id in (${all}); delete from closed_days`)
+      q().prepare('update users set daily_capacity = null where id = ?').run(techId)
+      vi.restoreAllMocks()
+    })
+
+    it('applies the plan previewed without working it out again when nothing it rests on changed', () => {
+      const preview = setUp()
+      expect(preview.changeCount).toBe(2)
+      const judged = vi.spyOn(reschedule, 'preview')
+      const applied = applyBulk(data.db, reschedule, input, ids, versions(preview), office())
+      expect(judged).not.toHaveBeenCalled()
+      expect(applied.applied).toBe(2)
+      expect(dates(ids)).toEqual(['2026-06-25', '2026-06-25'])
+    })
+
+    it("refuses a move that a visit booked since onto the technician's day leaves no room for", () => {
+      const preview = setUp()
+      expect(preview.changeCount).toBe(2)
+      // Three detectors booked on Thursday by someone else: room for one of the two visits only.
+      extra = makeVisits(data.db, { n: 1, siteId, date: '2026-06-25', technicianId: techId, detectors: 3 })
+      const applied = applyBulk(data.db, reschedule, input, ids, versions(preview), office())
+      expect(applied.applied).toBe(1)
+      expect(applied.refused).toEqual([{ id: ids[1], label: expect.any(String), reason: 'Jonah Keel is full on 2026-06-25: 0 of 4 left, the visit needs 1' }])
+      expect(dates(ids)).toEqual(['2026-06-25', '2026-06-24'])
+    })
+
+    it("refuses what a technician's capacity, lowered since, no longer allows", () => {
+      const preview = setUp()
+      q().prepare('update users set daily_capacity = 1 where id = ?').run(techId)
+      const applied = applyBulk(data.db, reschedule, input, ids, versions(preview), office())
+      expect(applied.applied).toBe(1)
+      expect(applied.refused.map((r) => [r.id, r.reason])).toEqual([[ids[1], 'Jonah Keel is full on 2026-06-25: 0 of 1 left, the visit needs 1']])
+    })
+
+    it('moves to the working day the calendar gives now, when a day was closed since', () => {
+      const preview = setUp()
+      expect(preview.changes.map((c) => c.to.scheduledOn)).toEqual(['2026-06-25', '2026-06-25'])
+      q().prepare("insert into closed_days (day, label) values ('2026-06-25', 'Stocktake')").run()
+      const applied = applyBulk(data.db, reschedule, input, ids, versions(preview), office())
+      expect(applied.applied).toBe(2)
+      expect(dates(ids)).toEqual(['2026-06-26', '2026-06-26'])
+    })
+
+    it("works the plan out again when another visit on the technician's days changed since", () => {
+      const preview = setUp()
+      extra = makeVisits(data.db, { n: 1, siteId, date: '2026-06-25', technicianId: techId, detectors: 2 })
+      const again = previewBulk(data.db, reschedule, ids, input, office())
+      expect(again.changeCount).toBe(2)
+      // Its notes edited (its version moved on): nothing that changes the load, but judged afresh all the same.
+      q().prepare("update visits set notes = 'gate code changed', version = version + 1 where id = ?").run(extra[0])
+      const judged = vi.spyOn(reschedule, 'preview')
+      const applied = applyBulk(data.db, reschedule, input, ids, versions(preview), office())
+      expect(judged).toHaveBeenCalledTimes(1)
+      expect(applied.applied).toBe(2)
+      expect(dates(ids)).toEqual(['2026-06-25', '2026-06-25'])
+    })
   })
 })

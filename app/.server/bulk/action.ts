@@ -8,7 +8,8 @@ import type { VisitCreate } from './creates'
  * A bulk action is declared once, as a `BulkAction`, and listed in `registry.ts`; the runner does
  * the rest. `preview` is pure reading: it says, record by record, which fields it would change from
  * what to what, and which records it refuses and why. Applying runs the same `preview` again inside
- * one IMMEDIATE transaction, refuses any record whose version is not the one the caller previewed,
+ * one IMMEDIATE transaction (or, for an action with a `basis` that has not changed since the
+ * preview, takes the plan that preview made), refuses any record whose version is not the one the caller previewed,
  * writes the `to` fields (bumping each version), re-derives changed detectors, and writes one audit
  * entry and one `bulk_changes` row, from which the change can be undone. So what is applied is
  * exactly what a preview on the same data shows; an action never writes by itself.
@@ -32,6 +33,13 @@ export interface BulkAction<I = unknown> {
   /** The action's own fields of the request body (the selection and `preview` are taken off first). */
   input: z.ZodType<I>
   preview(db: Db, ids: readonly number[], input: I, ctx: BulkContext): BulkPlan
+  /**
+   * Optional: everything `preview` reads, condensed into a string that is equal only when the same
+   * preview would give the same plan (versions, loads, the calendar, the day). Read again inside the
+   * apply's transaction: when it still equals the preview's, the runner applies the plan it kept
+   * from that preview instead of working it out again. Undefined: always worked out again.
+   */
+  basis?(db: Db, ids: readonly number[], input: I, ctx: BulkContext): string | undefined
 }
 
 export type BulkEntity = 'visit' | 'detector'

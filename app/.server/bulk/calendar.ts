@@ -12,6 +12,8 @@ export interface CompanyCalendar {
   forRegion(region: string): WorkCalendar
   /** Why a day is not worked in a region ("company closed: Stocktake", a holiday's name, "a weekend day"), or null. */
   dayOff(region: string, date: IsoDate): string | null
+  /** What it was built from (observed holidays, closed days): two calendars with the same key answer alike. */
+  readonly key: string
 }
 
 /**
@@ -25,6 +27,7 @@ export function loadCompanyCalendar(db: Db): CompanyCalendar {
   const closedLabel = new Map(closed.map((c) => [c.day, c.label]))
   const closedList = closed.map((c) => c.day)
   const byRegion = new Map<string, WorkCalendar>()
+  const key = JSON.stringify([observed.map((o) => `${o.region.toUpperCase()}|${o.name}`).sort(), closed.map((c) => [c.day, c.label])])
 
   const forRegion = (region: string): WorkCalendar => {
     const key = region.trim().toUpperCase()
@@ -38,6 +41,7 @@ export function loadCompanyCalendar(db: Db): CompanyCalendar {
     return cal
   }
   return {
+    key,
     forRegion,
     dayOff(region, date) {
       const cal = forRegion(region)

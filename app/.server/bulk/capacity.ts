@@ -23,16 +23,17 @@ export interface BookedVisit {
 /** Open visits of these technicians from `from` on (what a day already holds). */
 export function bookedVisits(db: Db, technicianIds: readonly number[], from: string): BookedVisit[] {
   if (technicianIds.length === 0) return []
-  // Raw SQL: the visit with its correlated detector count, on visits_tech_idx.
-  return db.$client
+  // Raw SQL: the visit with its correlated detector count, read as arrays (objects cost twice as much).
+  const rows = db.$client
     .prepare(
-      `select v.id, v.technician_id as technicianId, v.scheduled_on as scheduledOn,
-              (select count(*) from visit_detectors vd where vd.visit_id = v.id) as detectorCount
+      `select v.id, v.technician_id, v.scheduled_on, (select count(*) from visit_detectors vd where vd.visit_id = v.id)
          from visits v
         where v.technician_id in (${technicianIds.map(() => '?').join(',')}) and v.scheduled_on >= ?
           and v.status in ('planned', 'notified', 'in-progress')`,
     )
-    .all(...technicianIds, from) as BookedVisit[]
+    .raw(true)
+    .all(...technicianIds, from) as Array<[number, number, string, number]>
+  return rows.map(([id, technicianId, scheduledOn, detectorCount]) => ({ id, technicianId, scheduledOn, detectorCount }))
 }
 
 /** What a visit weighs against its technician's day: its detectors, or 1 when capacity counts visits. */

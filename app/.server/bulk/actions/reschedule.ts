@@ -1,5 +1,6 @@
 import { z } from 'zod'
 import { shiftVisits, type VisitToShift } from '~/domain/planner'
+import type { Db } from '../../db'
 import { idParam, isoDate } from '../../list-query'
 import { BulkError, defineAction, type BulkChange, type BulkContext, type BulkRefusal } from '../action'
 import { bookedVisits, dayLoads, limitOf, weight, type Move } from '../capacity'
@@ -22,6 +23,8 @@ export const reschedule = defineAction({
   entity: 'visit',
   capability: 'schedule:visits',
   input,
+  // A cancellation's plan carries the moment (cancelledAt), so it is always worked out again.
+  basis: (db, ids, i, ctx) => (i.mode === 'cancel' ? undefined : planBasis(db, ids, i.mode === 'technician' ? i.technicianId : undefined, ctx)),
   preview(db, ids, i, ctx) {
     const rows = visitRows(db, ids)
     const refused: BulkRefusal[] = missing(ids, rows, 'Visit')
@@ -113,6 +116,38 @@ export const reschedule = defineAction({
     return { changes, refused, summary: `Move ${plural(changes.length, 'visit')} ${how}`, extra: { dayLoads: dayLoads(booked, moves, techs) } }
   },
 })
+
+/**
+ * What a move's plan is worked out from, condensed: equal strings mean the same plan. Every write to
+ * a visit (its detectors included) or a site bumps its version, and versions only grow, so equal
+ * counts and version totals over the selection and its sites mean none of those rows changed and
+ * their technicians are the same. Those technicians' open visits per day, by their ids and version
+ * total (the same ids, so the same versions), stand for the load the planner counts (a grouped sum
+ * of detectors read three times slower); with their capacity, the company calendar and the office
+ * day that is all the preview reads. (`+status` keeps SQLite on visits_tech_idx, whose order groups
+ * the rows without a sort.)
+ */
+function planBasis(db: Db, ids: readonly number[], newTech: number | undefined, ctx: BulkContext): string {
+  const q = db.$client
+  const selected = q
+    .prepare(
+      `select count(*) as n, total(v.version) as visits, total(s.version) as sites, json_group_array(distinct v.technician_id) as techs
+         from json_each(?) j join visits v on v.id = j.value join sites s on s.id = v.site_id`,
+    )
+    .get(JSON.stringify(ids)) as { n: number; visits: number; sites: number; techs: string }
+  const techIds = [...new Set([...(JSON.parse(selected.techs) as Array<number | null>), newTech])].filter((t): t is number => t != null).sort((a, b) => a - b)
+  const techs = [...technicians(db, techIds).values()].sort((a, b) => a.id - b.id)
+  const booked = q
+    .prepare(
+      `select v.technician_id, v.scheduled_on, group_concat(v.id), total(v.version)
+         from visits v
+        where v.technician_id in (select value from json_each(?)) and v.scheduled_on >= ? and +v.status in ('planned', 'notified', 'in-progress')
+        group by v.technician_id, v.scheduled_on order by v.technician_id, v.scheduled_on`,
+    )
+    .raw(true)
+    .all(JSON.stringify(techIds), ctx.today)
+  return JSON.stringify([ctx.today, ctx.calendar.key, selected.n, selected.visits, selected.sites, techs, booked])
+}
 
 function change(v: VisitRow, from: BulkChange['from'], to: BulkChange['to']): BulkChange {
   return { entity: 'visit', id: v.id, label: visitLabel(v), from, to, version: v.version }

@@ -40,17 +40,30 @@ function inChunks<T>(ids: readonly number[], read: (chunk: readonly number[], ma
 
 /** The selected visits with their site, region and detector count, in id order; missing ids are left out. */
 export function visitRows(db: Db, ids: readonly number[]): VisitRow[] {
-  // Raw SQL: one statement for the row and its correlated detector count, read in id chunks.
-  return inChunks(ids, (chunk, marks) =>
-    db.$client
-      .prepare(
-        `select v.id, v.site_id as siteId, s.name as site, s.region, v.scheduled_on as scheduledOn, v.technician_id as technicianId,
-                v.status, v.notes, v.cancelled_at as cancelledAt, v.cancel_reason as cancelReason, v.version,
-                (select count(*) from visit_detectors vd where vd.visit_id = v.id) as detectorCount
-           from visits v join sites s on s.id = v.site_id where v.id in (${marks}) order by v.id`,
-      )
-      .all(...chunk) as VisitRow[],
-  )
+  // Raw SQL: one statement for the row and its correlated detector count, the ids bound as one JSON
+  // value. Read as arrays: better-sqlite3 building a dozen-key object per row doubled the read.
+  const rows = db.$client
+    .prepare(
+      `select v.id, v.site_id, s.name, s.region, v.scheduled_on, v.technician_id, v.status, v.notes, v.cancelled_at, v.cancel_reason, v.version,
+              (select count(*) from visit_detectors vd where vd.visit_id = v.id)
+         from visits v join sites s on s.id = v.site_id where v.id in (select value from json_each(?)) order by v.id`,
+    )
+    .raw(true)
+    .all(JSON.stringify(ids)) as Array<[number, number, string, string, string, number | null, VisitRow['status'], string | null, string | null, string | null, number, number]>
+  return rows.map(([id, siteId, site, region, scheduledOn, technicianId, status, notes, cancelledAt, cancelReason, version, detectorCount]) => ({
+    id,
+    siteId,
+    site,
+    region,
+    scheduledOn,
+    technicianId,
+    status,
+    notes,
+    cancelledAt,
+    cancelReason,
+    version,
+    detectorCount,
+  }))
 }
 
 /** The selected detectors with their site, in id order; missing ids are left out. */
