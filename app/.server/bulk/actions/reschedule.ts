@@ -131,11 +131,11 @@ function planBasis(db: Db, ids: readonly number[], newTech: number | undefined, 
   const q = db.$client
   const selected = q
     .prepare(
-      `select count(*) as n, total(v.version) as visits, total(s.version) as sites, json_group_array(distinct v.technician_id) as techs
+      `select count(*) as n, total(v.version) as visits, total(s.version) as sites, group_concat(distinct v.technician_id) as techs
          from json_each(?) j join visits v on v.id = j.value join sites s on s.id = v.site_id`,
     )
-    .get(JSON.stringify(ids)) as { n: number; visits: number; sites: number; techs: string }
-  const techIds = [...new Set([...(JSON.parse(selected.techs) as Array<number | null>), newTech])].filter((t): t is number => t != null).sort((a, b) => a - b)
+    .get(JSON.stringify(ids)) as { n: number; visits: number; sites: number; techs: string | null }
+  const techIds = [...new Set([...(selected.techs?.split(',').map(Number) ?? []), newTech])].filter((t): t is number => t != null).sort((a, b) => a - b)
   const techs = [...technicians(db, techIds).values()].sort((a, b) => a.id - b.id)
   const booked = q
     .prepare(
