@@ -325,6 +325,77 @@ describe('shiftVisits', () => {
       'The target day 2026-03-09 is after the last allowed day 2026-03-06',
     )
   })
+
+  it('keeps a visit that cannot move on its own day, so no other visit lands on a day it still fills', () => {
+    // Capacity 10 a day. Visit 2 (Tue 3 March) cannot move to Wed, which is full; it stays, so visit
+    // 1 (Mon) cannot take its place on Tue. Placed as if visit 2 had left, Tue would hold 20.
+    const r = shiftVisits({
+      visits: [visit({ id: 1, date: '2026-03-02', detectorCount: 10 }), visit({ id: 2, date: '2026-03-03', detectorCount: 10 })],
+      by: { businessDays: 1 },
+      capacity: { 1: 10 },
+      existingLoad: [{ technicianId: 1, date: '2026-03-04', detectorCount: 10 }],
+      roll: false,
+    })
+    expect(r.moved).toEqual([])
+    expect(r.unplaced.map((u) => u.id)).toEqual([1, 2])
+    expect(r.unplaced[0].reason).toMatch(/full on 2026-03-03/)
+  })
+
+  it('leaves a visit that would land before the earliest day where it is, and counts it there', () => {
+    const r = shiftVisits({
+      visits: [visit({ id: 1, date: '2026-03-02', detectorCount: 10 }), visit({ id: 2, date: '2026-03-03', detectorCount: 10 })],
+      by: { businessDays: -1 },
+      capacity: { 1: 10 },
+      earliest: '2026-03-02',
+      roll: false,
+    })
+    // Visit 1 would go to Friday 27 Feb, before the earliest day: it stays on Monday, so Monday is full for visit 2.
+    expect(r.moved).toEqual([])
+    expect(r.unplaced).toEqual([
+      { id: 1, reason: 'Would land on 2026-02-27, before today' },
+      { id: 2, reason: expect.stringMatching(/full on 2026-03-02/) },
+    ])
+  })
+
+  it('never fills a day past capacity, counting the visits left where they were (property)', () => {
+    const days = ['2026-03-02', '2026-03-03', '2026-03-04', '2026-03-05', '2026-03-06', '2026-03-09', '2026-03-10']
+    const arb = fc.record({
+      visits: fc.array(fc.record({ day: fc.integer({ min: 0, max: days.length - 1 }), tech: fc.integer({ min: 1, max: 2 }), n: fc.integer({ min: 1, max: 6 }) }), { maxLength: 14 }),
+      booked: fc.array(fc.record({ day: fc.integer({ min: 0, max: days.length - 1 }), tech: fc.integer({ min: 1, max: 2 }), n: fc.integer({ min: 1, max: 6 }) }), { maxLength: 6 }),
+      by: fc.integer({ min: -2, max: 3 }).filter((n) => n !== 0),
+      roll: fc.boolean(),
+    })
+    fc.assert(
+      fc.property(arb, ({ visits, booked, by, roll }) => {
+        const cap = 8
+        const input = visits.map((v, i) => visit({ id: i + 1, date: days[v.day], technicianId: v.tech, detectorCount: v.n }))
+        const r = shiftVisits({
+          visits: input,
+          by: { businessDays: by },
+          capacity: { 1: cap, 2: cap },
+          existingLoad: booked.map((b) => ({ technicianId: b.tech, date: days[b.day], detectorCount: b.n })),
+          roll,
+          earliest: days[0],
+        })
+        // Every visit is either moved or left, once.
+        expect([...r.moved.map((m) => m.id), ...r.unplaced.map((u) => u.id)].sort((a, b) => a - b)).toEqual(input.map((v) => v.id))
+        // The days as they end up: booked work, the visits left where they were, the visits moved.
+        const load = new Map<string, number>()
+        const add = (tech: number, date: string, n: number) => load.set(`${tech}|${date}`, (load.get(`${tech}|${date}`) ?? 0) + n)
+        for (const b of booked) add(b.tech, days[b.day], b.n)
+        const left = new Set(r.unplaced.map((u) => u.id))
+        for (const v of input) if (left.has(v.id)) add(v.technicianId!, v.date, v.detectorCount)
+        for (const m of r.moved) {
+          const v = input[m.id - 1]
+          add(v.technicianId!, m.to, v.detectorCount)
+          expect(m.to >= days[0]).toBe(true)
+        }
+        // A day a visit moved onto is within capacity, whatever stayed.
+        for (const m of r.moved) expect(load.get(`${input[m.id - 1].technicianId}|${m.to}`)!).toBeLessThanOrEqual(cap)
+      }),
+      { numRuns: 300 },
+    )
+  })
 })
 
 const CAPACITY: Record<number, number> = { 1: 8, 2: 10, 3: 5 }

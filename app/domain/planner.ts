@@ -298,6 +298,8 @@ export interface ShiftInput {
   limitDate?: IsoDate
   /** false: a visit whose target day is full stays where it is, reported, instead of rolling on. */
   roll?: boolean
+  /** A visit that would land before this day stays where it is, reported (the office's today). */
+  earliest?: IsoDate
 }
 
 export interface ShiftResult {
@@ -314,18 +316,37 @@ export const DEFAULT_SHIFT_LIMIT_WORKING_DAYS = 60
  * (visits already booked plus those moved here). A visit that finds its target day off or full
  * rolls to the next working day with room, up to the limit; the rest are reported with a reason.
  * Visits are handled in date then id order, so earlier visits keep their place in the queue.
+ *
+ * A visit that cannot move stays on its own day and weighs on it: the visits are placed again with
+ * those counted where they are, until no more are left behind. A single pass, placing each visit
+ * as if every other had left its day, let a visit move onto a day that one left behind still filled.
  */
 export function shiftVisits(input: ShiftInput): ShiftResult {
+  const stays = new Map<number, string>()
+  for (;;) {
+    const pass = shiftPass(input, stays)
+    if (pass.unplaced.length === 0) {
+      const unplaced = [...stays].map(([id, reason]) => ({ id, reason })).sort((a, b) => a.id - b.id)
+      return { moved: pass.moved, unplaced }
+    }
+    // Each pass leaves behind only visits the one before moved, so this ends within as many passes as visits.
+    for (const u of pass.unplaced) stays.set(u.id, u.reason)
+  }
+}
+
+/** One placing of the visits not in `stays`, with each of those weighing on its own day. */
+function shiftPass(input: ShiftInput, stays: ReadonlyMap<number, string>): ShiftResult {
   const moved: ShiftResult['moved'] = []
   const unplaced: ShiftResult['unplaced'] = []
   const capOf = (tech: number): number | undefined =>
     input.capacity instanceof Map ? input.capacity.get(tech) : input.capacity[tech]
   const load = new Load()
   for (const b of input.existingLoad ?? []) load.add(b.technicianId, b.date, b.detectorCount)
+  for (const v of input.visits) if (stays.has(v.id) && v.technicianId !== null && Number.isInteger(v.detectorCount) && v.detectorCount > 0) load.add(v.technicianId, v.date, v.detectorCount)
   const calendar = calendarLookup(input.calendars)
 
   const how = shiftRule(input)
-  const order = [...input.visits].sort((a, b) => a.date.localeCompare(b.date) || a.id - b.id)
+  const order = input.visits.filter((v) => !stays.has(v.id)).sort((a, b) => a.date.localeCompare(b.date) || a.id - b.id)
   for (const v of order) {
     const fail = (reason: string) => unplaced.push({ id: v.id, reason })
     if (typeof how === 'string') {
@@ -375,6 +396,10 @@ export function shiftVisits(input: ShiftInput): ShiftResult {
     }
     if (!landed) {
       fail(`No working day with room for technician ${v.technicianId} from ${target} to ${limit}`)
+      continue
+    }
+    if (input.earliest !== undefined && landed < input.earliest) {
+      fail(`Would land on ${landed}, before today`)
       continue
     }
     if (v.technicianId !== null) load.add(v.technicianId, landed, v.detectorCount)

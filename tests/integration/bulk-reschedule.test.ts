@@ -180,6 +180,23 @@ describe('bulk reschedule', () => {
       expect(dates(ids)).toEqual(['2026-06-26', '2026-06-26'])
     })
 
+    it('keeps a visit changed since the preview on its day, and lets no other move onto a day it still fills', () => {
+      // Room for one detector a day: Wednesday's visit moves to Thursday as Thursday's moves to Friday.
+      q().prepare("update users set daily_capacity = 1, capacity_unit = 'detectors' where id = ?").run(techId)
+      ids = [...makeVisits(data.db, { n: 1, siteId, date: '2026-06-24', technicianId: techId, detectors: 1 }), ...makeVisits(data.db, { n: 1, siteId, date: '2026-06-25', technicianId: techId, detectors: 1 })]
+      const preview = previewBulk(data.db, reschedule, ids, input, office())
+      expect(preview.changes.map((c) => c.to.scheduledOn)).toEqual(['2026-06-25', '2026-06-26'])
+      // Thursday's visit is edited before the apply: it stays on Thursday, so Wednesday's has nowhere to go.
+      q().prepare("update visits set notes = 'customer asked to keep the day', version = version + 1 where id = ?").run(ids[1])
+      const applied = applyBulk(data.db, reschedule, input, ids, versions(preview), office())
+      expect(applied.applied).toBe(0)
+      expect(applied.refused.map((r) => [r.id, r.reason])).toEqual([
+        [ids[0], 'Jonah Keel is full on 2026-06-25: 0 of 1 left, the visit needs 1'],
+        [ids[1], expect.stringMatching(/^Changed since the preview/)],
+      ])
+      expect(dates(ids)).toEqual(['2026-06-24', '2026-06-25'])
+    })
+
     it("works the plan out again when another visit on the technician's days changed since", () => {
       const preview = setUp()
       extra = makeVisits(data.db, { n: 1, siteId, date: '2026-06-25', technicianId: techId, detectors: 2 })

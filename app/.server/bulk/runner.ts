@@ -161,8 +161,8 @@ export function previewed(previewId: string, action: BulkAction<unknown>, input:
 export function applyBulk<I>(db: Db, action: BulkAction<I>, input: I, ids: readonly number[], previewed: ReadonlyMap<number, number>, ctx: BulkContext): ApplyAnswer {
   const last = action.basis ? takeKept(action as BulkAction<unknown>, ids, input, ctx.actor.id) : undefined
   const answer = writeTx(db, () => {
-    const plan = last && action.basis!(db, ids, input, ctx) === last.basis ? last.plan : action.preview(db, ids, input, ctx)
-    const refused = [...plan.refused]
+    const { plan, held } = last && action.basis!(db, ids, input, ctx) === last.basis ? { plan: last.plan, held: [] } : judgeAgain(db, action, ids, input, ctx, previewed)
+    const refused = [...plan.refused, ...held]
     const done: ChangedRecord[] = []
     const stale = (c: BulkChange, seen: number, now: number | string) =>
       refused.push({ id: c.id, label: c.label, reason: `Changed since the preview (version ${seen} then, ${now} now); left as it is` })
@@ -184,6 +184,37 @@ export function applyBulk<I>(db: Db, action: BulkAction<I>, input: I, ids: reado
   })
   listsChanged()
   return { ...answer, refusedCount: answer.refused.length, refused: answer.refused.slice(0, LISTED_ROWS) }
+}
+
+/**
+ * The action's plan worked out again on the data as it now stands, for the records it may still
+ * change. A record changed since the preview, or one the preview did not offer to change, is left
+ * as it is; and as it stays where it is, the plan is worked out again without it (a visit left on
+ * its day still fills that day for the others), until every change is one the preview offered.
+ */
+function judgeAgain<I>(db: Db, action: BulkAction<I>, ids: readonly number[], input: I, ctx: BulkContext, previewed: ReadonlyMap<number, number>) {
+  const held: BulkRefusal[] = []
+  let selection = ids
+  for (;;) {
+    const plan = action.preview(db, selection, input, ctx)
+    const left = plan.changes.filter((c) => previewed.get(c.id) !== c.version)
+    const leftIds = new Set(left.map((c) => c.id))
+    const inSelection = new Set(selection)
+    const rest = selection.filter((id) => !leftIds.has(id))
+    // A change to a record outside the selection (a visit to be booked) cannot be held back by
+    // narrowing it: the apply refuses that change itself.
+    if (rest.length === selection.length) return { plan, held }
+    selection = rest
+    for (const c of left) {
+      if (!inSelection.has(c.id)) continue
+      const seen = previewed.get(c.id)
+      held.push({
+        id: c.id,
+        label: c.label,
+        reason: seen === undefined ? 'Not in the preview; left as it is' : `Changed since the preview (version ${seen} then, ${c.version} now); left as it is`,
+      })
+    }
+  }
 }
 
 /**

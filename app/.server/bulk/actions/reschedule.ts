@@ -98,14 +98,14 @@ export const reschedule = defineAction({
       existingLoad,
       calendars: (region) => ctx.calendar.forRegion(region),
       roll: false,
+      earliest: ctx.today,
     })
     const byId = new Map(open.map((v) => [v.id, v]))
     const named = (reason: string) => reason.replace(/[Tt]echnician (\d+)/g, (_, id: string) => techs.get(Number(id))?.name ?? `Technician ${id}`)
     for (const u of shifted.unplaced) refuse(byId.get(u.id)!, named(u.reason))
     for (const m of shifted.moved) {
       const v = byId.get(m.id)!
-      if (m.to < ctx.today) refuse(v, `Would land on ${m.to}, before today`)
-      else if (m.to === m.from) refuse(v, `Already on ${m.to}`)
+      if (m.to === m.from) refuse(v, `Already on ${m.to}`)
       else {
         changes.push(change(v, { scheduledOn: m.from }, { scheduledOn: m.to }))
         moves.push({ id: v.id, detectorCount: v.detectorCount, from: { tech: v.technicianId, date: m.from }, to: { tech: v.technicianId, date: m.to } })
