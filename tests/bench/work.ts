@@ -97,7 +97,7 @@ export async function benchWork(source: string, scratch: string, today: string, 
         floor.push(rawReschedule(q, moves))
         floorBack.push(rawReschedule(q, back))
       }
-      out.push({ name: `bulk reschedule: apply ${ids.length} visits`, ms: apply, note: `${applied.applied} applied in one transaction (the preview's plan, its basis read again inside it)`, floor })
+      out.push({ name: `bulk reschedule: apply ${ids.length} visits`, ms: apply, note: `${applied.applied} applied in one transaction (the preview's plan, standing as nothing was written since)`, floor })
       out.push({ name: `bulk reschedule: undo ${ids.length} visits`, ms: undo, note: '', floor: floorBack })
     } else out.push({ name: `bulk reschedule: apply ${ids.length} visits`, ms: apply, note: 'nothing applied' })
 

@@ -146,10 +146,26 @@ describe('bulk reschedule', () => {
       const preview = setUp()
       expect(preview.changeCount).toBe(2)
       const judged = vi.spyOn(reschedule, 'preview')
+      // Nothing at all written since: not even the basis is read again.
+      const basis = vi.spyOn(reschedule, 'basis' as never)
       const applied = applyBulk(data.db, reschedule, input, ids, versions(preview), office())
+      expect(basis).not.toHaveBeenCalled()
       expect(judged).not.toHaveBeenCalled()
       expect(applied.applied).toBe(2)
       expect(dates(ids)).toEqual(['2026-06-25', '2026-06-25'])
+    })
+
+    it('still takes the plan previewed when only rows it does not rest on were written since', () => {
+      const preview = setUp()
+      // A write elsewhere in the file (another visit's notes, a customer's phone): the basis is read again and holds.
+      const other = q().prepare('select id from visits where technician_id <> ? or technician_id is null order by id limit 1').get(techId) as { id: number }
+      q().prepare("update visits set notes = coalesce(notes, '') || ' ', version = version + 1 where id = ?").run(other.id)
+      const judged = vi.spyOn(reschedule, 'preview')
+      const basis = vi.spyOn(reschedule, 'basis' as never)
+      const applied = applyBulk(data.db, reschedule, input, ids, versions(preview), office())
+      expect(basis).toHaveBeenCalledTimes(1)
+      expect(judged).not.toHaveBeenCalled()
+      expect(applied.applied).toBe(2)
     })
 
     it("refuses a move that a visit booked since onto the technician's day leaves no room for", () => {

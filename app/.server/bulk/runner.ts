@@ -95,6 +95,22 @@ interface KeptPlan {
   basis: string
   plan: BulkPlan
   at: number
+  /** The connection the preview read through, its `fileMark` before the preview, and the office day. */
+  db: Db
+  mark: string
+  today: string
+}
+
+/**
+ * Whether anything has been written to the file since: SQLite's data_version moves when another
+ * connection commits, total_changes() when this one writes. Equal marks on one connection mean not
+ * a row changed between the two reads, so a plan made after the first stands at the second without
+ * reading its basis again.
+ */
+function fileMark(db: Db): string {
+  const version = db.$client.pragma('data_version', { simple: true }) as number
+  const own = (db.$client.prepare('select total_changes() as n').get() as { n: number }).n
+  return `${version}:${own}`
 }
 const KEPT_PLANS = 4
 const kept: KeptPlan[] = []
@@ -114,12 +130,13 @@ function takeKept(action: BulkAction<unknown>, ids: readonly number[], input: un
 export function previewBulk<I>(db: Db, action: BulkAction<I>, ids: readonly number[], input: I, ctx: BulkContext, through?: Through): PreviewAnswer {
   // The basis is read before the plan: a write landing between the two makes the apply judge
   // afresh, where read after it could let a plan made on older data pass as current.
+  const mark = fileMark(db)
   const basis = action.basis?.(db, ids, input, ctx)
   const plan = action.preview(db, ids, input, ctx)
   if (basis !== undefined) {
     takeKept(action as BulkAction<unknown>, ids, input, ctx.actor.id)
     if (kept.length >= KEPT_PLANS) kept.shift()
-    kept.push({ action: action.name, actorId: ctx.actor.id, input: JSON.stringify(input), ids, basis, plan, at: Date.now() })
+    kept.push({ action: action.name, actorId: ctx.actor.id, input: JSON.stringify(input), ids, basis, plan, at: Date.now(), db, mark, today: ctx.today })
   }
   const versions = new Map(plan.changes.map((c) => [c.id, c.version]))
   const previewId = remember({ actorId: ctx.actor.id, action: action.name, input: JSON.stringify(input), ids, versions, at: Date.now() })
@@ -161,7 +178,8 @@ export function previewed(previewId: string, action: BulkAction<unknown>, input:
 export function applyBulk<I>(db: Db, action: BulkAction<I>, input: I, ids: readonly number[], previewed: ReadonlyMap<number, number>, ctx: BulkContext): ApplyAnswer {
   const last = action.basis ? takeKept(action as BulkAction<unknown>, ids, input, ctx.actor.id) : undefined
   const answer = writeTx(db, () => {
-    const { plan, held } = last && action.basis!(db, ids, input, ctx) === last.basis ? { plan: last.plan, held: [] } : judgeAgain(db, action, ids, input, ctx, previewed)
+    const stands = last && last.db === db && last.today === ctx.today && (fileMark(db) === last.mark || action.basis!(db, ids, input, ctx) === last.basis)
+    const { plan, held } = stands ? { plan: last.plan, held: [] } : judgeAgain(db, action, ids, input, ctx, previewed)
     const refused = [...plan.refused, ...held]
     const done: ChangedRecord[] = []
     const stale = (c: BulkChange, seen: number, now: number | string) =>
