@@ -69,9 +69,9 @@ const ROW_PX = 36
 // lines fit on one each sits in the middle of its height.
 const PHONE_LINE_PX = 20
 const PHONE_ROW_PX = 16 + PHONE_LINE_PX + 2 * 2 * PHONE_LINE_PX
-// A row that grows to fit (`wrapRows`) takes about three lines at desk width: placed at that height
+// A row that grows to fit (`wrapRows`) takes three to six lines at desk width: placed at that height
 // before it is measured, the server's HTML holds the rows on a desk screen and few beyond.
-const WRAP_ROW_PX = 64
+const WRAP_ROW_PX = 96
 const PHONE_QUERY = '(max-width: 47.99rem)'
 // Browsers cap an element's height (about 33 million px in Chromium): 2 million rows at 36 px do not
 // fit. Past this height the scroll box is shrunk and offsets are scaled between it and the virtualizer.
