@@ -3,6 +3,7 @@
 // apply, undo) and a visit's notice, start and completion run through the same server, and /healthz
 // is timed throughout. Fails (exit 1) on any error or non-2xx answer, any SQLITE_BUSY in the
 // server's output, or /healthz at or over 50 ms p99. Runs on a copy: the given file is never written.
+import { spawn } from 'node:child_process'
 import { copyFileSync, mkdtempSync, rmSync } from 'node:fs'
 import { tmpdir } from 'node:os'
 import { join } from 'node:path'
@@ -80,23 +81,56 @@ const reads = [
 // reads its pages from disk (a start is timed on its own by tests/bench/day-turn.ts).
 for (const path of reads) await (await fetch(server.url + path, { headers: { authorization: `Bearer ${lead}` } })).arrayBuffer()
 
-// /healthz every 50 ms from its own connection, for the whole run.
+// /healthz every 50 ms for the whole run, from a process of its own: in this one the probe's times
+// took in the load generator's own work (starting 50 autocannon instances, adding up their results),
+// up to 100 ms at the run's first second and last, with the server idle. The probe warms up (a
+// process's first fetches load and compile its HTTP client) and says so before the run starts. Each
+// probe is noted with when it was sent, from the start of the run.
+const PROBE = `
+  const [url, origin] = process.argv.slice(1)
+  const out = []
+  let on = true
+  process.stdin.on('data', () => { on = false })
+  ;(async () => {
+    for (let i = 0; i < 20; i++) await (await fetch(url)).arrayBuffer()
+    process.stderr.write('probe ready\\n')
+    while (on) {
+      const t = performance.now()
+      const res = await fetch(url)
+      await res.arrayBuffer()
+      out.push([performance.now() - t, performance.timeOrigin + t - Number(origin)])
+      await new Promise((r) => setTimeout(r, 50))
+    }
+    process.stdout.write(JSON.stringify(out))
+  })()
+`
+const clock = performance.now()
+const prober = spawn(process.execPath, ['-e', PROBE, `${server.url}/healthz`, String(performance.timeOrigin + clock)], { stdio: ['pipe', 'pipe', 'pipe'] })
+let probed = ''
+prober.stdout.on('data', (d) => (probed += d))
+await new Promise<void>((resolve, reject) => {
+  prober.stderr.on('data', (d) => (String(d).includes('probe ready') ? resolve() : process.stderr.write(d)))
+  prober.once('exit', () => reject(new Error('the /healthz probe stopped before it was ready')))
+})
 const health: number[] = []
-let probing = true
-const probe = (async () => {
-  while (probing) {
-    const t = performance.now()
-    const res = await fetch(`${server.url}/healthz`)
-    await res.arrayBuffer()
-    health.push(performance.now() - t)
-    await new Promise((r) => setTimeout(r, 50))
+const sentAt: number[] = []
+/** Stops the probe and takes its times. */
+async function stopProbe() {
+  const done = new Promise((r) => prober.once('exit', r))
+  prober.stdin.end('stop')
+  await done
+  for (const [ms, at] of JSON.parse(probed || '[]') as Array<[number, number]>) {
+    health.push(ms)
+    sentAt.push(at)
   }
-})()
+}
 
 interface Step {
   name: string
   status: number
   ms: number
+  /** When it was sent, from the start of the run. */
+  at: number
   error?: string
 }
 const steps: Step[] = []
@@ -104,7 +138,7 @@ async function call(name: string, method: string, url: string, t: string, body?:
   const start = performance.now()
   const res = await fetch(server.url + url, { method, headers: auth(t), body: body === undefined ? undefined : JSON.stringify(body) })
   const json = (await res.json().catch(() => null)) as Record<string, unknown> | null
-  steps.push({ name, status: res.status, ms: performance.now() - start, error: res.ok ? undefined : JSON.stringify(json).slice(0, 300) })
+  steps.push({ name, status: res.status, ms: performance.now() - start, at: start - clock, error: res.ok ? undefined : JSON.stringify(json).slice(0, 300) })
   return json
 }
 
@@ -188,8 +222,7 @@ async function flat(): Promise<Totals> {
 
 const result = rate ? await paced(rate) : await flat()
 await writes
-probing = false
-await probe
+await stopProbe()
 await server.stop()
 rmSync(dir, { recursive: true, force: true })
 
@@ -202,7 +235,11 @@ console.log(`\nLoad: ${connections} connections${rate ? ` at ${rate} requests/s`
 console.log(`  requests ${result.total}, ${(result.total / seconds).toFixed(1)}/s; errors ${result.errors}, timeouts ${result.timeouts}, non-2xx ${result.non2xx}`)
 console.log(`  latency p50 ${pct(result.latencies, 0.5).toFixed(1)} ms, p99 ${pct(result.latencies, 0.99).toFixed(1)} ms, max ${Math.max(...result.latencies).toFixed(1)} ms`)
 console.log(`  /healthz: ${health.length} probes, p50 ${pct(health, 0.5).toFixed(1)} ms, p99 ${pct(health, 0.99).toFixed(1)} ms, max ${Math.max(...health).toFixed(1)} ms`)
-for (const s of steps) console.log(`  ${s.name}: ${s.status} in ${s.ms.toFixed(0)} ms${s.error ? ` ${s.error}` : ''}`)
+// The slowest probes, each with the write under way when it was sent (if any), to tell what they waited behind.
+const during = (at: number) => steps.find((s) => at >= s.at && at <= s.at + s.ms)?.name ?? 'reads only'
+const slowest = health.map((ms, i) => ({ ms, at: sentAt[i] })).sort((a, b) => b.ms - a.ms).slice(0, 5)
+console.log(`  slowest /healthz: ${slowest.map((p) => `${p.ms.toFixed(0)} ms at ${(p.at / 1000).toFixed(1)} s (${during(p.at)})`).join('; ')}`)
+for (const s of steps) console.log(`  ${s.name}: ${s.status} in ${s.ms.toFixed(0)} ms at ${(s.at / 1000).toFixed(1)} s${s.error ? ` ${s.error}` : ''}`)
 console.log(`  SQLITE_BUSY in the server's output: ${busy}`)
 
 const failed = [
