@@ -53,7 +53,9 @@ describe('triage: each reason', () => {
     expect(both.reasons).toEqual([{ code: 'overdue', points: 22, text: 'Functional test overdue by 45 days; also cleaning' }])
     const all = triage({ ...healthy, overdue: [{ task: 'visual', days: 5296 }, { task: 'cleaning', days: 5420 }, { task: 'functional', days: 5082 }] })
     // Functional 5,082 days: 20 + 20 + floor(4,782 / 90) = 93; the others are named, not counted again.
-    expect(all.reasons).toEqual([{ code: 'overdue', points: 93, text: 'Functional test overdue by 5,082 days; also visual check, cleaning' }])
+    expect(all.reasons).toEqual([{ code: 'overdue', points: 93, text: 'Functional test overdue by over 13 years; also visual check, cleaning' }])
+    // Under two years, the days themselves.
+    expect(triage({ ...healthy, overdue: [{ task: 'functional', days: 729 }] }).reasons[0].text).toBe('Functional test overdue by 729 days')
   })
 
   it('an overdue functional test outweighs an overdue cleaning, sensitivity or visual check as late', () => {

@@ -51,7 +51,9 @@ export function overduePoints(task: Task, days: number): number {
 const SHORT: Record<Task, string> = { functional: 'functional test', sensitivity: 'sensitivity', visual: 'visual check', cleaning: 'cleaning' }
 // One formatter for every row (toLocaleString builds its own each call).
 const thousands = new Intl.NumberFormat('en-US')
-const dayWord = (n: number) => `${thousands.format(n)} day${n === 1 ? '' : 's'}`
+// Past two years a count of days says less than the years it makes (a detector never tested since
+// it went in years ago): 'over 13 years'. The detector's page gives the exact dates.
+const dayWord = (n: number) => (n >= 730 ? `over ${Math.floor(n / 365.2425)} years` : `${thousands.format(n)} day${n === 1 ? '' : 's'}`)
 
 // Weights are the product's own call, set so that a live trouble outranks paperwork and an
 // unreported fault outranks a late test; each reason shows its points so the order explains itself.
