@@ -9,8 +9,8 @@ import type { VisitCreate } from './creates'
  * the rest. `preview` is pure reading: it says, record by record, which fields it would change from
  * what to what, and which records it refuses and why. Applying runs the same `preview` again inside
  * one IMMEDIATE transaction (or, for an action with a `basis` that has not changed since the
- * preview, takes the plan that preview made), refuses any record whose version is not the one the caller previewed,
- * writes the `to` fields (bumping each version), re-derives changed detectors, and writes one audit
+ * preview, takes the plan that preview made), refuses any record whose version is not the one the
+ * caller previewed, writes the `to` fields (bumping each version), re-derives changed detectors, and writes one audit
  * entry and one `bulk_changes` row, from which the change can be undone. So what is applied is
  * exactly what a preview on the same data shows; an action never writes by itself.
  *
