@@ -4,6 +4,7 @@ import type { AuditItem } from '~/domain/audit-sentences'
 import { sentenceText } from '~/domain/audit-sentences'
 import { calendarFor } from '~/domain/calendar'
 import { addDays } from '~/domain/dates'
+import { useSeededServer } from '#tests/setup/fixture'
 import { go, Jar, signInViaProvider } from '#tests/setup/oauth-client'
 import { startServer } from '#tests/setup/server'
 import { sessionCookieFor, userIdByEmail } from '#tests/setup/sessions'
@@ -261,20 +262,11 @@ describe('the audit log in sentences, and the admin pages that write it', () => 
 // A fresh demo's log holds the history the seed made (visits booked, notified, started, completed,
 // cleared): every kind of entry reads as a sentence naming real people and places.
 describe("a fresh demo's audit log", () => {
-  let server: Awaited<ReturnType<typeof startServer>>
-  let data: ReturnType<typeof seededDb>
-  let cookie = ''
-  beforeAll(async () => {
-    data = seededDb('demo')
-    server = await startServer(data.path)
-    cookie = (await sessionCookieFor(data.db, userIdByEmail(data.db, 'admin@ductkeeper.test'))).cookie
-  })
-  afterAll(async () => {
-    await server?.stop()
-    data?.cleanup()
-  })
+  const t = useSeededServer('demo')
 
   it('reads each kind of entry the seed wrote as a sentence with names, never raw JSON or bare ids', async () => {
+    const { server, data } = t
+    const cookie = (await sessionCookieFor(data.db, userIdByEmail(data.db, 'admin@ductkeeper.test'))).cookie
     const q = data.db.$client
     const kinds = q.prepare('select action, max(id) as id from audit_log group by action order by action').all() as Array<{ action: string; id: number }>
     // What the history implies for a visit, from booking to all-clear.
